@@ -1,0 +1,72 @@
+package metrics
+
+// Options set the measurement levels. Fractions, not percentages.
+type Options struct {
+	RiseLow       float64 // lower rise reference level, fraction of the transition (0.10)
+	RiseHigh      float64 // upper rise reference level (0.90)
+	Band          float64 // settling band half-width, fraction of |step size| (0.02)
+	DeadTimeLevel float64 // departure level that ends the dead time, fraction of the transition (0.02)
+	FinalWindow   float64 // fraction of the step's record, at its end, used for the final value (0.2)
+	MinSamples    int     // fewest samples a step needs to be measured at all (10)
+}
+
+// DefaultOptions returns the levels stepgate uses when a spec sets none.
+func DefaultOptions() Options {
+	return Options{RiseLow: 0.10, RiseHigh: 0.90, Band: 0.02, DeadTimeLevel: 0.02, FinalWindow: 0.2, MinSamples: 10}
+}
+
+// StepMetrics holds every metric of one step, each measured or unknown with a
+// reason.
+type StepMetrics struct {
+	Step  Step
+	Start float64 // time of the step instant, seconds on the record's clock
+
+	StepSize            Value
+	InitialValue        Value
+	FinalValue          Value
+	DeadTime            Value
+	RiseTime            Value
+	PeakValue           Value
+	PeakTime            Value
+	Overshoot           Value
+	SettlingTime        Value
+	SteadyStateError    Value
+	SteadyStateErrorPct Value
+
+	// LastOutside is the time after the step instant of the last sample
+	// outside the settling band, centred on the final value or, when that is
+	// unknown, on the command. It is the evidence for a settling failure when
+	// the settling time itself cannot be measured (the record ends first).
+	LastOutside Value
+	// Duration is the time from the step instant to the step's last sample.
+	Duration float64
+}
+
+// Get returns the named metric; ok is false for an unknown name.
+func (m StepMetrics) Get(n Name) (v Value, ok bool) {
+	switch n {
+	case StepSize:
+		return m.StepSize, true
+	case InitialValue:
+		return m.InitialValue, true
+	case FinalValue:
+		return m.FinalValue, true
+	case DeadTime:
+		return m.DeadTime, true
+	case RiseTime:
+		return m.RiseTime, true
+	case PeakValue:
+		return m.PeakValue, true
+	case PeakTime:
+		return m.PeakTime, true
+	case Overshoot:
+		return m.Overshoot, true
+	case SettlingTime:
+		return m.SettlingTime, true
+	case SteadyStateError:
+		return m.SteadyStateError, true
+	case SteadyStateErrorPct:
+		return m.SteadyStateErrorPct, true
+	}
+	return Value{}, false
+}

@@ -1,0 +1,30 @@
+package metrics
+
+// Trace is a sampled record of one unit's step test: parallel slices of equal
+// length, time strictly increasing, all values finite. Effort is nil when the
+// rig did not log the drive effort.
+type Trace struct {
+	Time     []float64 // seconds
+	Command  []float64 // commanded position, response units
+	Response []float64 // measured position, response units
+	Effort   []float64 // drive effort, optional (nil when absent)
+}
+
+// Len returns the number of samples.
+func (t Trace) Len() int { return len(t.Time) }
+
+// Step is one command change found in a trace. Samples Start..End-1 belong to
+// the step; Start is the first sample at the new command (the step instant).
+// PreStart is the first sample of the window before the step that the
+// initial value is measured from (the previous step's start, or 0).
+type Step struct {
+	Index    int     // 1-based position of the step in the record
+	PreStart int     // first sample of the pre-step window
+	Start    int     // first sample at the new command
+	End      int     // one past the last sample of the step
+	From     float64 // command level before the step
+	To       float64 // command level after the step
+}
+
+// Size is the command change To − From (negative for a down-step).
+func (s Step) Size() float64 { return s.To - s.From }
