@@ -1,6 +1,7 @@
 package acceptance
 
 import (
+	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -17,10 +18,15 @@ const (
 // Batch is the report model: everything one run decided, fed to every report
 // writer. Field JSON names are the contract for machine consumers.
 type Batch struct {
-	Tool    ToolInfo     `json:"tool"`
-	Spec    SpecInfo     `json:"spec"`
-	Summary Summary      `json:"summary"`
-	Units   []UnitResult `json:"units"`
+	Tool    ToolInfo      `json:"tool"`
+	Spec    SpecInfo      `json:"spec"`
+	Summary Summary       `json:"summary"`
+	Units   []UnitResult  `json:"units"`
+	Model   *ModelSummary `json:"model,omitempty"`
+	// Limits repeats the spec's limits for consumers that read only results.
+	Limits map[string]Limit `json:"limits"`
+	// ReportDate is the date the reports carry (RFC 3339 date).
+	ReportDate string `json:"report_date"`
 
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *Spec `json:"-"`
@@ -60,6 +66,9 @@ type UnitResult struct {
 	// Samples is the number of data rows read.
 	Samples int `json:"samples"`
 
+	// Fit is the identified effective closed loop; nil without a model.
+	Fit *Fit `json:"fit,omitempty"`
+
 	// Trace is the record, kept only for units that get a page or a chart.
 	Trace *metrics.Trace `json:"-"`
 }
@@ -76,6 +85,53 @@ type StepResult struct {
 	// Unmeasured gives the reason for every metric that is null.
 	Unmeasured map[string]string `json:"unmeasured"`
 	Checks     []Check           `json:"checks"`
+
+	// Predicted is the model's prediction of this step (realised when the
+	// spec has a loop section, else ideal); nil without a model.
+	Predicted *Prediction `json:"predicted,omitempty"`
+	// Gap is measured − predicted per metric; nil where either is unknown.
+	Gap map[string]*float64 `json:"gap,omitempty"`
+}
+
+// Prediction is one simulated step measured by the metrics package.
+type Prediction struct {
+	Kind       string                   `json:"kind"` // "ideal" or "realised"
+	Metrics    map[string]metrics.Value `json:"metrics"`
+	Unmeasured map[string]string        `json:"unmeasured,omitempty"`
+}
+
+// Fit is the effective second-order closed loop identified from a unit's
+// recorded step: G·ωn²/(s² + 2ζωn s + ωn²) behind a dead time.
+type Fit struct {
+	Step             int           `json:"step"` // step index the fit used
+	StaticGain       metrics.Value `json:"static_gain"`
+	Damping          metrics.Value `json:"damping"`
+	NaturalFrequency metrics.Value `json:"natural_frequency_rad_s"`
+	DeadTime         metrics.Value `json:"dead_time_s"`
+	RMSResidual      metrics.Value `json:"rms_residual"`
+	Why              string        `json:"why,omitempty"` // why the fit failed, when it did
+}
+
+// ModelSummary is what the model predicts for the batch as a whole: the
+// nominal steps (distinct command changes) simulated ideal and realised, and
+// the gains designed for reference.
+type ModelSummary struct {
+	Config   model.Config        `json:"config"`
+	Plant    string              `json:"plant"`    // the plant as a readable transfer function
+	Realised bool                `json:"realised"` // true when the spec has a loop or actuator section or a plant dead time
+	Nominal  []NominalPrediction `json:"nominal"`
+	Warnings []string            `json:"warnings,omitempty"`
+}
+
+// NominalPrediction is the model's response to one distinct command change.
+type NominalPrediction struct {
+	From     float64    `json:"from"`
+	To       float64    `json:"to"`
+	Ideal    Prediction `json:"ideal"`
+	Realised Prediction `json:"realised"`
+
+	IdealTrace    *metrics.Trace `json:"-"`
+	RealisedTrace *metrics.Trace `json:"-"`
 }
 
 // Check is one limit applied to one metric of one step.

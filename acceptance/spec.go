@@ -54,8 +54,8 @@ type MetricRules struct {
 
 // Limit bounds one metric. A nil bound is not checked.
 type Limit struct {
-	Min *float64 `yaml:"min"`
-	Max *float64 `yaml:"max"`
+	Min *float64 `yaml:"min" json:"min"`
+	Max *float64 `yaml:"max" json:"max"`
 }
 
 // ReportInfo identifies the issuing organisation and the people who sign.
