@@ -1,7 +1,8 @@
 // Package metrics owns step-response measurement over a sampled trace: the
-// Trace type, segmentation of a record into steps at command changes, and one
-// pure function per metric (initial and final value, dead time, rise time,
-// peak, overshoot, settling time, steady-state error).
+// Trace type and its validation, segmentation of a record into steps at
+// command changes (FindSteps), and one pure function per metric (state
+// levels, dead time, rise time, peak, overshoot, settling time, steady-state
+// error), which MeasureStep and Measure combine into a StepMetrics per step.
 //
 // The same functions measure recorded rig logs and simulated predictions, so
 // a gap between the two is never an artefact of two different measuring
@@ -15,7 +16,18 @@
 // Modern Control Engineering, 5th ed., §5-3), not from the 50 % instant as
 // IEEE Std 181-2011 does.
 //
+// Initial and final values are state levels of a window of samples: the mean
+// after rejecting samples more than three scaled MADs from the median, so
+// noise, encoder quantisation and single glitches do not move them. A window
+// counts as steady only when the levels of its two halves differ, and its
+// robust spread is, by at most a quarter of the settling band's full width;
+// otherwise the value is unknown, because a band centred on a level that is
+// still moving would judge settling against the wrong place.
+//
 // Times are in seconds from the step instant: the first sample at which the
-// command holds its new value. A metric that cannot be measured is a Value
-// with OK false and a reason, never a zero or a sentinel.
+// command holds its new value. Sampling need not be uniform. A metric that
+// cannot be measured is a Value with OK false and a reason, never a zero or a
+// sentinel. Peak and overshoot are taken from the samples as recorded:
+// measurement noise raises them by about the largest noise excursion near the
+// peak, and a monotone response with noise shows a small overshoot.
 package metrics

@@ -1,0 +1,60 @@
+package metrics_test
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// A demonstration record: a first-order loop (τ = 50 ms) logged at 1 kHz,
+// commanded from 0 to 10 at t = 0.2 s and back to 0 at t = 1.2 s; the log
+// stops 0.1 s after the second step, before the response settles.
+func ExampleMeasure() {
+	const tau = 0.05
+	var tr metrics.Trace
+	for i := 0; i <= 1300; i++ {
+		t := float64(i) / 1000
+		cmd, y := 0.0, 0.0
+		if t >= 0.2 {
+			y = 10 * (1 - math.Exp(-(t-0.2)/tau))
+		}
+		if i >= 1200 {
+			y -= 10 * (1 - math.Exp(-(t-1.2)/tau))
+		} else if t >= 0.2 {
+			cmd = 10
+		}
+		tr.Time = append(tr.Time, t)
+		tr.Command = append(tr.Command, cmd)
+		tr.Response = append(tr.Response, y)
+	}
+	if err := tr.Validate(); err != nil {
+		fmt.Println(err)
+		return
+	}
+	show := func(n metrics.Name, v metrics.Value) {
+		if v.OK {
+			fmt.Printf("  %-16s %.4f\n", n, v.V)
+		} else {
+			fmt.Printf("  %-16s unknown: %s\n", n, v.Why)
+		}
+	}
+	for _, m := range metrics.Measure(tr, 0.5, metrics.DefaultOptions()) {
+		fmt.Printf("step %d: %g -> %g at %.3f s\n", m.Step.Index, m.Step.From, m.Step.To, m.Start)
+		show(metrics.FinalValue, m.FinalValue)
+		show(metrics.RiseTime, m.RiseTime)
+		show(metrics.SettlingTime, m.SettlingTime)
+		fmt.Printf("  last outside band %.3f s\n", m.LastOutside.V)
+	}
+	// Output:
+	// step 1: 0 -> 10 at 0.200 s
+	//   final_value      10.0000
+	//   rise_time_s      0.1099
+	//   settling_time_s  0.1956
+	//   last outside band 0.195 s
+	// step 2: 10 -> 0 at 1.200 s
+	//   final_value      unknown: record ends 0.1 s after the step, before the response settles: its level drifts by 0.3496 over the last 0.02 s (limit 0.1)
+	//   rise_time_s      unknown: final value unknown: record ends 0.1 s after the step, before the response settles: its level drifts by 0.3496 over the last 0.02 s (limit 0.1)
+	//   settling_time_s  unknown: final value unknown: record ends 0.1 s after the step, before the response settles: its level drifts by 0.3496 over the last 0.02 s (limit 0.1)
+	//   last outside band 0.100 s
+}

@@ -1,0 +1,233 @@
+package metrics
+
+import (
+	"fmt"
+	"math"
+)
+
+// Window lengths used for the state levels.
+const (
+	// minPreSamples is the fewest pre-step samples an initial value is
+	// measured from.
+	minPreSamples = 3
+	// preWindowSeconds caps the initial-value window: the last half of the
+	// pre-step samples or the last preWindowSeconds before the step,
+	// whichever holds fewer samples (common practice, no source).
+	preWindowSeconds = 0.5
+	// minFinalSamples is the fewest samples a final value is measured from,
+	// three per half so the drift between halves means something.
+	minFinalSamples = 6
+)
+
+// steadyFraction is the stability limit of a state-level window as a
+// fraction of the settling band's half-width: the window's drift between its
+// halves and its robust spread must each be at most half the half-width, a
+// quarter of the band's full width (stepgate's choice; common practice, no
+// source). A looser limit would let a final value still moving by most of
+// the band centre the band that the settling time is judged against.
+const steadyFraction = 0.5
+
+// Measure finds the steps of tr (FindSteps with minChange) and measures each
+// with MeasureStep. tr must pass Validate. It returns nil when the record
+// has no step.
+func Measure(tr Trace, minChange float64, o Options) []StepMetrics {
+	steps := FindSteps(tr, minChange)
+	if len(steps) == 0 {
+		return nil
+	}
+	out := make([]StepMetrics, len(steps))
+	var buf []float64
+	for i, s := range steps {
+		out[i] = measureStep(tr, s, o, &buf)
+	}
+	return out
+}
+
+// MeasureStep measures every metric of step s of tr with the levels in o.
+// Times are seconds from the step instant tr.Time[s.Start].
+//
+//   - StepSize is To − From, always known.
+//   - InitialValue is the state level (see StateLevel) of the tail of the
+//     pre-step window PreStart..Start−1: its last half or its last 0.5 s,
+//     whichever holds fewer samples, at least 3. Unknown with fewer than 3
+//     pre-step samples, or when that tail is not steady.
+//   - FinalValue is the state level of the step's last FinalWindow fraction
+//     of samples (at least 6). Unknown when that window is not steady: the
+//     level of its second half differs from that of its first half, or its
+//     robust spread (1.4826 × MAD) is, by more than a quarter of the settling
+//     band's full width (0.5 × Band × |StepSize|); i.e. the record ends
+//     before the response settles, or the response keeps oscillating.
+//   - DeadTime, RiseTime and Overshoot need a transition: unknown when either
+//     state level is unknown, when |final − initial| is within the settling
+//     band's half-width (the response did not move), or when the response
+//     moved against the command.
+//   - PeakValue and PeakTime: extreme in the command's direction
+//     (MeasurePeak).
+//   - SettlingTime: band ±Band × |StepSize| around FinalValue
+//     (MeasureSettlingTime); unknown when FinalValue is.
+//   - SteadyStateError(Pct): |To − FinalValue| (MeasureSteadyStateError).
+//   - LastOutside: MeasureLastOutside around FinalValue, or around To when
+//     FinalValue is unknown; known whenever the step has samples.
+//
+// A step with fewer than o.MinSamples samples has every metric unknown
+// except StepSize (LastOutside and Duration are still given). Invalid
+// options, a step that does not fit the trace, or a non-finite or
+// non-increasing sample in the step's range make every metric unknown with
+// the reason. Start and Duration are 0 only when the step does not fit the
+// trace.
+func MeasureStep(tr Trace, s Step, o Options) StepMetrics {
+	var buf []float64
+	return measureStep(tr, s, o, &buf)
+}
+
+func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
+	m := StepMetrics{Step: s, StepSize: Known(s.Size())}
+	n := min(len(tr.Time), len(tr.Command), len(tr.Response))
+	if s.PreStart < 0 || s.PreStart > s.Start || s.Start >= s.End || s.End > n {
+		m.setAll(fmt.Sprintf("step %d spans samples %d..%d (pre-step from %d), which do not fit a record of %d samples",
+			s.Index, s.Start, s.End-1, s.PreStart, n))
+		m.LastOutside = Unknown("step has no samples in the record")
+		return m
+	}
+	t := tr.Time[s.Start:s.End]
+	y := tr.Response[s.Start:s.End]
+	m.Start = t[0]
+	m.Duration = t[len(t)-1] - t[0]
+	size := s.Size()
+	halfWidth := o.Band * math.Abs(size)
+	if err := o.Validate(); err != nil {
+		m.setAll(err.Error())
+		m.LastOutside = Unknown(err.Error())
+		return m
+	}
+	if err := tr.checkRange(s.PreStart, s.End); err != nil {
+		m.setAll(err.Error())
+		m.LastOutside = Unknown(err.Error())
+		return m
+	}
+	if size == 0 || !finite(size) {
+		m.setAll(fmt.Sprintf("command does not change (from %s to %s)", num(s.From), num(s.To)))
+		m.LastOutside = Unknown("command does not change, so there is no settling band")
+		return m
+	}
+	m.LastOutside = MeasureLastOutside(t, y, s.To, halfWidth)
+	if len(y) < o.MinSamples {
+		m.setAll(fmt.Sprintf("step has only %d samples (%s s); %d are needed to measure it",
+			len(y), num(m.Duration), o.MinSamples))
+		return m
+	}
+	tol := steadyFraction * halfWidth
+	// One scratch buffer, large enough for either state-level window.
+	scratch(buf, max((s.Start-s.PreStart+1)/2, minPreSamples, int(math.Ceil(o.FinalWindow*float64(len(y)))), minFinalSamples))
+
+	m.InitialValue = initialValue(tr, s, tol, buf)
+	m.FinalValue = finalValue(t, y, o.FinalWindow, tol, m.Duration, buf)
+
+	rising := size > 0
+	m.PeakValue, m.PeakTime = MeasurePeak(t, y, rising)
+
+	if why := transition(m.InitialValue, m.FinalValue, size, halfWidth); why != "" {
+		m.DeadTime, m.RiseTime, m.Overshoot = Unknown(why), Unknown(why), Unknown(why)
+	} else {
+		y0, y1 := m.InitialValue.V, m.FinalValue.V
+		m.DeadTime = MeasureDeadTime(t, y, y0, y1, o.DeadTimeLevel)
+		m.RiseTime = MeasureRiseTime(t, y, y0, y1, o.RiseLow, o.RiseHigh)
+		m.Overshoot = MeasureOvershoot(m.PeakValue.V, y0, y1)
+	}
+
+	if !m.FinalValue.OK {
+		why := "final value unknown: " + m.FinalValue.Why
+		m.SettlingTime = Unknown(why)
+		m.SteadyStateError, m.SteadyStateErrorPct = Unknown(why), Unknown(why)
+		return m
+	}
+	m.SettlingTime = MeasureSettlingTime(t, y, m.FinalValue.V, halfWidth)
+	m.SteadyStateError, m.SteadyStateErrorPct = MeasureSteadyStateError(s.To, m.FinalValue.V, size)
+	m.LastOutside = MeasureLastOutside(t, y, m.FinalValue.V, halfWidth)
+	return m
+}
+
+// setAll marks every metric but StepSize unknown with the same reason.
+func (m *StepMetrics) setAll(why string) {
+	u := Unknown(why)
+	m.InitialValue, m.FinalValue, m.DeadTime, m.RiseTime = u, u, u, u
+	m.PeakValue, m.PeakTime, m.Overshoot, m.SettlingTime = u, u, u, u
+	m.SteadyStateError, m.SteadyStateErrorPct = u, u
+}
+
+// scratch returns *buf grown to at least n elements.
+func scratch(buf *[]float64, n int) []float64 {
+	if cap(*buf) < n {
+		*buf = make([]float64, n)
+	}
+	return (*buf)[:n]
+}
+
+// initialValue measures the state level before step s.
+func initialValue(tr Trace, s Step, tol float64, buf *[]float64) Value {
+	m := s.Start - s.PreStart
+	if m < minPreSamples {
+		return Unknown(fmt.Sprintf("only %d samples before the step; %d are needed for the initial value", m, minPreSamples))
+	}
+	k := (m + 1) / 2
+	tStep := tr.Time[s.Start]
+	inTime := 0
+	for i := s.Start - 1; i >= s.PreStart && tr.Time[i] >= tStep-preWindowSeconds; i-- {
+		inTime++
+	}
+	k = max(min(k, inTime), minPreSamples)
+	lo := s.Start - k
+	w := tr.Response[lo:s.Start]
+	l := stateLevel(w, scratch(buf, k))
+	span := num(tStep - tr.Time[lo])
+	if l.Drift > tol {
+		return Unknown(fmt.Sprintf("response is not steady before the step: its level drifts by %s over the %s s before it (limit %s)",
+			num(l.Drift), span, num(tol)))
+	}
+	if l.Spread > tol {
+		return Unknown(fmt.Sprintf("response is too noisy before the step: robust spread %s over the %s s before it (limit %s)",
+			num(l.Spread), span, num(tol)))
+	}
+	return Known(l.Value)
+}
+
+// finalValue measures the state level at the end of a step.
+func finalValue(t, y []float64, frac, tol, dur float64, buf *[]float64) Value {
+	n := len(y)
+	k := max(int(math.Ceil(frac*float64(n)-1e-9)), minFinalSamples)
+	if k > n {
+		return Unknown(fmt.Sprintf("step has only %d samples; %d are needed for the final value", n, minFinalSamples))
+	}
+	w := y[n-k:]
+	l := stateLevel(w, scratch(buf, k))
+	span := num(t[n-1] - t[n-k])
+	if l.Drift > tol {
+		return Unknown(fmt.Sprintf("record ends %s s after the step, before the response settles: its level drifts by %s over the last %s s (limit %s)",
+			num(dur), num(l.Drift), span, num(tol)))
+	}
+	if l.Spread > tol {
+		return Unknown(fmt.Sprintf("response does not hold a steady level by the end of the record, %s s after the step: robust spread %s over the last %s s (limit %s)",
+			num(dur), num(l.Spread), span, num(tol)))
+	}
+	return Known(l.Value)
+}
+
+// transition returns why the step has no transition to time, or "".
+func transition(initial, final Value, size, halfWidth float64) string {
+	switch {
+	case !initial.OK:
+		return "initial value unknown: " + initial.Why
+	case !final.OK:
+		return "final value unknown: " + final.Why
+	}
+	d := final.V - initial.V
+	switch {
+	case math.Abs(d) <= halfWidth:
+		return fmt.Sprintf("response moved only %s (from %s to %s), within the ±%s settling band: no transition to time",
+			num(d), num(initial.V), num(final.V), num(halfWidth))
+	case (d > 0) != (size > 0):
+		return fmt.Sprintf("response moved %s (from %s to %s), against the command change of %s",
+			num(d), num(initial.V), num(final.V), num(size))
+	}
+	return ""
+}
