@@ -1,0 +1,108 @@
+package acceptance_test
+
+import (
+	"fmt"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// A small spec: three columns, one limit, no model.
+func ExampleParseSpec() {
+	spec := []byte(`spec_id: LA-40-EOL
+revision: A
+signals: {time: t_ms, command: setpoint, response: position}
+time_unit: ms
+response_unit: mm
+steps: {min_change: 0.5}
+limits:
+  overshoot_pct: {max: 8}
+  final_value: {min: 9.95, max: 10.05}
+`)
+	s, err := acceptance.ParseSpec(spec, "la40.yaml")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Print(s.Explain())
+	// Output:
+	// Spec LA-40-EOL revision A
+	//
+	// Read from each log:
+	//   time      column "t_ms", in ms
+	//   command   column "setpoint", in mm
+	//   response  column "position", in mm
+	//   effort    not read (signals.effort not set)
+	//   fields separated by: detected from the header row; decimal mark: point (1.5)
+	//
+	// Steps:
+	//   a step is a change of the command by at least 0.5 mm; each step is
+	//   measured from its step instant (the first sample at the new command)
+	//   to the next step or the end of the record
+	//
+	// Measurement levels:
+	//   rise time between 10 % and 90 % of the transition
+	//   settling band ±2 % of the step size around the final value
+	//   dead time ends when the response has moved 2 % of the transition
+	//   final value taken from the last 20 % of each step's record
+	//
+	// Limits (a unit passes only when every limited metric of every step is
+	// measured and within its limits; a value on a limit passes):
+	//   9.95 ≤ final_value ≤ 10.05 mm
+	//   overshoot_pct ≤ 8 %
+	//
+	// Model: none (no prediction, no comparison with a model)
+}
+
+// Every problem in a spec is reported at once, with line, column and key.
+func ExampleParseSpec_problems() {
+	spec := []byte(`spec_id: LA-40-EOL
+revision: A
+signals: {time: t, command: setpoint, response: setpoint}
+steps: {min_change: 0.5}
+metrics: {settling_band_pct: 0}
+limits:
+  overshoot_pct: {max: -3}
+  rise_tme_s: {max: 0.1}
+`)
+	_, err := acceptance.ParseSpec(spec, "la40.yaml")
+	fmt.Println(err)
+	// Output:
+	// la40.yaml:3:49: signals.response: must differ from signals.command (both are "setpoint")
+	// la40.yaml:5:30: metrics.settling_band_pct: must be > 0 and < 100, got 0
+	// la40.yaml:7:24: limits.overshoot_pct.max: must be ≥ 0, got -3
+	// la40.yaml:8:3: limits.rise_tme_s: unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct
+}
+
+// A step whose record ends before the response settles: the settling time
+// is unknown, but the last sample outside the band is later than the limit,
+// so the step fails rather than being invalid.
+func ExampleSpec_JudgeStep() {
+	s, err := acceptance.ParseSpec([]byte(`spec_id: LA-40-EOL
+revision: A
+signals: {time: t, command: setpoint, response: position}
+steps: {min_change: 0.5}
+limits:
+  overshoot_pct: {max: 8}
+  settling_time_s: {max: 0.35}
+`), "la40.yaml")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	m := metrics.StepMetrics{
+		Step:         metrics.Step{Index: 1, From: 0, To: 10},
+		Overshoot:    metrics.Known(6.2),
+		SettlingTime: metrics.Unknown("still outside the band at the end of the record"),
+		LastOutside:  metrics.Known(0.52),
+	}
+	r := s.JudgeStep(m)
+	for _, c := range r.Checks {
+		fmt.Println(c.Metric, c.Verdict)
+	}
+	fmt.Println(r.Verdict, r.Reasons)
+	// Output:
+	// overshoot_pct pass
+	// settling_time_s fail
+	// fail [settling_time_s > 0.35 at step 1: still outside the ±2 % band 0.52 s after the step]
+}

@@ -1,0 +1,200 @@
+package acceptance
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// JudgeStep applies the spec's limits to one step's metrics. The result
+// carries every metric (null when unmeasured, with the reason in
+// Unmeasured) and one check per limit, in LimitNames order.
+//
+// Simple acceptance (ISO 14253-1:2017, ILAC-G8:09/2019): a check passes when
+// the value was measured and min ≤ value ≤ max, a value on a limit
+// included; it fails when the value lies outside; it is invalid when the
+// value could not be measured. One exception: an unmeasured settling time
+// with a max limit fails when the last sample outside the settling band
+// already lies later than the max, since the record proves the unit too
+// slow. The step fails when any check fails, else is invalid when any check
+// is invalid, else passes. Reasons list the failures first, then the
+// invalid checks.
+func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
+	r := StepResult{
+		Index:      m.Step.Index,
+		StartS:     m.Start,
+		From:       m.Step.From,
+		To:         m.Step.To,
+		Metrics:    make(map[string]metrics.Value, len(metrics.Names)),
+		Unmeasured: map[string]string{},
+		Checks:     []Check{},
+		Reasons:    []string{},
+	}
+	for _, n := range metrics.Names {
+		v, _ := m.Get(n)
+		r.Metrics[string(n)] = v
+		if !v.OK {
+			r.Unmeasured[string(n)] = verdictWhy(v)
+		}
+	}
+	var fails, invalids []string
+	for _, name := range s.LimitNames() {
+		c := s.judgeCheck(name, m)
+		r.Checks = append(r.Checks, c)
+		switch c.Verdict {
+		case Fail:
+			fails = append(fails, c.Reason)
+		case Invalid:
+			invalids = append(invalids, c.Reason)
+		}
+	}
+	switch {
+	case len(fails) > 0:
+		r.Verdict = Fail
+	case len(invalids) > 0:
+		r.Verdict = Invalid
+	default:
+		r.Verdict = Pass
+	}
+	r.Reasons = append(append(r.Reasons, fails...), invalids...)
+	return r
+}
+
+// judgeCheck applies one limit to one step.
+func (s *Spec) judgeCheck(name string, m metrics.StepMetrics) Check {
+	lim := s.Limits[name]
+	c := Check{Metric: name, Min: verdictCopy(lim.Min), Max: verdictCopy(lim.Max)}
+	step := m.Step.Index
+	v, known := m.Get(metrics.Name(name))
+	if !known {
+		c.Verdict = Invalid
+		c.Reason = fmt.Sprintf("%s is not a metric stepgate measures (step %d)", name, step)
+		return c
+	}
+	if !v.OK {
+		if metrics.Name(name) == metrics.SettlingTime && lim.Max != nil && m.LastOutside.OK && m.LastOutside.V > *lim.Max {
+			c.Verdict = Fail
+			c.Reason = fmt.Sprintf("%s > %s at step %d: still outside the ±%s %% band %s s after the step",
+				name, specFormatFloat(*lim.Max), step, specPct(s.Options().Band), verdictNumber(m.LastOutside.V, *lim.Max))
+			return c
+		}
+		c.Verdict = Invalid
+		c.Reason = fmt.Sprintf("%s not measured at step %d: %s", name, step, verdictWhy(v))
+		return c
+	}
+	c.Value = verdictCopy(&v.V)
+	switch {
+	case lim.Min != nil && v.V < *lim.Min:
+		c.Verdict = Fail
+		c.Reason = fmt.Sprintf("%s %s < %s at step %d", name, verdictNumber(v.V, *lim.Min), specFormatFloat(*lim.Min), step)
+	case lim.Max != nil && v.V > *lim.Max:
+		c.Verdict = Fail
+		c.Reason = fmt.Sprintf("%s %s > %s at step %d", name, verdictNumber(v.V, *lim.Max), specFormatFloat(*lim.Max), step)
+	default:
+		c.Verdict = Pass
+	}
+	return c
+}
+
+// JudgeUnit combines a unit's step results: invalid when no step was found,
+// fail when any step fails, else invalid when any step is invalid, else
+// pass. The reasons are every step's reasons, in step order.
+func (s *Spec) JudgeUnit(steps []StepResult) (Verdict, []string) {
+	if len(steps) == 0 {
+		return Invalid, []string{fmt.Sprintf("no step found: the command never changed by min_change %s%s",
+			specFormatFloat(s.Steps.MinChange), specUnitSuffix(s.ResponseUnit))}
+	}
+	reasons := []string{}
+	anyFail, anyInvalid := false, false
+	for _, st := range steps {
+		reasons = append(reasons, st.Reasons...)
+		switch st.Verdict {
+		case Fail:
+			anyFail = true
+		case Pass:
+		default:
+			anyInvalid = true
+		}
+	}
+	switch {
+	case anyFail:
+		return Fail, reasons
+	case anyInvalid:
+		return Invalid, reasons
+	}
+	return Pass, reasons
+}
+
+// Count tallies units by verdict. A unit whose verdict is none of pass,
+// fail and invalid could not show pass or fail, and is counted invalid, so
+// that Pass + Fail + Invalid = Units.
+func Count(units []UnitResult) Summary {
+	sum := Summary{Units: len(units)}
+	for _, u := range units {
+		switch u.Verdict {
+		case Pass:
+			sum.Pass++
+		case Fail:
+			sum.Fail++
+		default:
+			sum.Invalid++
+		}
+	}
+	return sum
+}
+
+// verdictWhy is a value's reason for being unknown.
+func verdictWhy(v metrics.Value) string {
+	if strings.TrimSpace(v.Why) == "" {
+		return "no reason recorded"
+	}
+	return v.Why
+}
+
+func verdictCopy(p *float64) *float64 {
+	if p == nil {
+		return nil
+	}
+	v := *p
+	return &v
+}
+
+// verdictNumber writes a measured value with up to 4 significant digits,
+// adding digits only when 4 would make it read the same as the limit it is
+// compared with.
+func verdictNumber(v, limit float64) string {
+	lim := specFormatFloat(limit)
+	for digits := 4; digits < 17; digits++ {
+		if s := verdictSig(v, digits); s != lim || v == limit {
+			return s
+		}
+	}
+	return specFormatFloat(v)
+}
+
+// verdictSig writes v rounded to the given significant digits, in plain
+// decimal notation between 1e-4 and 1e6 and in exponent notation outside.
+func verdictSig(v float64, digits int) string {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	a := math.Abs(v)
+	if a < 1e-4 || a >= 1e6 {
+		return strconv.FormatFloat(v, 'g', digits, 64)
+	}
+	// Round to the digits first, then print the rounded number exactly.
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'e', digits-1, 64), 64)
+	e := int(math.Floor(math.Log10(math.Abs(r))))
+	dec := digits - 1 - e
+	if dec < 0 {
+		dec = 0
+	}
+	s := strconv.FormatFloat(r, 'f', dec, 64)
+	if strings.Contains(s, ".") {
+		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	}
+	return s
+}
