@@ -30,8 +30,9 @@ type TransferFunc struct {
 }
 
 // Controller holds parallel-form PID gains: u = kp·e + ki·∫e + kd·de/dt, the
-// derivative filtered by a first-order low-pass at DerivativeFilterHz (0: no
-// filter).
+// derivative filtered by a first-order low-pass at DerivativeFilterHz. The
+// filter is required when Kd > 0 (an unfiltered derivative is improper); 0
+// means no derivative filter and is valid only with Kd = 0.
 type Controller struct {
 	Kp                 float64 `yaml:"kp" json:"kp"`
 	Ki                 float64 `yaml:"ki" json:"ki"`
