@@ -1,0 +1,245 @@
+package acceptance
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"sync"
+
+	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// TracePolicy says which units keep their full record in memory for the
+// report's charts and unit pages.
+type TracePolicy int
+
+// Trace policies.
+const (
+	KeepAllTraces     TracePolicy = iota // every unit keeps its trace
+	KeepNonPassTraces                    // only failing and invalid units
+	KeepNoTraces                         // none
+)
+
+// RunOptions control a batch run.
+type RunOptions struct {
+	Workers    int         // concurrent workers; 0 means one per core
+	Traces     TracePolicy // which traces to keep
+	Tool       ToolInfo    // name and version printed in the reports
+	ReportDate string      // YYYY-MM-DD; empty means the newest test date in the logs
+	// Progress, when set, is called after each file with the count done, the
+	// total and the bytes read so far. It is called from one goroutine at a
+	// time.
+	Progress func(done, total int, bytes int64)
+}
+
+// Run reads every file, measures and judges every step, and returns the
+// batch ordered by unit id, then file. A file that cannot be read becomes an
+// invalid unit with the reason; it never stops the batch. Run returns an
+// error only when ctx is cancelled.
+func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch, error) {
+	workers := o.Workers
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	if workers > len(files) && len(files) > 0 {
+		workers = len(files)
+	}
+	format := spec.Format()
+	opts := spec.Options()
+	pred, predErr := newPredictor(spec)
+
+	results := make([]UnitResult, len(files))
+	jobs := make(chan int)
+	var wg sync.WaitGroup
+	var mu sync.Mutex
+	done, bytes := 0, int64(0)
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			rd := rigdata.NewReader(format)
+			for i := range jobs {
+				u, n := processFile(rd, spec, opts, pred, files[i], o.Traces)
+				results[i] = u
+				if o.Progress != nil {
+					mu.Lock()
+					done++
+					bytes += n
+					o.Progress(done, len(files), bytes)
+					mu.Unlock()
+				}
+			}
+		}()
+	}
+	var cancelled error
+feed:
+	for i := range files {
+		select {
+		case <-ctx.Done():
+			cancelled = ctx.Err()
+			break feed
+		case jobs <- i:
+		}
+	}
+	close(jobs)
+	wg.Wait()
+	if cancelled != nil {
+		return nil, fmt.Errorf("batch interrupted: %w", cancelled)
+	}
+
+	sort.SliceStable(results, func(i, j int) bool {
+		if results[i].Unit != results[j].Unit {
+			return results[i].Unit < results[j].Unit
+		}
+		return results[i].File < results[j].File
+	})
+	flagDuplicateSerials(results)
+
+	b := &Batch{
+		Tool:    o.Tool,
+		Spec:    SpecInfo{SpecID: spec.SpecID, Revision: spec.Revision, SHA256: spec.SHA256, Title: spec.Title},
+		Summary: Count(results),
+		Units:   results,
+		Limits:  spec.Limits,
+		SpecDoc: spec,
+	}
+	if b.Limits == nil {
+		b.Limits = map[string]Limit{}
+	}
+	b.ReportDate = o.ReportDate
+	if b.ReportDate == "" {
+		b.ReportDate = newestTestDate(results)
+	}
+	if pred != nil {
+		b.Model = pred.summary()
+	} else if predErr != nil {
+		b.Model = &ModelSummary{Config: *spec.Model, Warnings: []string{predErr.Error()}}
+	}
+	return b, nil
+}
+
+// processFile reads and judges one file; it returns the unit and the bytes
+// read.
+func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, path string, policy TracePolicy) (UnitResult, int64) {
+	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []string{}, Steps: []StepResult{}}
+	lg, err := rd.ReadFile(path)
+	if lg != nil {
+		u.SHA256 = lg.SHA256
+		for k, v := range lg.Metadata {
+			u.Metadata[k] = v
+		}
+		if s := strings.TrimSpace(lg.Metadata["serial"]); s != "" {
+			u.Unit = s
+		}
+	}
+	if err != nil {
+		u.Verdict = Invalid
+		u.Reasons = []string{"log cannot be read: " + err.Error()}
+		var n int64
+		if lg != nil {
+			n = lg.Size
+		} else if fi, serr := os.Stat(path); serr == nil {
+			n = fi.Size()
+		}
+		return u, n
+	}
+	u.Samples = lg.Rows
+	tr := lg.Trace
+	if verr := tr.Validate(); verr != nil {
+		u.Verdict = Invalid
+		u.Reasons = []string{fmt.Sprintf("log %s: %v", path, verr)}
+		return u, lg.Size
+	}
+	steps := metrics.FindSteps(tr, spec.Steps.MinChange)
+	for _, st := range steps {
+		m := metrics.MeasureStep(tr, st, opts)
+		sr := spec.JudgeStep(m)
+		if pred != nil {
+			pred.attach(&sr, m, tr)
+		}
+		u.Steps = append(u.Steps, sr)
+	}
+	u.Verdict, u.Reasons = spec.JudgeUnit(u.Steps)
+	if pred != nil && len(steps) > 0 {
+		u.Fit = pred.fit(tr, steps[0])
+	}
+	keep := policy == KeepAllTraces || (policy == KeepNonPassTraces && u.Verdict != Pass)
+	if keep {
+		t := tr
+		u.Trace = &t
+	}
+	return u, lg.Size
+}
+
+// unitFromPath is the file name without its extension.
+func unitFromPath(path string) string {
+	base := filepath.Base(path)
+	return strings.TrimSuffix(base, filepath.Ext(base))
+}
+
+// flagDuplicateSerials adds a reason to every unit whose id appears in more
+// than one file. Units are sorted by id, so duplicates are adjacent. Both
+// files are kept; a duplicate serial is a traceability problem, so a unit
+// that would pass is made invalid.
+func flagDuplicateSerials(units []UnitResult) {
+	for i := 0; i < len(units); {
+		j := i + 1
+		for j < len(units) && units[j].Unit == units[i].Unit {
+			j++
+		}
+		if j-i > 1 {
+			for k := i; k < j; k++ {
+				var others []string
+				for m := i; m < j; m++ {
+					if m != k {
+						others = append(others, units[m].File)
+					}
+				}
+				units[k].Reasons = append(units[k].Reasons, fmt.Sprintf("unit id %q also appears in %s", units[k].Unit, strings.Join(others, ", ")))
+				if units[k].Verdict == Pass {
+					units[k].Verdict = Invalid
+				}
+			}
+		}
+		i = j
+	}
+}
+
+// newestTestDate returns the latest started_at (or date) metadata value's
+// date part among units, or "" when none carries one.
+func newestTestDate(units []UnitResult) string {
+	newest := ""
+	for _, u := range units {
+		for _, key := range []string{"started_at", "date", "tested_at"} {
+			v := u.Metadata[key]
+			if len(v) >= 10 && isDate(v[:10]) && v[:10] > newest {
+				newest = v[:10]
+			}
+		}
+	}
+	return newest
+}
+
+func isDate(s string) bool {
+	if len(s) != 10 || s[4] != '-' || s[7] != '-' {
+		return false
+	}
+	for i, c := range s {
+		if i == 4 || i == 7 {
+			continue
+		}
+		if c < '0' || c > '9' {
+			return false
+		}
+	}
+	return true
+}
+
+// ErrNoLogs is returned by FindInputs when the arguments name no log file.
+var ErrNoLogs = errors.New("no log files found (looked for .csv, .tsv and .txt)")

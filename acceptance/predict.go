@@ -1,0 +1,225 @@
+package acceptance
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"sync"
+
+	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// predictor attaches the model's prediction to every step of a batch. A
+// prediction depends only on the command change, the step's duration and the
+// sample period, so it is computed once per distinct step and shared.
+type predictor struct {
+	sys      *model.System
+	spec     *Spec
+	opts     metrics.Options
+	realised bool
+
+	mu    sync.Mutex
+	cache map[predKey]*predEntry
+}
+
+type predKey struct {
+	from, to, duration, dt float64
+}
+
+type predEntry struct {
+	once     sync.Once
+	ideal    Prediction
+	realised Prediction
+	idealTr  *metrics.Trace
+	realTr   *metrics.Trace
+	err      error
+}
+
+// newPredictor builds the spec's model; it returns nil and no error when the
+// spec has no model, and nil with the error when the model cannot be built
+// (the batch then reports the error and judges units without predictions).
+func newPredictor(spec *Spec) (*predictor, error) {
+	if spec.Model == nil {
+		return nil, nil
+	}
+	sys, err := model.Build(*spec.Model)
+	if err != nil {
+		return nil, fmt.Errorf("model: %w", err)
+	}
+	return &predictor{sys: sys, spec: spec, opts: spec.Options(), realised: sys.Realised(), cache: map[predKey]*predEntry{}}, nil
+}
+
+// entry returns the shared prediction for a step, computing it on first use.
+func (p *predictor) entry(k predKey) *predEntry {
+	p.mu.Lock()
+	e, ok := p.cache[k]
+	if !ok {
+		e = &predEntry{}
+		p.cache[k] = e
+	}
+	p.mu.Unlock()
+	e.once.Do(func() {
+		pr, err := p.sys.Predict(k.from, k.to, k.duration, k.dt)
+		if err != nil {
+			e.err = err
+			return
+		}
+		e.idealTr, e.realTr = &pr.Ideal, &pr.Realised
+		e.ideal = p.measure(pr.Ideal, model.Ideal, k)
+		e.realised = p.measure(pr.Realised, model.Realised, k)
+	})
+	return e
+}
+
+// measure runs the metrics package over a simulated trace: the very code
+// that measured the logs.
+func (p *predictor) measure(tr metrics.Trace, kind model.Kind, k predKey) Prediction {
+	out := Prediction{Kind: kind.String(), Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
+	steps := metrics.FindSteps(tr, p.spec.Steps.MinChange)
+	if len(steps) == 0 {
+		for _, n := range metrics.Names {
+			out.Metrics[string(n)] = metrics.Unknown("the simulated command has no step")
+			out.Unmeasured[string(n)] = "the simulated command has no step"
+		}
+		return out
+	}
+	m := metrics.MeasureStep(tr, steps[0], p.opts)
+	for _, n := range metrics.Names {
+		v, _ := m.Get(n)
+		out.Metrics[string(n)] = v
+		if !v.OK {
+			out.Unmeasured[string(n)] = v.Why
+		}
+	}
+	return out
+}
+
+// key rounds a step's shape so that steps of one test plan share a
+// prediction: durations to 10 ms, the sample period to 1 µs.
+func (p *predictor) key(m metrics.StepMetrics, tr metrics.Trace) predKey {
+	dt := medianPeriod(tr, m.Step)
+	return predKey{
+		from:     m.Step.From,
+		to:       m.Step.To,
+		duration: math.Max(0.01, math.Round(m.Duration*100)/100),
+		dt:       math.Round(dt*1e6) / 1e6,
+	}
+}
+
+// attach adds the prediction and the gaps to a judged step.
+func (p *predictor) attach(sr *StepResult, m metrics.StepMetrics, tr metrics.Trace) {
+	k := p.key(m, tr)
+	if !(k.dt > 0) {
+		return
+	}
+	e := p.entry(k)
+	if e.err != nil {
+		sr.Predicted = &Prediction{Kind: p.kind().String(), Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
+		for _, n := range metrics.Names {
+			sr.Predicted.Metrics[string(n)] = metrics.Unknown(e.err.Error())
+			sr.Predicted.Unmeasured[string(n)] = e.err.Error()
+		}
+		return
+	}
+	pr := e.ideal
+	if p.realised {
+		pr = e.realised
+	}
+	sr.Predicted = &pr
+	sr.Gap = map[string]*float64{}
+	for _, n := range metrics.Names {
+		meas, pred := sr.Metrics[string(n)], pr.Metrics[string(n)]
+		if meas.OK && pred.OK {
+			g := meas.V - pred.V
+			sr.Gap[string(n)] = &g
+		} else {
+			sr.Gap[string(n)] = nil
+		}
+	}
+}
+
+func (p *predictor) kind() model.Kind {
+	if p.realised {
+		return model.Realised
+	}
+	return model.Ideal
+}
+
+// fit identifies the unit's effective closed loop from its first step.
+func (p *predictor) fit(tr metrics.Trace, st metrics.Step) *Fit {
+	f := &Fit{Step: st.Index}
+	id, err := model.Identify(tr, st, p.sys.Kp())
+	if err != nil {
+		why := err.Error()
+		f.Why = why
+		f.StaticGain, f.Damping, f.NaturalFrequency, f.DeadTime, f.RMSResidual =
+			metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why)
+		return f
+	}
+	f.StaticGain = metrics.Known(id.StaticGain)
+	f.Damping = metrics.Known(id.Damping)
+	f.NaturalFrequency = metrics.Known(id.NaturalFrequency)
+	f.DeadTime = metrics.Known(id.DeadTime)
+	f.RMSResidual = metrics.Known(id.RMSResidual)
+	return f
+}
+
+// summary lists the distinct predicted steps, in a fixed order.
+func (p *predictor) summary() *ModelSummary {
+	ms := &ModelSummary{Config: p.sys.Config(), Plant: p.sys.Plant().String(), Realised: p.realised}
+	p.mu.Lock()
+	keys := make([]predKey, 0, len(p.cache))
+	for k := range p.cache {
+		keys = append(keys, k)
+	}
+	p.mu.Unlock()
+	sort.Slice(keys, func(i, j int) bool {
+		a, b := keys[i], keys[j]
+		// Out-steps (from the lower level) first, then by size and duration.
+		if math.Abs(a.to-a.from) != math.Abs(b.to-b.from) {
+			return math.Abs(a.to-a.from) > math.Abs(b.to-b.from)
+		}
+		if a.from != b.from {
+			return a.from < b.from
+		}
+		if a.to != b.to {
+			return a.to < b.to
+		}
+		if a.duration != b.duration {
+			return a.duration > b.duration
+		}
+		return a.dt < b.dt
+	})
+	seen := map[string]bool{}
+	for _, k := range keys {
+		e := p.cache[k]
+		if e.err != nil {
+			if !seen[e.err.Error()] {
+				ms.Warnings = append(ms.Warnings, "prediction failed: "+e.err.Error())
+				seen[e.err.Error()] = true
+			}
+			continue
+		}
+		ms.Nominal = append(ms.Nominal, NominalPrediction{
+			From: k.from, To: k.to, Ideal: e.ideal, Realised: e.realised,
+			IdealTrace: e.idealTr, RealisedTrace: e.realTr,
+		})
+	}
+	return ms
+}
+
+// medianPeriod is the median sample period over a step (the log's clock).
+func medianPeriod(tr metrics.Trace, st metrics.Step) float64 {
+	lo, hi := st.Start, st.End
+	if hi-lo < 2 {
+		return math.NaN()
+	}
+	n := min(hi-lo-1, 201)
+	d := make([]float64, n)
+	for i := 0; i < n; i++ {
+		d[i] = tr.Time[lo+i+1] - tr.Time[lo+i]
+	}
+	sort.Float64s(d)
+	return d[n/2]
+}
