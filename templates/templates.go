@@ -15,3 +15,13 @@ var SpecTemplate string
 //
 //go:embed cautions.txt
 var Cautions string
+
+// GainCaution is the short caution printed with every predicted response and
+// designed gain.
+const GainCaution = `CAUTION: a gain computed from a linear model with an infinitely fast loop is
+optimistic. A real bench often starts to overshoot at a clearly lower gain
+than the calculation gives (half to two thirds of it is not unusual, because
+of friction near zero speed and delay in the loop; common practice). Reduce
+the computed gain, try it on the machine with guards and interlocks in place
+and the emergency stop tested, and fine-tune from there. A gain change can
+cause unexpected motion and larger overshoot.`

@@ -1,0 +1,224 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+
+	"github.com/spf13/cobra"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
+)
+
+// predictOutput is the JSON contract of `predict --json`: keys may be added,
+// never renamed.
+type predictOutput struct {
+	Controller model.Controller `json:"controller"`
+	Plant      string           `json:"plant"`
+	Step       struct {
+		From       float64 `json:"from"`
+		To         float64 `json:"to"`
+		DurationS  float64 `json:"duration_s"`
+		SampleS    float64 `json:"sample_period_s"`
+		Realisable bool    `json:"realised_differs"`
+	} `json:"step"`
+	Ideal    predictedMetrics `json:"ideal"`
+	Realised predictedMetrics `json:"realised"`
+	Design   *designOutput    `json:"design,omitempty"`
+	Caution  string           `json:"caution"`
+}
+
+type predictedMetrics struct {
+	Metrics    map[string]metrics.Value `json:"metrics"`
+	Unmeasured map[string]string        `json:"unmeasured,omitempty"`
+}
+
+type designOutput struct {
+	Target      string   `json:"target"` // "damping" or "overshoot_pct"
+	Value       float64  `json:"value"`
+	KpIdeal     *float64 `json:"kp_ideal"`
+	KpRealised  *float64 `json:"kp_realised"`
+	MethodIdeal string   `json:"method_ideal,omitempty"`
+	MethodReal  string   `json:"method_realised,omitempty"`
+	WhyIdeal    string   `json:"why_ideal,omitempty"`
+	WhyRealised string   `json:"why_realised,omitempty"`
+}
+
+func newPredictCmd() *cobra.Command {
+	var specPath string
+	var forDamping, forOvershoot, from, to, duration, dt float64
+	var asJSON bool
+	cmd := &cobra.Command{
+		Use:   "predict --spec FILE [--for-damping Z | --for-overshoot P] [--json]",
+		Short: "Predict the step response from the spec's model, and design a proportional gain",
+		Long: `predict simulates one step of the spec's model twice: ideal (continuous,
+linear, no loop delay) and realised (sampled controller, loop delay, held
+output, saturation, deadband), measures both with the same metric code that
+measures the logs, and prints the metrics. With --for-damping or
+--for-overshoot it also designs the proportional gain that meets the target,
+for the ideal and, when the spec has a loop section, the realised loop.
+
+` + gainCaution,
+		Example: `  stepgate predict --spec vd25.yaml
+  stepgate predict --spec vd25.yaml --for-overshoot 5 --to 25
+  stepgate predict --spec vd25.yaml --for-damping 1 --json`,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, args []string) error {
+			fl := cmd.Flags()
+			if fl.Changed("for-damping") && fl.Changed("for-overshoot") {
+				return usageErr(errors.New("give --for-damping or --for-overshoot, not both"))
+			}
+			spec, err := acceptance.LoadSpec(specPath)
+			if err != nil {
+				return usageErr(err)
+			}
+			if spec.Model == nil {
+				return usageErr(fmt.Errorf("%s: the spec has no model section; see `stepgate spec init`", specPath))
+			}
+			sys, err := model.Build(*spec.Model)
+			if err != nil {
+				return usageErr(fmt.Errorf("%s: model: %w", specPath, err))
+			}
+			if from == to {
+				return usageErr(fmt.Errorf("--from and --to are both %v: no step to predict", from))
+			}
+			if duration == 0 {
+				if duration, err = sys.SuggestedDuration(); err != nil {
+					return usageErr(fmt.Errorf("%s: model: %w", specPath, err))
+				}
+				// Twice the settling horizon, so that the final window of the
+				// metrics lies well inside the settled response.
+				duration *= 2
+			}
+			if dt == 0 {
+				dt = 1e-3
+				if l := spec.Model.Loop; l != nil && l.SamplePeriod > 0 && l.SamplePeriod < dt {
+					dt = l.SamplePeriod
+				}
+			}
+			out := predictOutput{Controller: spec.Model.Controller, Plant: sys.Plant().String(), Caution: gainCaution}
+			out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS, out.Step.Realisable = from, to, duration, dt, sys.Realised()
+			pr, err := sys.Predict(from, to, duration, dt)
+			if err != nil {
+				return usageErr(fmt.Errorf("%s: prediction: %w", specPath, err))
+			}
+			opts := spec.Options()
+			minChange := spec.Steps.MinChange
+			if d := to - from; minChange > abs(d) {
+				minChange = abs(d) / 2
+			}
+			out.Ideal = measurePrediction(pr.Ideal, minChange, opts)
+			out.Realised = measurePrediction(pr.Realised, minChange, opts)
+			if fl.Changed("for-damping") || fl.Changed("for-overshoot") {
+				d := &designOutput{}
+				var target model.Target
+				if fl.Changed("for-damping") {
+					target, d.Target, d.Value = model.DampingTarget(forDamping), "damping", forDamping
+				} else {
+					target, d.Target, d.Value = model.OvershootTarget(forOvershoot), "overshoot_pct", forOvershoot
+				}
+				des, err := sys.DesignGain(target, from, to)
+				if err != nil && des.Ideal == nil && des.Realised == nil {
+					return usageErr(fmt.Errorf("gain design for %s: %w", target, err))
+				}
+				if des.Ideal != nil {
+					k := des.Ideal.Kp
+					d.KpIdeal, d.MethodIdeal = &k, des.Ideal.Method
+				} else {
+					d.WhyIdeal = des.IdealWhy
+				}
+				if des.Realised != nil {
+					k := des.Realised.Kp
+					d.KpRealised, d.MethodReal = &k, des.Realised.Method
+				} else {
+					d.WhyRealised = des.RealisedWhy
+				}
+				out.Design = d
+			}
+			w := cmd.OutOrStdout()
+			if asJSON {
+				enc := json.NewEncoder(w)
+				enc.SetIndent("", "  ")
+				return enc.Encode(out)
+			}
+			printPrediction(w, spec, out)
+			return nil
+		},
+	}
+	fl := cmd.Flags()
+	fl.StringVar(&specPath, "spec", "", "acceptance spec with a model section")
+	fl.Float64Var(&forDamping, "for-damping", 0, "design the proportional gain for this damping ratio ζ")
+	fl.Float64Var(&forOvershoot, "for-overshoot", 0, "design the proportional gain for this overshoot, %")
+	fl.Float64Var(&from, "from", 0, "command before the step")
+	fl.Float64Var(&to, "to", 1, "command after the step")
+	fl.Float64Var(&duration, "duration-s", 0, "simulated time after the step, s (0: long enough to settle)")
+	fl.Float64Var(&dt, "sample-s", 0, "output sample period, s (0: 1 ms or the loop's sample period if shorter)")
+	fl.BoolVar(&asJSON, "json", false, "print JSON")
+	cmd.MarkFlagRequired("spec")
+	return cmd
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+// measurePrediction measures a simulated trace with the metrics package.
+func measurePrediction(tr metrics.Trace, minChange float64, o metrics.Options) predictedMetrics {
+	p := predictedMetrics{Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
+	ms := metrics.Measure(tr, minChange, o)
+	for _, n := range metrics.Names {
+		v := metrics.Unknown("the simulated command has no step")
+		if len(ms) > 0 {
+			v, _ = ms[0].Get(n)
+		}
+		p.Metrics[string(n)] = v
+		if !v.OK {
+			p.Unmeasured[string(n)] = v.Why
+		}
+	}
+	return p
+}
+
+func printPrediction(w io.Writer, spec *acceptance.Spec, out predictOutput) {
+	c := out.Controller
+	fmt.Fprintf(w, "%s rev %s model\n  plant: %s\n  controller: kp %g, ki %g, kd %g\n", spec.SpecID, spec.Revision, out.Plant, c.Kp, c.Ki, c.Kd)
+	fmt.Fprintf(w, "  step %g → %g, %.4g s after the step, sampled every %g s\n\n", out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS)
+	fmt.Fprintf(w, "%-24s %14s %14s\n", "metric", "ideal", "realised")
+	for _, n := range metrics.Names {
+		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.Metrics[string(n)]), fmtValue(out.Realised.Metrics[string(n)]))
+	}
+	if !out.Step.Realisable {
+		fmt.Fprintln(w, "(the spec has no loop or actuator section: the realised loop equals the ideal one)")
+	}
+	if d := out.Design; d != nil {
+		fmt.Fprintf(w, "\ngain for %s = %g:\n", d.Target, d.Value)
+		if d.KpIdeal != nil {
+			fmt.Fprintf(w, "  ideal loop:    kp = %.6g (%s)\n", *d.KpIdeal, d.MethodIdeal)
+		} else {
+			fmt.Fprintf(w, "  ideal loop:    none: %s\n", d.WhyIdeal)
+		}
+		if d.KpRealised != nil {
+			fmt.Fprintf(w, "  realised loop: kp = %.6g (%s)\n", *d.KpRealised, d.MethodReal)
+		} else if d.WhyRealised != "" {
+			fmt.Fprintf(w, "  realised loop: none: %s\n", d.WhyRealised)
+		}
+	}
+	fmt.Fprintf(w, "\n%s\n", out.Caution)
+}
+
+func fmtValue(v metrics.Value) string {
+	if !v.OK {
+		return "null"
+	}
+	return fmt.Sprintf("%.6g", v.V)
+}
+
+// gainCaution is printed with every prediction and design.
+var gainCaution = templates.GainCaution
