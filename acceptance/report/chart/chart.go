@@ -1,0 +1,388 @@
+package chart
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// Kind classifies a curve; it sets the colour and the legend entry.
+type Kind int
+
+// The curve kinds, in drawing order: predictions are drawn last, on top.
+const (
+	StepPass    Kind = iota // a recorded step that passed
+	StepInvalid             // a recorded step whose data could not show pass or fail
+	StepFail                // a recorded step that failed
+	Prediction              // the model's predicted step
+)
+
+// Curve is one step response normalised to its step: T in seconds from the
+// step instant, Y = (response − from)/(to − from), so 0 is the level before
+// the step and 1 the commanded level after it.
+type Curve struct {
+	Kind  Kind
+	Label string // "unit, step k" or "prediction from → to"
+	T, Y  []float64
+}
+
+// Overlay is a set of normalised curves that share one time window and one
+// settling band: the content of one chart.
+type Overlay struct {
+	// Window is the time shown after the step instant, in seconds.
+	Window float64
+	// Band is the settling band half-width as a fraction of the step size.
+	Band float64
+	// YMin and YMax bound the normalised axis. Curves outside are clipped
+	// at the frame; Clipped says whether any was.
+	YMin, YMax float64
+	Clipped    bool
+	// Curves in drawing order: passed, invalid, failed, predictions.
+	Curves []Curve
+	// PredictionKind is "realised" or "ideal" when predictions are drawn.
+	PredictionKind string
+
+	// Steps counts the unit steps considered; Shown those drawn. Steps of
+	// units whose record was not kept are neither drawn nor skipped.
+	Steps, Shown int
+	// NoRecord counts steps of units whose record was not kept.
+	NoRecord int
+	// Thinned counts steps left out to keep the chart readable (beyond
+	// MaxCurves; passed steps are left out first).
+	Thinned int
+	// Skipped lists the steps that had a record but could not be drawn, with
+	// the reason, in report order.
+	Skipped []string
+}
+
+// Limits of one chart. Beyond MaxCurves unit curves a chart is unreadable
+// and the file grows without telling the reader more; failed and invalid
+// steps are kept first.
+const (
+	MaxCurves      = 600 // most unit curves in one chart
+	PointsFew      = 300 // points per curve when the chart has few curves
+	PointsMany     = 120 // points per curve when it has more than FewCurves
+	FewCurves      = 60
+	windowOverSett = 1.5 // window as a multiple of the settling-time limit
+)
+
+// StartIndex returns the sample of tr nearest to the step instant startS
+// (seconds on the record's clock). It fails when the nearest sample is more
+// than half a sample interval away, which means the step does not belong to
+// this record.
+func StartIndex(tr *metrics.Trace, startS float64) (int, error) {
+	n := tr.Len()
+	if n == 0 {
+		return 0, fmt.Errorf("record has no samples")
+	}
+	i := sort.SearchFloat64s(tr.Time, startS)
+	best := i
+	if i >= n || (i > 0 && startS-tr.Time[i-1] < tr.Time[i]-startS) {
+		best = i - 1
+	}
+	if n == 1 {
+		best = 0
+	}
+	spacing := 0.0
+	switch {
+	case best+1 < n:
+		spacing = tr.Time[best+1] - tr.Time[best]
+	case best > 0:
+		spacing = tr.Time[best] - tr.Time[best-1]
+	}
+	if d := math.Abs(tr.Time[best] - startS); d > spacing/2+1e-9*math.Max(1, math.Abs(startS)) {
+		return 0, fmt.Errorf("no sample at the step instant t = %g s (record spans %g s to %g s)",
+			startS, tr.Time[0], tr.Time[n-1])
+	}
+	return best, nil
+}
+
+// CommandStart returns the first sample of a simulated record at which the
+// command is nearer to the level after the step, to, than to the level
+// before it, from: the step instant. It is 0 when the record starts at the
+// new level.
+func CommandStart(tr *metrics.Trace, from, to float64) (int, error) {
+	for i, c := range tr.Command {
+		if math.Abs(c-to) < math.Abs(c-from) {
+			return i, nil
+		}
+	}
+	return 0, fmt.Errorf("command never reaches the step level %g", to)
+}
+
+// Normalise returns the samples start..end-1 of tr as time from the step
+// instant and response normalised to the step from → to, up to the first
+// sample past window seconds (so that a line reaches the frame).
+func Normalise(tr *metrics.Trace, start, end int, from, to, window float64) (t, y []float64, err error) {
+	size := to - from
+	if size == 0 || math.IsNaN(size) || math.IsInf(size, 0) {
+		return nil, nil, fmt.Errorf("step from %g to %g has no size to normalise by", from, to)
+	}
+	if end > tr.Len() {
+		end = tr.Len()
+	}
+	if start < 0 || start >= end {
+		return nil, nil, fmt.Errorf("step samples %d..%d lie outside the record of %d samples", start, end-1, tr.Len())
+	}
+	t0 := tr.Time[start]
+	for i := start; i < end; i++ {
+		dt := tr.Time[i] - t0
+		t = append(t, dt)
+		v := (tr.Response[i] - from) / size
+		if v == 0 {
+			v = 0 // no negative zero
+		}
+		y = append(y, v)
+		if dt > window {
+			break
+		}
+	}
+	return t, y, nil
+}
+
+// Downsample reduces a curve to at most n points (n ≥ 4). It keeps the
+// first and the last sample, splits the others into (n − 2)/2 runs of
+// consecutive samples and keeps the lowest and the highest of each run in
+// time order, so that peaks and overshoot survive.
+func Downsample(t, y []float64, n int) ([]float64, []float64) {
+	if n < 4 {
+		n = 4
+	}
+	if len(t) <= n {
+		return append([]float64(nil), t...), append([]float64(nil), y...)
+	}
+	buckets := (n - 2) / 2
+	ot := make([]float64, 0, n)
+	oy := make([]float64, 0, n)
+	push := func(i int) {
+		if k := len(ot); k > 0 && ot[k-1] == t[i] && oy[k-1] == y[i] {
+			return
+		}
+		ot = append(ot, t[i])
+		oy = append(oy, y[i])
+	}
+	push(0)
+	for b := 0; b < buckets; b++ {
+		lo := 1 + b*(len(t)-2)/buckets
+		hi := 1 + (b+1)*(len(t)-2)/buckets
+		if lo >= hi {
+			continue
+		}
+		imin, imax := lo, lo
+		for i := lo; i < hi; i++ {
+			if y[i] < y[imin] {
+				imin = i
+			}
+			if y[i] > y[imax] {
+				imax = i
+			}
+		}
+		if imin > imax {
+			imin, imax = imax, imin
+		}
+		push(imin)
+		push(imax)
+	}
+	push(len(t) - 1)
+	return ot, oy
+}
+
+// SettlingBand returns the settling band half-width, as a fraction of the
+// step size, that the batch was measured with.
+func SettlingBand(b *acceptance.Batch) float64 {
+	if b.SpecDoc != nil && b.SpecDoc.Metrics.SettlingBandPct > 0 {
+		return b.SpecDoc.Metrics.SettlingBandPct / 100
+	}
+	return metrics.DefaultOptions().Band
+}
+
+// ForBatch lays out every step of every unit whose record was kept, and the
+// model's predictions when the batch has a model.
+func ForBatch(b *acceptance.Batch) *Overlay {
+	idx := make([]int, len(b.Units))
+	for i := range idx {
+		idx[i] = i
+	}
+	return build(b, idx)
+}
+
+// ForUnit lays out the steps of unit number i of the batch (an index into
+// b.Units) with the model's predictions.
+func ForUnit(b *acceptance.Batch, i int) *Overlay {
+	return build(b, []int{i})
+}
+
+// segment is one step's slice of a record, before normalisation.
+type segment struct {
+	kind       Kind
+	label      string
+	tr         *metrics.Trace
+	start, end int
+	from, to   float64
+	duration   float64
+}
+
+func build(b *acceptance.Batch, units []int) *Overlay {
+	o := &Overlay{Band: SettlingBand(b)}
+	var segs []segment
+	for _, ui := range units {
+		u := &b.Units[ui]
+		for si, s := range u.Steps {
+			o.Steps++
+			if u.Trace == nil || u.Trace.Len() == 0 {
+				o.NoRecord++
+				continue
+			}
+			label := fmt.Sprintf("%s, step %d", u.Unit, s.Index)
+			start, err := StartIndex(u.Trace, s.StartS)
+			if err != nil {
+				o.Skipped = append(o.Skipped, label+": "+err.Error())
+				continue
+			}
+			end := u.Trace.Len()
+			if si+1 < len(u.Steps) {
+				if e, err := StartIndex(u.Trace, u.Steps[si+1].StartS); err == nil && e > start {
+					end = e
+				}
+			}
+			if s.To == s.From {
+				o.Skipped = append(o.Skipped, label+": the step has no size to normalise by")
+				continue
+			}
+			segs = append(segs, segment{
+				kind: kindOf(s.Verdict), label: label, tr: u.Trace,
+				start: start, end: end, from: s.From, to: s.To,
+				duration: u.Trace.Time[end-1] - u.Trace.Time[start],
+			})
+		}
+	}
+	segs = thin(segs, o)
+	preds := predictionSegments(b, o)
+
+	longest := 0.0
+	for _, s := range segs {
+		longest = math.Max(longest, s.duration)
+	}
+	for _, s := range preds {
+		longest = math.Max(longest, s.duration)
+	}
+	o.Window = longest
+	if l, ok := b.Limits[string(metrics.SettlingTime)]; ok && l.Max != nil && *l.Max > 0 {
+		w := windowOverSett * *l.Max
+		if longest == 0 || w < longest {
+			o.Window = w
+		}
+	}
+	if o.Window <= 0 {
+		o.Window = 1
+	}
+
+	points := PointsFew
+	if len(segs) > FewCurves {
+		points = PointsMany
+	}
+	ymin, ymax := math.Inf(1), math.Inf(-1)
+	for _, group := range [][]segment{segs, preds} {
+		for _, s := range group {
+			t, y, err := Normalise(s.tr, s.start, s.end, s.from, s.to, o.Window)
+			if err != nil {
+				o.Skipped = append(o.Skipped, s.label+": "+err.Error())
+				continue
+			}
+			t, y = Downsample(t, y, points)
+			for i := range y {
+				if t[i] <= o.Window {
+					ymin = math.Min(ymin, y[i])
+					ymax = math.Max(ymax, y[i])
+				}
+			}
+			o.Curves = append(o.Curves, Curve{Kind: s.kind, Label: s.label, T: t, Y: y})
+			if s.kind != Prediction {
+				o.Shown++
+			}
+		}
+	}
+	sort.SliceStable(o.Curves, func(i, j int) bool { return o.Curves[i].Kind < o.Curves[j].Kind })
+	o.YMin, o.YMax = -0.1, 1.25
+	if !math.IsInf(ymin, 0) {
+		o.YMin = math.Max(-1, math.Min(o.YMin, ymin-0.05))
+		o.YMax = math.Min(2.5, math.Max(o.YMax, ymax+0.05))
+		o.Clipped = ymin < o.YMin || ymax > o.YMax
+	}
+	return o
+}
+
+func kindOf(v acceptance.Verdict) Kind {
+	switch v {
+	case acceptance.Pass:
+		return StepPass
+	case acceptance.Fail:
+		return StepFail
+	}
+	return StepInvalid
+}
+
+// thin keeps at most MaxCurves segments: every failed and invalid step
+// first, then passed steps evenly spread over the batch.
+func thin(segs []segment, o *Overlay) []segment {
+	if len(segs) <= MaxCurves {
+		return segs
+	}
+	var bad, good []segment
+	for _, s := range segs {
+		if s.kind == StepPass {
+			good = append(good, s)
+		} else {
+			bad = append(bad, s)
+		}
+	}
+	if len(bad) >= MaxCurves {
+		o.Thinned = len(good) + len(bad) - MaxCurves
+		return bad[:MaxCurves]
+	}
+	room := MaxCurves - len(bad)
+	kept := make([]segment, 0, MaxCurves)
+	for k := 0; k < room; k++ {
+		kept = append(kept, good[k*len(good)/room])
+	}
+	o.Thinned = len(good) - room
+	return append(kept, bad...)
+}
+
+// predictionSegments returns the model's nominal steps, realised when the
+// model says the realised loop applies, else ideal. A nominal step without
+// a simulated record of that kind is not drawn.
+func predictionSegments(b *acceptance.Batch, o *Overlay) []segment {
+	if b.Model == nil {
+		return nil
+	}
+	var out []segment
+	for _, n := range b.Model.Nominal {
+		tr, kind := n.IdealTrace, "ideal"
+		if b.Model.Realised {
+			tr, kind = n.RealisedTrace, "realised"
+		}
+		if tr == nil || tr.Len() == 0 {
+			continue
+		}
+		label := fmt.Sprintf("prediction %g → %g", n.From, n.To)
+		if n.To == n.From {
+			o.Skipped = append(o.Skipped, label+": the step has no size to normalise by")
+			continue
+		}
+		start, err := CommandStart(tr, n.From, n.To)
+		if err != nil {
+			o.Skipped = append(o.Skipped, label+": "+err.Error())
+			continue
+		}
+		o.PredictionKind = kind
+		out = append(out, segment{
+			kind: Prediction, label: label, tr: tr, start: start, end: tr.Len(),
+			from: n.From, to: n.To, duration: tr.Time[tr.Len()-1] - tr.Time[start],
+		})
+	}
+	return out
+}

@@ -1,0 +1,240 @@
+package pdfreport
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"math"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// The test batch is built from the closed-form second-order step response
+// y(t) = G·[1 − e^(−σt)(cos ωd t + (σ/ωd) sin ωd t)], σ = ζωn,
+// ωd = ωn√(1−ζ²) (K. Ogata, Modern Control Engineering, 5th ed., §5-3), and
+// its metrics from the closed-form relations of the same section: peak time
+// π/ωd, overshoot exp(−πζ/√(1−ζ²)), rise time (π − β)/ωd with
+// β = arctan(ωd/σ) (the 0–100 % rise time), settling time 4/σ (2 %
+// envelope approximation). The writers do not measure; these numbers only have to be
+// the kind a batch carries.
+
+func ptr(v float64) *float64 { return &v }
+
+func digest(s string) string {
+	h := sha256.Sum256([]byte(s))
+	return hex.EncodeToString(h[:])
+}
+
+// secondOrder returns a record of steps of the closed loop (ζ, ωn) at the
+// given instants, sampled every dt, with command levels levels[k] from
+// steps[k] on.
+func secondOrder(zeta, wn, dt, end float64, steps, levels []float64) *metrics.Trace {
+	tr := &metrics.Trace{}
+	sigma := zeta * wn
+	wd := wn * math.Sqrt(1-zeta*zeta)
+	for t := 0.0; t <= end+1e-12; t += dt {
+		cmd, y := 0.0, 0.0
+		prev := 0.0
+		for k, ts := range steps {
+			if t+1e-12 >= ts {
+				cmd = levels[k]
+				tau := t - ts
+				y += (levels[k] - prev) * (1 - math.Exp(-sigma*tau)*(math.Cos(wd*tau)+sigma/wd*math.Sin(wd*tau)))
+			}
+			prev = levels[k]
+		}
+		tr.Time = append(tr.Time, t)
+		tr.Command = append(tr.Command, cmd)
+		tr.Response = append(tr.Response, y)
+	}
+	return tr
+}
+
+// closedFormMetrics returns the metrics of one step of the closed loop.
+func closedFormMetrics(zeta, wn, from, to float64) map[string]metrics.Value {
+	sigma := zeta * wn
+	wd := wn * math.Sqrt(1-zeta*zeta)
+	mp := math.Exp(-math.Pi * zeta / math.Sqrt(1-zeta*zeta))
+	size := to - from
+	beta := math.Atan2(wd, sigma)
+	return map[string]metrics.Value{
+		string(metrics.StepSize):            metrics.Known(size),
+		string(metrics.InitialValue):        metrics.Known(from),
+		string(metrics.FinalValue):          metrics.Known(to),
+		string(metrics.DeadTime):            metrics.Known(0),
+		string(metrics.RiseTime):            metrics.Known((math.Pi - beta) / wd),
+		string(metrics.PeakValue):           metrics.Known(to + mp*size),
+		string(metrics.PeakTime):            metrics.Known(math.Pi / wd),
+		string(metrics.Overshoot):           metrics.Known(100 * mp),
+		string(metrics.SettlingTime):        metrics.Known(4 / sigma),
+		string(metrics.SteadyStateError):    metrics.Known(0),
+		string(metrics.SteadyStateErrorPct): metrics.Known(0),
+	}
+}
+
+// judge applies the limits to a step's metrics, the way the acceptance
+// package reports it, so the fixture carries consistent checks.
+func judge(limits map[string]acceptance.Limit, m map[string]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []string) {
+	verdict := acceptance.Pass
+	var reasons []string
+	var checks []acceptance.Check
+	for _, name := range metrics.Names {
+		l, ok := limits[string(name)]
+		if !ok {
+			continue
+		}
+		v := m[string(name)]
+		c := acceptance.Check{Metric: string(name), Min: l.Min, Max: l.Max, Verdict: acceptance.Pass}
+		switch {
+		case !v.OK:
+			c.Verdict = acceptance.Invalid
+			c.Reason = "not measured: " + v.Why
+			if verdict == acceptance.Pass {
+				verdict = acceptance.Invalid
+			}
+		case l.Max != nil && v.V > *l.Max:
+			c.Value = ptr(v.V)
+			c.Verdict = acceptance.Fail
+			c.Reason = fmt.Sprintf("%s %.4g above max %g", name, v.V, *l.Max)
+			verdict = acceptance.Fail
+		case l.Min != nil && v.V < *l.Min:
+			c.Value = ptr(v.V)
+			c.Verdict = acceptance.Fail
+			c.Reason = fmt.Sprintf("%s %.4g below min %g", name, v.V, *l.Min)
+			verdict = acceptance.Fail
+		default:
+			c.Value = ptr(v.V)
+		}
+		if c.Reason != "" {
+			reasons = append(reasons, c.Reason)
+		}
+		checks = append(checks, c)
+	}
+	return checks, verdict, reasons
+}
+
+type unitSpec struct {
+	serial, file string
+	zeta, wn     float64
+	keepTrace    bool
+	unmeasured   string // metric to leave unknown
+}
+
+// testBatch builds a batch of five units: two pass, one fails on
+// overshoot, one is an unreadable file, one has an unmeasured settling time;
+// the model predicts the nominal step 0 → 10 mm.
+func testBatch() *acceptance.Batch {
+	limits := map[string]acceptance.Limit{
+		string(metrics.Overshoot):    {Max: ptr(15)},
+		string(metrics.RiseTime):     {Min: ptr(0.05), Max: ptr(0.6)},
+		string(metrics.SettlingTime): {Max: ptr(1.6)},
+		string(metrics.FinalValue):   {Min: ptr(9.9), Max: ptr(10.1)},
+	}
+	spec := &acceptance.Spec{
+		SpecID: "ACT-25", Revision: "C", Title: "Linear actuator VD-25, end-of-line step test",
+		ResponseUnit: "mm", Limits: limits, Source: "/specs/act-25.yaml", SHA256: digest("spec ACT-25 C"),
+		Report: acceptance.ReportInfo{
+			Company: "Example Motion Works", Site: "Line 3 test bay", Address: "1 Test Street",
+			PreparedBy: acceptance.Signatory{Name: "A. Engineer", Role: "Test engineer"},
+			ApprovedBy: acceptance.Signatory{Name: "Q. Lead", Role: "QA lead"},
+		},
+		Model: &model.Config{ReferenceTest: &model.ReferenceTest{Gain: 1, StaticGain: 1, Damping: 0.6, NaturalFrequency: 5}},
+	}
+	b := &acceptance.Batch{
+		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
+		Spec:       acceptance.SpecInfo{SpecID: spec.SpecID, Revision: spec.Revision, SHA256: spec.SHA256, Title: spec.Title},
+		Limits:     limits,
+		ReportDate: "2024-05-17",
+		SpecDoc:    spec,
+	}
+	predM := closedFormMetrics(0.6, 5, 0, 10)
+	b.Model = &acceptance.ModelSummary{
+		Config: *spec.Model, Plant: "25/(s² + 6 s)", Realised: false,
+		Nominal: []acceptance.NominalPrediction{{
+			From: 0, To: 10,
+			Ideal:      acceptance.Prediction{Kind: "ideal", Metrics: predM},
+			Realised:   acceptance.Prediction{Kind: "realised", Metrics: predM},
+			IdealTrace: secondOrder(0.6, 5, 0.002, 3, []float64{0}, []float64{10}),
+		}},
+	}
+	units := []unitSpec{
+		{serial: "SN-1001", file: "logs/SN-1001.csv", zeta: 0.6, wn: 5, keepTrace: true},
+		{serial: "SN-1002-ζ±µ→", file: "logs/SN-1002.csv", zeta: 0.25, wn: 6, keepTrace: true},
+		{serial: "SN-1003", file: "logs/SN-1003.csv", zeta: 0.7, wn: 6, keepTrace: true},
+		{serial: "SN-1005\x07", file: "logs/SN-1005.csv", zeta: 0.55, wn: 5, keepTrace: true, unmeasured: string(metrics.SettlingTime)},
+	}
+	for _, us := range units {
+		tr := secondOrder(us.zeta, us.wn, 0.002, 6, []float64{0.5, 3.5}, []float64{10, 0})
+		u := acceptance.UnitResult{
+			Unit: us.serial, File: us.file, SHA256: digest(us.file), Samples: tr.Len(),
+			Metadata: map[string]string{"rig": "EOL-3", "operator": "B. Tech"},
+			Verdict:  acceptance.Pass,
+		}
+		for k, st := range []struct{ at, from, to float64 }{{0.5, 0, 10}, {3.5, 10, 0}} {
+			m := closedFormMetrics(us.zeta, us.wn, st.from, st.to)
+			unm := map[string]string{}
+			if us.unmeasured != "" && k == 1 {
+				m[us.unmeasured] = metrics.Unknown("the record ends before the response stays in the band")
+				unm[us.unmeasured] = m[us.unmeasured].Why
+			}
+			lim := map[string]acceptance.Limit{}
+			for name, l := range limits {
+				lim[name] = l
+			}
+			if st.to < st.from { // the down-step: final value limits apply to the up-step only
+				delete(lim, string(metrics.FinalValue))
+			}
+			checks, v, reasons := judge(lim, m)
+			s := acceptance.StepResult{
+				Index: k + 1, StartS: st.at, From: st.from, To: st.to, Verdict: v, Reasons: reasons,
+				Metrics: m, Unmeasured: unm, Checks: checks,
+			}
+			if st.to == 10 {
+				s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: predM}
+				s.Gap = map[string]*float64{}
+				for name, pv := range predM {
+					if mv := m[name]; mv.OK && pv.OK {
+						s.Gap[name] = ptr(mv.V - pv.V)
+					}
+				}
+			}
+			u.Steps = append(u.Steps, s)
+			for _, r := range reasons {
+				u.Reasons = append(u.Reasons, fmt.Sprintf("step %d: %s", k+1, r))
+			}
+			if v == acceptance.Fail || (v == acceptance.Invalid && u.Verdict == acceptance.Pass) {
+				u.Verdict = v
+			}
+		}
+		if us.keepTrace {
+			u.Trace = tr
+		}
+		if us.zeta < 0.5 {
+			u.Fit = &acceptance.Fit{
+				Step: 1, StaticGain: metrics.Known(1), Damping: metrics.Known(us.zeta),
+				NaturalFrequency: metrics.Known(us.wn), DeadTime: metrics.Known(0), RMSResidual: metrics.Known(0.01),
+			}
+		}
+		b.Units = append(b.Units, u)
+	}
+	// An unreadable log: an invalid unit with no steps.
+	bad := acceptance.UnitResult{
+		Unit: "SN-1004", File: "logs/SN-1004.csv", SHA256: digest("SN-1004"), Verdict: acceptance.Invalid,
+		Reasons: []string{`logs/SN-1004.csv:12:3: cannot read "1,2.3" as a number in column "position"; set log.decimal_comma: true if the rig writes decimal commas`},
+	}
+	b.Units = append(b.Units[:3], append([]acceptance.UnitResult{bad}, b.Units[3:]...)...)
+	for _, u := range b.Units {
+		b.Summary.Units++
+		switch u.Verdict {
+		case acceptance.Pass:
+			b.Summary.Pass++
+		case acceptance.Fail:
+			b.Summary.Fail++
+		default:
+			b.Summary.Invalid++
+		}
+	}
+	return b
+}

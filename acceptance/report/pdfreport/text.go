@@ -1,0 +1,115 @@
+package pdfreport
+
+import (
+	"strconv"
+	"strings"
+	"sync"
+	"unicode"
+	"unicode/utf8"
+
+	"codeberg.org/go-fonts/liberation/liberationsansbold"
+	"codeberg.org/go-fonts/liberation/liberationsansregular"
+	"golang.org/x/image/font/sfnt"
+)
+
+// fontFamily is the name under which the embedded font is added to the
+// document. Liberation Sans (SIL Open Font License) covers Latin, Greek and
+// Cyrillic, the arrows and the mathematical signs the report prints.
+const fontFamily = "LiberationSans"
+
+var (
+	glyphsOnce sync.Once
+	glyphsFont *sfnt.Font
+)
+
+// HasGlyph reports whether the embedded report font can draw r in both its
+// regular and bold faces.
+func HasGlyph(r rune) bool {
+	glyphsOnce.Do(func() {
+		// The font ships inside a Go package; it always parses.
+		glyphsFont, _ = sfnt.Parse(liberationsansregular.TTF)
+	})
+	if glyphsFont == nil || r > 0xFFFF {
+		return false
+	}
+	var buf sfnt.Buffer
+	i, err := glyphsFont.GlyphIndex(&buf, r)
+	return err == nil && i != 0 && hasBold(r)
+}
+
+var (
+	boldOnce sync.Once
+	boldFont *sfnt.Font
+)
+
+func hasBold(r rune) bool {
+	boldOnce.Do(func() { boldFont, _ = sfnt.Parse(liberationsansbold.TTF) })
+	if boldFont == nil {
+		return false
+	}
+	var buf sfnt.Buffer
+	i, err := boldFont.GlyphIndex(&buf, r)
+	return err == nil && i != 0
+}
+
+// Clean makes text from a log or a spec safe to print: it removes control
+// and invisible format characters (including the bidirectional overrides
+// that could make a serial read differently from what it is), turns tabs and
+// line breaks into spaces, and replaces bytes that are not UTF-8 and
+// characters the embedded font cannot draw with '?', so that what is printed
+// is never silently different from what was read.
+func Clean(s string) string {
+	clean := true
+	for _, r := range s {
+		if r < 0x20 || r == utf8.RuneError || r >= 0x7F {
+			clean = false
+			break
+		}
+	}
+	if clean {
+		return s
+	}
+	var b strings.Builder
+	for _, r := range s {
+		switch {
+		case r == '\t' || r == '\n' || r == '\r' || r == '\v' || r == '\f':
+			b.WriteByte(' ')
+		case unicode.IsControl(r) || unicode.Is(unicode.Cf, r):
+			// dropped
+		case r == utf8.RuneError || !HasGlyph(r):
+			b.WriteByte('?')
+		default:
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
+}
+
+// formatFloats joins numbers for a cache key.
+func formatFloats(v []float64) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = strconv.FormatFloat(x, 'g', -1, 64)
+	}
+	return strings.Join(parts, ",")
+}
+
+// Num formats a measured number for a table: four significant digits,
+// without an exponent between 0.001 and 1,000,000, and a plain "0" for zero.
+func Num(v float64) string {
+	if v == 0 {
+		return "0"
+	}
+	a := v
+	if a < 0 {
+		a = -a
+	}
+	if a < 1e-3 || a >= 1e6 {
+		return strconv.FormatFloat(v, 'e', 3, 64)
+	}
+	s := strconv.FormatFloat(v, 'g', 4, 64)
+	if strings.ContainsAny(s, "eE") {
+		s = strconv.FormatFloat(v, 'f', 0, 64)
+	}
+	return s
+}
