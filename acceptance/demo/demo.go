@@ -18,7 +18,9 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strconv"
+	"sync"
 	"time"
 )
 
@@ -79,9 +81,27 @@ func Units(n int) []Unit {
 	return us
 }
 
-// Write writes the demo spec to dir/spec.yaml and n logs to dir/logs, and
-// returns the spec path and the logs directory.
-func Write(dir string, n int) (specPath, logDir string, err error) {
+// Options size the generated line.
+type Options struct {
+	Units    int     // number of units (logs)
+	Duration float64 // seconds logged per unit; 0 means 3.5 (two steps)
+}
+
+// DefaultDuration is the record length of a demo log: a hold, the out step
+// and the back step.
+const DefaultDuration = 3.5
+
+// Write writes the demo spec to dir/spec.yaml and one log per unit to
+// dir/logs, and returns the spec path and the logs directory. Logs are
+// written concurrently, one worker per core; their content does not depend
+// on the order.
+func Write(dir string, o Options) (specPath, logDir string, err error) {
+	if o.Duration == 0 {
+		o.Duration = DefaultDuration
+	}
+	if o.Duration < 2 || o.Duration > 600 {
+		return "", "", fmt.Errorf("demo: duration %g s: want 2 to 600 s", o.Duration)
+	}
 	logDir = filepath.Join(dir, "logs")
 	if err := os.MkdirAll(logDir, 0o755); err != nil {
 		return "", "", fmt.Errorf("demo: %w", err)
@@ -90,17 +110,53 @@ func Write(dir string, n int) (specPath, logDir string, err error) {
 	if err := os.WriteFile(specPath, []byte(Spec), 0o644); err != nil {
 		return "", "", fmt.Errorf("demo: %w", err)
 	}
-	for _, u := range Units(n) {
-		p := filepath.Join(logDir, u.Serial+".csv")
-		if err := writeLog(p, u, 3.5); err != nil {
-			return "", "", err
+	units := Units(o.Units)
+	jobs := make(chan int)
+	errs := make([]error, len(units))
+	var wg sync.WaitGroup
+	for w := 0; w < runtime.NumCPU(); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range jobs {
+				u := units[i]
+				errs[i] = writeLog(filepath.Join(logDir, u.Serial+".csv"), u, o.Duration)
+			}
+		}()
+	}
+	for i := range units {
+		jobs <- i
+	}
+	close(jobs)
+	wg.Wait()
+	for _, e := range errs {
+		if e != nil {
+			return "", "", e
 		}
 	}
 	return specPath, logDir, nil
 }
 
-// Simulate runs unit u through the demo's step test (hold, out step to
-// stroke, hold, back step to 0) for duration seconds and returns the logged
+// command is the test plan: hold at 0, then a move every moveTime seconds
+// from hold on, alternating between stroke and 0, as long as the move still
+// has moveTime to settle before the record ends.
+func command(t, duration float64) float64 {
+	if t < hold {
+		return 0
+	}
+	k := int((t - hold) / moveTime)
+	last := int((duration-hold)/moveTime+1e-9) - 1 // index of the last move
+	if k > last {
+		k = last
+	}
+	if k%2 == 0 {
+		return stroke
+	}
+	return 0
+}
+
+// Simulate runs unit u through the demo's step test (hold, then out and back
+// steps every moveTime seconds, see command) for duration seconds and returns the logged
 // time, command, position (quantised) and drive effort.
 func Simulate(u Unit, duration float64) (t, cmd, pos, eff []float64) {
 	rng := rand.New(rand.NewPCG(uint64(len(u.Serial)), hashString(u.Serial)))
@@ -113,10 +169,7 @@ func Simulate(u Unit, duration float64) (t, cmd, pos, eff []float64) {
 	qi := 0
 	for k := 0; k < n; k++ {
 		tk := float64(k) / logRate
-		r := 0.0
-		if tk >= hold && tk < hold+moveTime {
-			r = stroke
-		}
+		r := command(tk, duration)
 		meas := math.Round((x+u.Noise*encoderStep*rng.NormFloat64())/encoderStep) * encoderStep
 		// The controller samples at the log rate and computes its output.
 		out := kp * (r - meas)

@@ -1,0 +1,180 @@
+// Command stepgate-perf measures stepgate's batch throughput and memory at
+// production scale and prints the figures the README's Performance section
+// quotes.
+//
+// For each batch size it generates the invented demo line (three steps at
+// 1 kHz over 6 s per unit, about 18,000 rows per file), then times
+//
+//   - the floor: a bare read-and-parse of the same files with the same
+//     reader and one worker per core, every numeric field parsed and nothing
+//     else done;
+//   - the full run: `stepgate run` as a separate process, reports included,
+//     its peak resident memory taken from the kernel's rusage.
+//
+// It prints throughput (MB/s, units/s), the full run's share of the floor's
+// throughput, the peak memory, and the growth of run time from the middle to
+// the largest batch against the growth in samples.
+//
+// Usage:
+//
+//	go run ./cmd/stepgate-perf -sizes 1000,5000,20000 -dir /tmp/stepgate-perf
+package main
+
+import (
+	"flag"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"sync"
+	"sync/atomic"
+	"syscall"
+	"time"
+
+	"github.com/stepgate/stepgate/acceptance/demo"
+	"github.com/stepgate/stepgate/acceptance/rigdata"
+)
+
+func main() {
+	sizes := flag.String("sizes", "1000,5000,20000", "comma-separated batch sizes (units)")
+	dir := flag.String("dir", filepath.Join(os.TempDir(), "stepgate-perf"), "working directory for generated logs and reports")
+	duration := flag.Float64("duration-s", 6, "seconds logged per unit")
+	keep := flag.Bool("keep", false, "keep the generated logs")
+	flag.Parse()
+	if err := run(*sizes, *dir, *duration, *keep); err != nil {
+		fmt.Fprintln(os.Stderr, "stepgate-perf:", err)
+		os.Exit(1)
+	}
+}
+
+type result struct {
+	units              int
+	bytes              int64
+	rows               int64
+	floor, full        time.Duration
+	peakRSS            int64 // bytes
+	exitCode           int
+	floorMBs, fullMBs  float64
+	fullUnitsPerSecond float64
+}
+
+func run(sizesFlag, dir string, duration float64, keep bool) error {
+	var sizes []int
+	for _, s := range strings.Split(sizesFlag, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(s))
+		if err != nil || n < 1 {
+			return fmt.Errorf("-sizes: %q is not a positive whole number", s)
+		}
+		sizes = append(sizes, n)
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	bin := filepath.Join(dir, "stepgate")
+	build := exec.Command("go", "build", "-o", bin, "./cmd/stepgate")
+	build.Stdout, build.Stderr = os.Stderr, os.Stderr
+	if err := build.Run(); err != nil {
+		return fmt.Errorf("building stepgate: %w", err)
+	}
+	fmt.Printf("machine: %d cores (GOMAXPROCS %d), %s/%s, %s\n", runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.GOOS, runtime.GOARCH, runtime.Version())
+	var results []result
+	for _, n := range sizes {
+		work := filepath.Join(dir, fmt.Sprintf("units-%d", n))
+		os.RemoveAll(work)
+		t0 := time.Now()
+		specPath, logDir, err := demo.Write(work, demo.Options{Units: n, Duration: duration})
+		if err != nil {
+			return err
+		}
+		fmt.Printf("generated %d logs in %.1f s\n", n, time.Since(t0).Seconds())
+		r := result{units: n}
+		files, err := rigdata.FindLogs([]string{logDir}, nil)
+		if err != nil {
+			return err
+		}
+		// Warm the page cache once so both measurements read from memory.
+		if _, _, err := floor(files, specPath); err != nil {
+			return err
+		}
+		t0 = time.Now()
+		r.bytes, r.rows, err = floor(files, specPath)
+		if err != nil {
+			return err
+		}
+		r.floor = time.Since(t0)
+
+		out := filepath.Join(work, "report")
+		cmd := exec.Command(bin, "run", "--quiet", "--spec", specPath, "--out", out, "--report-date", "2026-12-01", logDir)
+		cmd.Stderr = os.Stderr
+		t0 = time.Now()
+		err = cmd.Run()
+		r.full = time.Since(t0)
+		if cmd.ProcessState == nil {
+			return fmt.Errorf("stepgate run: %w", err)
+		}
+		r.exitCode = cmd.ProcessState.ExitCode()
+		if r.exitCode != 0 && r.exitCode != 1 {
+			return fmt.Errorf("stepgate run exited %d", r.exitCode)
+		}
+		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+			r.peakRSS = ru.Maxrss * 1024 // kilobytes on Linux
+		}
+		mb := float64(r.bytes) / 1e6
+		r.floorMBs = mb / r.floor.Seconds()
+		r.fullMBs = mb / r.full.Seconds()
+		r.fullUnitsPerSecond = float64(n) / r.full.Seconds()
+		results = append(results, r)
+		fmt.Printf("%d units: %.0f MB, %d rows; floor %.2f s, full run %.2f s, peak %.0f MB\n",
+			n, mb, r.rows, r.floor.Seconds(), r.full.Seconds(), float64(r.peakRSS)/1e6)
+		if !keep {
+			os.RemoveAll(filepath.Join(work, "logs"))
+		}
+	}
+
+	fmt.Println()
+	fmt.Printf("%8s %9s %12s %12s %11s %10s %10s %10s\n", "units", "MB", "floor MB/s", "run MB/s", "run unit/s", "run/floor", "peak MB", "run s")
+	for _, r := range results {
+		fmt.Printf("%8d %9.0f %12.1f %12.1f %11.0f %9.0f%% %10.0f %10.2f\n",
+			r.units, float64(r.bytes)/1e6, r.floorMBs, r.fullMBs, r.fullUnitsPerSecond, 100*r.fullMBs/r.floorMBs, float64(r.peakRSS)/1e6, r.full.Seconds())
+	}
+	if len(results) >= 2 {
+		a, b := results[len(results)-2], results[len(results)-1]
+		fmt.Printf("\ngrowth %d → %d units: samples ×%.2f, run time ×%.2f, peak memory ×%.2f\n",
+			a.units, b.units, float64(b.rows)/float64(a.rows), b.full.Seconds()/a.full.Seconds(), float64(b.peakRSS)/float64(a.peakRSS))
+	}
+	return nil
+}
+
+// floor reads and parses every file with one worker per core and returns the
+// bytes and rows read.
+func floor(files []string, specPath string) (bytes, rows int64, err error) {
+	f := rigdata.Format{Time: "t", Command: "target", Response: "position", Effort: "drive", TimeScale: 1}
+	jobs := make(chan string)
+	var wg sync.WaitGroup
+	var nb, nr atomic.Int64
+	for w := 0; w < runtime.NumCPU(); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			rd := rigdata.NewReader(f)
+			for p := range jobs {
+				lg, err := rd.ReadFile(p)
+				if lg != nil {
+					nb.Add(lg.Size)
+					nr.Add(int64(lg.Rows))
+				} else if fi, serr := os.Stat(p); serr == nil && err != nil {
+					nb.Add(fi.Size()) // the truncated demo log still counts as read
+				}
+			}
+		}()
+	}
+	for _, p := range files {
+		jobs <- p
+	}
+	close(jobs)
+	wg.Wait()
+	return nb.Load(), nr.Load(), nil
+}
