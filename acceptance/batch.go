@@ -112,9 +112,10 @@ feed:
 	if b.Limits == nil {
 		b.Limits = map[string]Limit{}
 	}
+	b.TestDates = testDates(results)
 	b.ReportDate = o.ReportDate
 	if b.ReportDate == "" {
-		b.ReportDate = newestTestDate(results)
+		b.ReportDate = b.TestDates.Last
 	}
 	if pred != nil {
 		b.Model = pred.summary()
@@ -160,6 +161,7 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
 		sr := spec.JudgeStep(m)
+		sr.Evidence = stepEvidence(tr, m, spec)
 		if pred != nil {
 			pred.attach(&sr, m, tr)
 		}
@@ -211,19 +213,27 @@ func flagDuplicateSerials(units []UnitResult) {
 	}
 }
 
-// newestTestDate returns the latest started_at (or date) metadata value's
-// date part among units, or "" when none carries one.
-func newestTestDate(units []UnitResult) string {
-	newest := ""
+// testDates returns the earliest and latest date part of the logs'
+// started_at (or date, tested_at) metadata; empty when none carries one.
+func testDates(units []UnitResult) DateRange {
+	var r DateRange
 	for _, u := range units {
 		for _, key := range []string{"started_at", "date", "tested_at"} {
 			v := u.Metadata[key]
-			if len(v) >= 10 && isDate(v[:10]) && v[:10] > newest {
-				newest = v[:10]
+			if len(v) < 10 || !isDate(v[:10]) {
+				continue
 			}
+			d := v[:10]
+			if r.First == "" || d < r.First {
+				r.First = d
+			}
+			if d > r.Last {
+				r.Last = d
+			}
+			break
 		}
 	}
-	return newest
+	return r
 }
 
 func isDate(s string) bool {

@@ -27,9 +27,18 @@ type Batch struct {
 	Limits map[string]Limit `json:"limits"`
 	// ReportDate is the date the reports carry (RFC 3339 date).
 	ReportDate string `json:"report_date"`
+	// TestDates spans the logs' started_at metadata; empty when no log
+	// carries one.
+	TestDates DateRange `json:"test_dates"`
 
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *Spec `json:"-"`
+}
+
+// DateRange is the first and last date (YYYY-MM-DD) of a set of tests.
+type DateRange struct {
+	First string `json:"first"`
+	Last  string `json:"last"`
 }
 
 // ToolInfo names the program that made the report.
@@ -91,6 +100,26 @@ type StepResult struct {
 	Predicted *Prediction `json:"predicted,omitempty"`
 	// Gap is measured − predicted per metric; nil where either is unknown.
 	Gap map[string]*float64 `json:"gap,omitempty"`
+
+	// Evidence holds observations from the record that point at causes of a
+	// gap (saturation, friction); nil when none could be made.
+	Evidence *StepEvidence `json:"evidence,omitempty"`
+}
+
+// StepEvidence is what the record of one step shows beyond the metrics,
+// used for the report's notes on likely causes. Every field is measured or
+// unknown with a reason.
+type StepEvidence struct {
+	// EffortSaturatedPct is the share of the rise (step instant to the upper
+	// rise-level crossing) during which |effort| was at its limit, in %.
+	EffortSaturatedPct metrics.Value `json:"effort_saturated_pct"`
+	// EffortLimit is the limit used: the spec's actuator effort_limit, else
+	// the largest |effort| in the record when it is held flat.
+	EffortLimit metrics.Value `json:"effort_limit"`
+	// FinalDrift is the response's drift over the final window, response
+	// units: near zero with a steady-state error indicates the response
+	// stopped short (static friction or deadband) rather than still moving.
+	FinalDrift metrics.Value `json:"final_drift"`
 }
 
 // Prediction is one simulated step measured by the metrics package.
@@ -120,7 +149,19 @@ type ModelSummary struct {
 	Plant    string              `json:"plant"`    // the plant as a readable transfer function
 	Realised bool                `json:"realised"` // true when the spec has a loop or actuator section or a plant dead time
 	Nominal  []NominalPrediction `json:"nominal"`
-	Warnings []string            `json:"warnings,omitempty"`
+	// Designs are the proportional gains the model gives for the spec's
+	// overshoot limit and for critical damping, for reference.
+	Designs  []GainDesign `json:"designs,omitempty"`
+	Warnings []string     `json:"warnings,omitempty"`
+}
+
+// GainDesign is a proportional gain designed for one target.
+type GainDesign struct {
+	Target     string   `json:"target"` // "overshoot_pct" or "damping"
+	Value      float64  `json:"value"`
+	KpIdeal    *float64 `json:"kp_ideal"`
+	KpRealised *float64 `json:"kp_realised"`
+	Why        string   `json:"why,omitempty"` // why a gain is missing
 }
 
 // NominalPrediction is the model's response to one distinct command change.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 	"sync"
 
 	"github.com/stepgate/stepgate/acceptance/model"
@@ -192,6 +193,7 @@ func (p *predictor) summary() *ModelSummary {
 		return a.dt < b.dt
 	})
 	seen := map[string]bool{}
+	defer func() { ms.Designs = p.designs(ms.Nominal) }()
 	for _, k := range keys {
 		e := p.cache[k]
 		if e.err != nil {
@@ -222,4 +224,49 @@ func medianPeriod(tr metrics.Trace, st metrics.Step) float64 {
 	}
 	sort.Float64s(d)
 	return d[n/2]
+}
+
+// designs returns the gains the model gives, on the first nominal step, for
+// the spec's overshoot limit (when it has one) and for critical damping.
+func (p *predictor) designs(nominal []NominalPrediction) []GainDesign {
+	if len(nominal) == 0 {
+		return nil
+	}
+	from, to := nominal[0].From, nominal[0].To
+	type want struct {
+		target model.Target
+		name   string
+		value  float64
+	}
+	var wants []want
+	if l, ok := p.spec.Limits[string(metrics.Overshoot)]; ok && l.Max != nil && *l.Max > 0 {
+		wants = append(wants, want{model.OvershootTarget(*l.Max), string(metrics.Overshoot), *l.Max})
+	}
+	wants = append(wants, want{model.DampingTarget(1), "damping", 1})
+	var out []GainDesign
+	for _, w := range wants {
+		g := GainDesign{Target: w.name, Value: w.value}
+		d, err := p.sys.DesignGain(w.target, from, to)
+		var whys []string
+		if d.Ideal != nil {
+			k := d.Ideal.Kp
+			g.KpIdeal = &k
+		} else if d.IdealWhy != "" {
+			whys = append(whys, "ideal: "+d.IdealWhy)
+		}
+		if d.Realised != nil {
+			k := d.Realised.Kp
+			g.KpRealised = &k
+		} else if d.RealisedWhy != "" && p.realised {
+			whys = append(whys, "realised: "+d.RealisedWhy)
+		}
+		if err != nil && len(whys) == 0 {
+			whys = append(whys, err.Error())
+		}
+		if len(whys) > 0 {
+			g.Why = strings.Join(whys, "; ")
+		}
+		out = append(out, g)
+	}
+	return out
 }

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/optimize"
+
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -49,9 +51,10 @@ const (
 // ln²Mp) and ωn = π/((tp − θ)·√(1 − ζ²)); without overshoot ζ = 1 and
 // ωn = 3.3579/t₁₀₋₉₀ (the critically damped 10–90 % rise time, references
 // §2); θ makes the model's 10 % instant match the record's. The fit then
-// minimises the residual over the samples with the Nelder–Mead simplex
-// in ln ωn, ln ζ (any ζ > 0: the closed forms for ζ < 1, ζ = 1 and ζ > 1 are
-// one expression, continuous in ζ) and a logistic transform of θ bounded to
+// minimises the residual over the samples with the Nelder–Mead simplex of
+// gonum.org/v1/gonum/optimize, restarted once from its result, in ln ωn,
+// ln ζ (any ζ > 0: the closed forms for ζ < 1, ζ = 1 and ζ > 1 are one
+// expression, continuous in ζ) and a logistic transform of θ bounded to
 // [0, half the step's duration]; the initial level and the response change
 // are solved for linearly at each trial. The result is deterministic.
 //
@@ -123,11 +126,13 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 	obj := func(x []float64) float64 {
 		return fit.rms(math.Exp(x[1]), math.Exp(x[0]), thMax*sigmoid(x[2]))
 	}
-	best, err := minimise(obj, x0)
+	best, fBest, err := refine(obj, x0)
 	if err != nil {
 		return fail("%v", err)
 	}
-	if again, err := minimise(obj, best); err == nil && obj(again) <= obj(best) {
+	// A restart from the result, with a fresh simplex, guards against a
+	// simplex that collapsed before reaching the minimum.
+	if again, fAgain, err := refine(obj, best); err == nil && fAgain <= fBest {
 		best = again
 	}
 	zeta, wn, th := math.Exp(best[1]), math.Exp(best[0]), thMax*sigmoid(best[2])
@@ -188,18 +193,20 @@ func unitStep2(zeta, wn, t float64) float64 {
 }
 
 // stepFit evaluates the residual of a trial (ζ, ωn, θ), solving for the
-// initial level c0 and the change c1 by linear least squares.
+// initial level c0 and the change c1 by linear least squares. x holds the
+// trial's unit-step model at the sample times, computed once per trial.
 type stepFit struct {
-	t, y   []float64
-	c0, c1 float64
+	t, y, x []float64
+	c0, c1  float64
 }
 
-func newStepFit(t, y []float64) *stepFit { return &stepFit{t: t, y: y} }
+func newStepFit(t, y []float64) *stepFit { return &stepFit{t: t, y: y, x: make([]float64, len(t))} }
 
 func (f *stepFit) rms(zeta, wn, th float64) float64 {
 	var n, sx, sy, sxx, sxy float64
 	for i, t := range f.t {
 		x := unitStep2(zeta, wn, t-th)
+		f.x[i] = x
 		y := f.y[i]
 		n++
 		sx += x
@@ -214,8 +221,8 @@ func (f *stepFit) rms(zeta, wn, th float64) float64 {
 	f.c1 = (n*sxy - sx*sy) / det
 	f.c0 = (sy - f.c1*sx) / n
 	var ss float64
-	for i, t := range f.t {
-		r := f.y[i] - f.c0 - f.c1*unitStep2(zeta, wn, t-th)
+	for i, x := range f.x {
+		r := f.y[i] - f.c0 - f.c1*x
 		ss += r * r
 	}
 	return math.Sqrt(ss / n)
@@ -321,95 +328,45 @@ func lastOutsideBand(zeta, wn, horizon float64) float64 {
 func sigmoid(x float64) float64 { return 1 / (1 + math.Exp(-x)) }
 func logit(p float64) float64   { return math.Log(p / (1 - p)) }
 
-// minimise runs the Nelder–Mead simplex method from x0 (J. A. Nelder and
-// R. Mead, "A simplex method for function minimization", Computer Journal
-// 7(4), 1965; reflection 1, expansion 2, contraction ½, shrink ½, the
-// standard coefficients). The initial simplex steps 0.1 along each axis. It
-// stops when the spread of the simplex's values falls below 10⁻¹² of the
-// best value (plus 10⁻³⁰) or after nmMaxEvals evaluations.
-func minimise(f func([]float64) float64, x0 []float64) ([]float64, error) {
-	const nmMaxEvals = 4000
-	n := len(x0)
-	pts := make([][]float64, n+1)
-	val := make([]float64, n+1)
-	for i := range pts {
-		pts[i] = append([]float64(nil), x0...)
-		if i > 0 {
-			pts[i][i-1] += 0.1
+// refine minimises f from x0 with gonum's Nelder–Mead simplex method
+// (gonum.org/v1/gonum/optimize; J. A. Nelder and R. Mead, "A simplex method
+// for function minimization", Computer Journal 7(4), 1965) at the standard
+// coefficients: reflection 1, expansion 2, contraction ½, shrink ½, rather
+// than gonum's dimension-dependent defaults. The initial simplex is x0 and
+// x0 + 0.1 along each axis. The run stops once the best value has not
+// fallen by more than 10⁻¹² of itself (plus 10⁻³⁰) over refineStall
+// iterations, or after refineMaxEvals evaluations. A single evaluation
+// task, a fixed simplex and no random element make the result
+// deterministic. A value that is not a number counts as +Inf, so the
+// simplex's order stays total. It returns the best point and its value.
+func refine(f func([]float64) float64, x0 []float64) ([]float64, float64, error) {
+	const (
+		refineMaxEvals = 4000
+		refineStall    = 30
+	)
+	fn := func(x []float64) float64 {
+		if v := f(x); !math.IsNaN(v) {
+			return v
 		}
-		val[i] = f(pts[i])
+		return math.Inf(1)
 	}
-	evals := n + 1
-	cen := make([]float64, n)
-	at := func(c float64, worst []float64) []float64 { // cen + c·(cen − worst)
-		x := make([]float64, n)
-		for j := range x {
-			x[j] = cen[j] + c*(cen[j]-worst[j])
-		}
-		return x
+	f0 := fn(x0)
+	if math.IsInf(f0, 0) {
+		return nil, 0, fmt.Errorf("least-squares fit failed: the residual at the start point (ωn %s rad/s, ζ %s) is not finite",
+			fmtNum(math.Exp(x0[0])), fmtNum(math.Exp(x0[1])))
 	}
-	for evals < nmMaxEvals {
-		// order: best first; ties keep their order (deterministic)
-		for i := 1; i <= n; i++ {
-			for k := i; k > 0 && val[k] < val[k-1]; k-- {
-				val[k], val[k-1] = val[k-1], val[k]
-				pts[k], pts[k-1] = pts[k-1], pts[k]
-			}
-		}
-		if val[n]-val[0] <= 1e-12*math.Abs(val[0])+1e-30 {
-			break
-		}
-		for j := range cen {
-			cen[j] = 0
-			for i := 0; i < n; i++ {
-				cen[j] += pts[i][j] / float64(n)
-			}
-		}
-		xr := at(1, pts[n])
-		fr := f(xr)
-		evals++
-		switch {
-		case fr < val[0]:
-			xe := at(2, pts[n])
-			fe := f(xe)
-			evals++
-			if fe < fr {
-				pts[n], val[n] = xe, fe
-			} else {
-				pts[n], val[n] = xr, fr
-			}
-		case fr < val[n-1]:
-			pts[n], val[n] = xr, fr
-		default:
-			var xc []float64
-			if fr < val[n] {
-				xc = at(0.5, pts[n]) // outside contraction
-			} else {
-				xc = at(-0.5, pts[n]) // inside contraction
-			}
-			fc := f(xc)
-			evals++
-			if fc < math.Min(fr, val[n]) {
-				pts[n], val[n] = xc, fc
-				break
-			}
-			for i := 1; i <= n; i++ {
-				for j := range pts[i] {
-					pts[i][j] = pts[0][j] + 0.5*(pts[i][j]-pts[0][j])
-				}
-				val[i] = f(pts[i])
-				evals++
-			}
-		}
+	settings := &optimize.Settings{
+		InitValues:      &optimize.Location{F: f0},
+		FuncEvaluations: refineMaxEvals,
+		Converger:       &optimize.FunctionConverge{Relative: 1e-12, Absolute: 1e-30, Iterations: refineStall},
 	}
-	best := 0
-	for i := range val {
-		if val[i] < val[best] {
-			best = i
-		}
+	method := &optimize.NelderMead{Reflection: 1, Expansion: 2, Contraction: 0.5, Shrink: 0.5, SimplexSize: 0.1}
+	res, err := optimize.Minimize(optimize.Problem{Func: fn}, x0, settings, method)
+	if err != nil {
+		return nil, 0, fmt.Errorf("least-squares fit failed: %w", err)
 	}
-	if math.IsInf(val[best], 0) || math.IsNaN(val[best]) {
-		return nil, errors.New("least-squares fit failed: the residual is not finite")
+	if math.IsInf(res.F, 0) || math.IsNaN(res.F) {
+		return nil, 0, errors.New("least-squares fit failed: the residual is not finite")
 	}
-	return pts[best], nil
+	return res.X, res.F, nil
 }
