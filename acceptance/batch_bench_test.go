@@ -1,0 +1,69 @@
+package acceptance_test
+
+import (
+	"context"
+	"path/filepath"
+	"testing"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/demo"
+	"github.com/stepgate/stepgate/acceptance/report"
+	"github.com/stepgate/stepgate/acceptance/rigdata"
+)
+
+// benchBatch writes n demo units of 6 s (three steps at 1 kHz) once per
+// benchmark and returns the spec and the files.
+func benchBatch(b *testing.B, n int) (*acceptance.Spec, []string, int64) {
+	b.Helper()
+	dir := b.TempDir()
+	specPath, logDir, err := demo.Write(dir, demo.Options{Units: n, Duration: 6})
+	if err != nil {
+		b.Fatal(err)
+	}
+	spec, err := acceptance.LoadSpec(specPath)
+	if err != nil {
+		b.Fatal(err)
+	}
+	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	var size int64
+	for _, f := range files {
+		lg, err := rigdata.ReadFile(f, spec.Format())
+		if err == nil {
+			size += lg.Size
+		}
+	}
+	return spec, files, size
+}
+
+// BenchmarkRun measures a full batch of 200 units, reports included; the
+// bytes per operation are the log bytes, so -bench reports MB/s of logs.
+func BenchmarkRun(b *testing.B) {
+	spec, files, size := benchBatch(b, 200)
+	out := filepath.Join(b.TempDir(), "out")
+	b.SetBytes(size)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		batch, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepNonPassTraces})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if _, err := report.WriteAll(out, batch, report.Options{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkRunNoReports measures reading, measuring and judging only.
+func BenchmarkRunNoReports(b *testing.B) {
+	spec, files, size := benchBatch(b, 200)
+	b.SetBytes(size)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepNoTraces}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
