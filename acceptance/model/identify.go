@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/optimize"
 
 	"github.com/stepgate/stepgate/metrics"
@@ -50,16 +51,26 @@ const (
 // Engineering, 5th ed., §5-3): for an overshoot Mp, ζ = −ln(Mp)/√(π² +
 // ln²Mp) and ωn = π/((tp − θ)·√(1 − ζ²)); without overshoot ζ = 1 and
 // ωn = 3.3579/t₁₀₋₉₀ (the critically damped 10–90 % rise time, references
-// §2); θ makes the model's 10 % instant match the record's. The fit then
-// minimises the residual over the samples with the Nelder–Mead simplex of
-// gonum.org/v1/gonum/optimize, restarted once from its result, in ln ωn,
-// ln ζ (any ζ > 0: the closed forms for ζ < 1, ζ = 1 and ζ > 1 are one
-// expression, continuous in ζ) and a logistic transform of θ bounded to
-// [0, half the step's duration]; the initial level and the response change
-// are solved for linearly at each trial. The result is deterministic.
+// §2); θ makes the model's 10 % instant match the record's.
+//
+// The fit minimises the squared residual by the damped Gauss–Newton method
+// (the Newton method of gonum.org/v1/gonum/optimize on the analytic
+// gradient and Gauss–Newton matrix) in ln ωn, ln ζ (any ζ > 0: the closed
+// forms for ζ < 1, ζ = 1 and ζ > 1 are one expression, continuous in ζ)
+// and θ, bounded to [0, half the step's duration]; the initial level and
+// the response change are solved for linearly at each trial (variable
+// projection). For speed the search compares bin means: runs of a few
+// samples, at most 320 after the step, finer where the response moves, each
+// compared with the model's exact mean over the same interval; the model is
+// stepped from bin to bin by its addition formulas instead of evaluated by
+// trigonometry at each one (stepfit.go). The reported initial level, gain
+// and RMS residual are then solved for over every sample of the fitted
+// window, so the residual is that of the samples. The result is
+// deterministic.
 //
 // Identify refuses, with the reason, a step that does not fit the trace or
-// has no command change, a response that does not move clearly above its
+// has no command change, a window with a sample that is not finite or whose
+// time does not increase, a response that does not move clearly above its
 // noise or moves against the command, one still moving at the end of the
 // record or whose fit settles too late, and a fit whose RMS residual exceeds
 // 5 % of the response change.
@@ -84,14 +95,21 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 	}
 	t0 := tr.Time[st.Start]
 	pre0 := st.Start - (st.Start-st.PreStart)/2
-	ts := make([]float64, 0, st.End-pre0)
-	ys := make([]float64, 0, st.End-pre0)
+	fit := fitPool.Get().(*stepFit)
+	defer func() {
+		fit.t, fit.y = nil, nil // the caller's record is not kept alive
+		fitPool.Put(fit)
+	}()
+	ts := grow(&fit.tbuf, st.End-pre0)
+	ys := tr.Response[pre0:st.End]
 	for i := pre0; i < st.End; i++ {
-		if math.IsNaN(tr.Response[i]) || math.IsInf(tr.Response[i], 0) || math.IsNaN(tr.Time[i]) {
+		if math.IsNaN(tr.Response[i]) || math.IsInf(tr.Response[i], 0) || math.IsNaN(tr.Time[i]) || math.IsInf(tr.Time[i], 0) {
 			return fail("sample %d is not a finite number", i)
 		}
-		ts = append(ts, tr.Time[i]-t0)
-		ys = append(ys, tr.Response[i])
+		if i > pre0 && !(tr.Time[i] > tr.Time[i-1]) {
+			return fail("the time of sample %d (%v s) does not increase from the sample before (%v s)", i, tr.Time[i], tr.Time[i-1])
+		}
+		ts[i-pre0] = tr.Time[i] - t0
 	}
 	nPre := st.Start - pre0
 	post := ys[nPre:]
@@ -119,25 +137,17 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 			len(finalWin), fmtNum(fl.Drift), fmtNum(100*fl.Drift/math.Abs(dy)))
 	}
 
-	zeta0, wn0, th0 := identStart(tPost, post, y0, dy, noise)
+	zeta0, wn0, th0 := identStart(tPost, post, y0, dy, noise, grow(&fit.xs, len(post)))
 	thMax := 0.5 * dur
-	fit := newStepFit(ts, ys)
-	x0 := []float64{math.Log(wn0), math.Log(zeta0), logit(math.Min(math.Max(th0/thMax, 1e-6), 0.9))}
-	obj := func(x []float64) float64 {
-		return fit.rms(math.Exp(x[1]), math.Exp(x[0]), thMax*sigmoid(x[2]))
-	}
-	best, fBest, err := refine(obj, x0)
+	fit.reset(ts, ys, nPre, moving(post, y0, dy, noise), dy)
+	zeta, wn, th, err := refine(fit, zeta0, wn0, math.Min(th0, thMax), thMax)
 	if err != nil {
 		return fail("%v", err)
 	}
-	// A restart from the result, with a fresh simplex, guards against a
-	// simplex that collapsed before reaching the minimum.
-	if again, fAgain, err := refine(obj, best); err == nil && fAgain <= fBest {
-		best = again
+	rms, c0, c1 := fit.sampleFit(zeta, wn, th)
+	if math.IsInf(rms, 0) {
+		return fail("least-squares fit failed: the fitted model is constant over the record")
 	}
-	zeta, wn, th := math.Exp(best[1]), math.Exp(best[0]), thMax*sigmoid(best[2])
-	rms := fit.rms(zeta, wn, th)
-	c0, c1 := fit.c0, fit.c1
 	if rms > identMaxResidual*math.Abs(c1) {
 		return fail("the second-order model does not fit: RMS residual %s is %s %% of the response change (at most %s %%)",
 			fmtNum(rms), fmtNum(100*rms/math.Abs(c1)), fmtNum(100*identMaxResidual))
@@ -162,79 +172,37 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 // (0 for t ≤ 0): 1 − e^(−σt)(C + σ·S) with σ = ζωn and, for
 // ω² = ωn²(1 − ζ²), C = cos ωt, S = sin(ωt)/ω when ω² > 0 (Ogata 5th ed.
 // §5-3), C = cosh ωt, S = sinh(ωt)/ω when ω² < 0, and C = 1, S = t at ζ = 1;
-// S is evaluated by its series near ω = 0, so the expression is continuous
-// in ζ.
+// C and S are summed as power series in ω²t² near ω = 0 (kernelAt), so the
+// expression is continuous in ζ.
 func unitStep2(zeta, wn, t float64) float64 {
 	if t <= 0 {
 		return 0
 	}
 	sigma := zeta * wn
-	q := wn * wn * (1 - zeta*zeta)
-	w := math.Sqrt(math.Abs(q))
-	x := w * t
-	if q >= 0 {
-		var s float64
-		if x < 1e-4 {
-			s = t * (1 - x*x/6)
-		} else {
-			s = math.Sin(x) / w
+	k := kernelAt(sigma, wn*wn*(1-zeta*zeta), t)
+	return 1 - k.c - sigma*k.s
+}
+
+// moving returns how many samples of the response y after the step the
+// fine bins cover: twice the span up to the last sample outside 10 % of the
+// change (or 3 noise σ, when larger) around the final level.
+func moving(y []float64, y0, dy, noise float64) int {
+	band := math.Max(0.1*math.Abs(dy), 3*noise)
+	last := -1
+	for i, v := range y {
+		if math.Abs(v-y0-dy) > band {
+			last = i
 		}
-		return 1 - math.Exp(-sigma*t)*(math.Cos(x)+sigma*s)
 	}
-	// e^(−σt)·cosh(ωt) and e^(−σt)·sinh(ωt)/ω without overflow (σ > ω).
-	a, b := math.Exp((w-sigma)*t), math.Exp(-(w+sigma)*t)
-	var s float64
-	if x < 1e-4 {
-		s = math.Exp(-sigma*t) * t * (1 + x*x/6)
-	} else {
-		s = (a - b) / (2 * w)
-	}
-	return 1 - (0.5*(a+b) + sigma*s)
-}
-
-// stepFit evaluates the residual of a trial (ζ, ωn, θ), solving for the
-// initial level c0 and the change c1 by linear least squares. x holds the
-// trial's unit-step model at the sample times, computed once per trial.
-type stepFit struct {
-	t, y, x []float64
-	c0, c1  float64
-}
-
-func newStepFit(t, y []float64) *stepFit { return &stepFit{t: t, y: y, x: make([]float64, len(t))} }
-
-func (f *stepFit) rms(zeta, wn, th float64) float64 {
-	var n, sx, sy, sxx, sxy float64
-	for i, t := range f.t {
-		x := unitStep2(zeta, wn, t-th)
-		f.x[i] = x
-		y := f.y[i]
-		n++
-		sx += x
-		sy += y
-		sxx += x * x
-		sxy += x * y
-	}
-	det := n*sxx - sx*sx
-	if !(det > 1e-12*n*n) {
-		return math.Inf(1)
-	}
-	f.c1 = (n*sxy - sx*sy) / det
-	f.c0 = (sy - f.c1*sx) / n
-	var ss float64
-	for i, x := range f.x {
-		r := f.y[i] - f.c0 - f.c1*x
-		ss += r * r
-	}
-	return math.Sqrt(ss / n)
+	return min(len(y), 2*(last+1))
 }
 
 // identStart returns start values from the record's overshoot, peak time
-// and 10 %/90 % instants.
-func identStart(t, y []float64, y0, dy, noise float64) (zeta, wn, th float64) {
-	z := make([]float64, len(y))
-	pk := 0
+// and 10 %/90 % instants; z is scratch space as long as y.
+func identStart(t, y []float64, y0, dy, noise float64, z []float64) (zeta, wn, th float64) {
+	pk, inv := 0, 1/dy
 	for i, v := range y {
-		z[i] = (v - y0) / dy
+		z[i] = (v - y0) * inv
 		if z[i] > z[pk] {
 			pk = i
 		}
@@ -276,97 +244,197 @@ func crossTime(t, z []float64, level float64) float64 {
 	return t[len(t)-1]
 }
 
-// modelCross is the first instant the unit-step model reaches level < 1,
-// by bisection on [0, first bracket].
+// modelCross is the first instant the unit-step model reaches level < 1:
+// the root in [0, first bracket] by Newton's method on the impulse response
+// ωn²·e^(−στ)·S, kept inside a bisection bracket (any step leaving it is
+// replaced by bisection).
 func modelCross(zeta, wn, level float64) float64 {
+	sigma := zeta * wn
+	q := wn * wn * (1 - zeta*zeta)
 	hi := 1 / wn
 	for unitStep2(zeta, wn, hi) < level && hi < 1e6/wn {
 		hi *= 2
 	}
 	lo := 0.0
-	for i := 0; i < 60; i++ {
-		mid := 0.5 * (lo + hi)
-		if unitStep2(zeta, wn, mid) < level {
-			lo = mid
+	t := 0.5 * (lo + hi)
+	for range 60 {
+		k := kernelAt(sigma, q, t)
+		f := 1 - k.c - sigma*k.s - level
+		if f < 0 {
+			lo = t
 		} else {
-			hi = mid
+			hi = t
 		}
+		next := t - f/(wn*wn*k.s)
+		if !(next > lo && next < hi) {
+			next = 0.5 * (lo + hi)
+		}
+		if math.Abs(next-t) <= 1e-15*hi || hi-lo <= 1e-15*hi {
+			return next
+		}
+		t = next
 	}
-	return 0.5 * (lo + hi)
+	return t
 }
 
 // lastOutsideBand is the last instant in [0, horizon] at which the unit-step
-// model lies outside 1 ± identBand, on a grid of 2000 points refined by
-// bisection; 0 when it never does after the start.
+// model lies outside 1 ± identBand, on a grid of 2000 points (stepped, see
+// stepfit.go) refined by bisection; 0 when it never does after the start.
 func lastOutsideBand(zeta, wn, horizon float64) float64 {
 	if !(horizon > 0) {
 		return 0
 	}
 	const n = 2000
-	out := func(t float64) bool { return math.Abs(unitStep2(zeta, wn, t)-1) > identBand }
-	for i := n; i > 0; i-- {
-		t := horizon * float64(i) / n
-		if out(t) {
-			if i == n {
-				return horizon
-			}
-			lo, hi := t, horizon*float64(i+1)/n
-			for k := 0; k < 40; k++ {
-				mid := 0.5 * (lo + hi)
-				if out(mid) {
-					lo = mid
-				} else {
-					hi = mid
-				}
-			}
-			return lo
+	sigma := zeta * wn
+	q := wn * wn * (1 - zeta*zeta)
+	dt := horizon / n
+	// Beyond tEnd the model stays inside the band: for ζ < 1,
+	// |s − 1| ≤ e^(−στ)/√(1 − ζ²); for ζ ≥ 1 the model does not overshoot,
+	// so once inside it stays.
+	tEnd := math.Inf(1)
+	if zeta < 1 && sigma > 0 {
+		tEnd = math.Log(1/(identBand*math.Sqrt(1-zeta*zeta))) / sigma
+	}
+	st := newKstep(sigma, q, dt)
+	k := st.next2(kern{c: 1}) // the kernel at dt from τ = 0
+	last := 0
+	for i := 1; i <= n; i++ {
+		if i > 1 {
+			k = st.next2(k)
+		}
+		if math.Abs(k.c+sigma*k.s) > identBand { // |s − 1| = |e^(−στ)(C + σS)|
+			last = i
+		} else if zeta >= 1 || horizon*float64(i-1)/n > tEnd {
+			break
 		}
 	}
-	return 0
+	switch last {
+	case 0:
+		return 0
+	case n:
+		return horizon
+	}
+	out := func(t float64) bool { return math.Abs(unitStep2(zeta, wn, t)-1) > identBand }
+	lo, hi := horizon*float64(last)/n, horizon*float64(last+1)/n
+	for range 40 {
+		mid := 0.5 * (lo + hi)
+		if out(mid) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
 }
 
-func sigmoid(x float64) float64 { return 1 / (1 + math.Exp(-x)) }
-func logit(p float64) float64   { return math.Log(p / (1 - p)) }
-
-// refine minimises f from x0 with gonum's Nelder–Mead simplex method
-// (gonum.org/v1/gonum/optimize; J. A. Nelder and R. Mead, "A simplex method
-// for function minimization", Computer Journal 7(4), 1965) at the standard
-// coefficients: reflection 1, expansion 2, contraction ½, shrink ½, rather
-// than gonum's dimension-dependent defaults. The initial simplex is x0 and
-// x0 + 0.1 along each axis. The run stops once the best value has not
-// fallen by more than 10⁻¹² of itself (plus 10⁻³⁰) over refineStall
-// iterations, or after refineMaxEvals evaluations. A single evaluation
-// task, a fixed simplex and no random element make the result
-// deterministic. A value that is not a number counts as +Inf, so the
-// simplex's order stays total. It returns the best point and its value.
-func refine(f func([]float64) float64, x0 []float64) ([]float64, float64, error) {
-	const (
-		refineMaxEvals = 4000
-		refineStall    = 30
-	)
-	fn := func(x []float64) float64 {
-		if v := f(x); !math.IsNaN(v) {
-			return v
-		}
-		return math.Inf(1)
+// refine fits (ζ, ωn, θ) to the bins of fit from the start point
+// (zeta0, wn0, th0), θ bounded to [0, thMax]. It minimises the binned mean
+// square over x = (ln ωn, ln ζ, θ·wn0) with the modified Newton method of
+// gonum.org/v1/gonum/optimize and its default bisection line search, on the
+// analytic gradient and the Gauss–Newton matrix of stepFit.eval: for a
+// least-squares problem this is the damped Gauss–Newton method (J. Nocedal
+// and S. J. Wright, Numerical Optimization, 2nd ed., §10.3). The dead time
+// is searched without its bounds first; a minimum outside them is replaced
+// by the minimum over ζ and ωn at the bound it crosses, the bound being then
+// active (Nocedal and Wright §12.1). A single evaluation task and no random
+// element make the result deterministic.
+func refine(fit *stepFit, zeta0, wn0, th0, thMax float64) (zeta, wn, th float64, err error) {
+	x, err := search(fit, wn0, []float64{math.Log(wn0), math.Log(zeta0), th0 * wn0}, 0)
+	if err != nil {
+		return 0, 0, 0, err
 	}
-	f0 := fn(x0)
-	if math.IsInf(f0, 0) {
-		return nil, 0, fmt.Errorf("least-squares fit failed: the residual at the start point (ωn %s rad/s, ζ %s) is not finite",
+	zeta, wn, th = math.Exp(x[1]), math.Exp(x[0]), x[2]/wn0
+	if th >= 0 && th <= thMax {
+		return zeta, wn, th, nil
+	}
+	th = math.Max(0, math.Min(th, thMax))
+	if x, err = search(fit, wn0, []float64{x[0], x[1]}, th); err != nil {
+		return 0, 0, 0, err
+	}
+	return math.Exp(x[1]), math.Exp(x[0]), th, nil
+}
+
+// Search limits.
+const (
+	// searchMaxEvals bounds the objective evaluations of one search.
+	searchMaxEvals = 200
+	// searchGradTol is the gradient (max norm) at which a search stops: the
+	// objective is a mean square over dy², so this places ln ωn, ln ζ and
+	// θ·ωn within about 10⁻⁸ of the minimum.
+	searchGradTol = 1e-10
+	// searchStall is the number of iterations over which the objective must
+	// fall by more than 10⁻¹³ of itself for a search to go on.
+	searchStall = 8
+)
+
+// search minimises fit's objective over x = (ln ωn, ln ζ, θ·scale) from
+// x0, or over (ln ωn, ln ζ) at the dead time th when len(x0) is 2. It stops
+// once the gradient's largest component is below searchGradTol, the
+// objective stalls (searchStall), or after searchMaxEvals evaluations; a
+// search that ends on a line-search failure keeps the best point found, the
+// point the line search could not improve. A value that is not a number
+// counts as +Inf.
+func search(fit *stepFit, scale float64, x0 []float64, th float64) ([]float64, error) {
+	dim := len(x0)
+	var (
+		cx    [3]float64
+		cf    float64
+		cg    [3]float64
+		ch    [3][3]float64
+		valid bool
+	)
+	at := func(x []float64) {
+		if valid && x[0] == cx[0] && x[1] == cx[1] && (dim == 2 || x[2] == cx[2]) {
+			return
+		}
+		zeta, wn, t := math.Exp(x[1]), math.Exp(x[0]), th
+		if dim == 3 {
+			t = x[2] / scale
+		}
+		f, g, h := fit.eval(zeta, wn, t)
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			f, g, h = math.Inf(1), [3]float64{}, [6]float64{}
+		}
+		copy(cx[:], x)
+		cf, valid = f, true
+		// From p = (θ, ln ωn, ζ) to x: x_a is p_pa scaled by 1/fa.
+		pa, fa := [3]int{1, 2, 0}, [3]float64{1, zeta, 1 / scale}
+		hp := [3][3]float64{{h[0], h[1], h[2]}, {h[1], h[3], h[4]}, {h[2], h[4], h[5]}}
+		for a := range 3 {
+			cg[a] = fa[a] * g[pa[a]]
+			for b := range 3 {
+				ch[a][b] = fa[a] * fa[b] * hp[pa[a]][pa[b]]
+			}
+		}
+	}
+	at(x0)
+	if math.IsInf(cf, 0) {
+		return nil, fmt.Errorf("least-squares fit failed: the residual at the start point (ωn %s rad/s, ζ %s) is not finite",
 			fmtNum(math.Exp(x0[0])), fmtNum(math.Exp(x0[1])))
 	}
+	problem := optimize.Problem{
+		Func: func(x []float64) float64 { at(x); return cf },
+		Grad: func(grad, x []float64) { at(x); copy(grad, cg[:dim]) },
+		Hess: func(hess *mat.SymDense, x []float64) {
+			at(x)
+			for a := range dim {
+				for b := a; b < dim; b++ {
+					hess.SetSym(a, b, ch[a][b])
+				}
+			}
+		},
+	}
 	settings := &optimize.Settings{
-		InitValues:      &optimize.Location{F: f0},
-		FuncEvaluations: refineMaxEvals,
-		Converger:       &optimize.FunctionConverge{Relative: 1e-12, Absolute: 1e-30, Iterations: refineStall},
+		GradientThreshold: searchGradTol,
+		FuncEvaluations:   searchMaxEvals,
+		Converger:         &optimize.FunctionConverge{Relative: 1e-13, Absolute: 1e-300, Iterations: searchStall},
 	}
-	method := &optimize.NelderMead{Reflection: 1, Expansion: 2, Contraction: 0.5, Shrink: 0.5, SimplexSize: 0.1}
-	res, err := optimize.Minimize(optimize.Problem{Func: fn}, x0, settings, method)
-	if err != nil {
-		return nil, 0, fmt.Errorf("least-squares fit failed: %w", err)
+	res, err := optimize.Minimize(problem, x0, settings, &optimize.Newton{GradStopThreshold: searchGradTol})
+	if res == nil || math.IsInf(res.F, 0) || math.IsNaN(res.F) {
+		if err != nil {
+			return nil, fmt.Errorf("least-squares fit failed: %w", err)
+		}
+		return nil, errors.New("least-squares fit failed: the residual is not finite")
 	}
-	if math.IsInf(res.F, 0) || math.IsNaN(res.F) {
-		return nil, 0, errors.New("least-squares fit failed: the residual is not finite")
-	}
-	return res.X, res.F, nil
+	return res.X, nil
 }

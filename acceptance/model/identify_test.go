@@ -59,13 +59,21 @@ func TestUnitStep2ClosedForms(t *testing.T) {
 // quantisation to q units. The data are invented for the test; the response
 // shape comes from the closed forms above.
 func synthLog(seed uint64, dt, pre, post, y0, dr, g, zeta, wn, th, sd, q float64) (metrics.Trace, metrics.Step) {
-	rng := rand.New(rand.NewPCG(seed, seed^0x9e3779b97f4a7c15))
 	nPre, nPost := int(math.Round(pre/dt)), int(math.Round(post/dt))+1
-	var tr metrics.Trace
+	times := make([]float64, 0, nPre+nPost)
 	for i := -nPre; i < nPost; i++ {
-		tm := float64(i) * dt
+		times = append(times, float64(i)*dt)
+	}
+	return synthLogAt(seed, times, y0, dr, g, zeta, wn, th, sd, q)
+}
+
+// synthLogAt is synthLog at the given sample instants (the step at t = 0).
+func synthLogAt(seed uint64, times []float64, y0, dr, g, zeta, wn, th, sd, q float64) (metrics.Trace, metrics.Step) {
+	rng := rand.New(rand.NewPCG(seed, seed^0x9e3779b97f4a7c15))
+	var tr metrics.Trace
+	for _, tm := range times {
 		cmd, y := 0.0, y0
-		if i >= 0 {
+		if tm >= 0 {
 			cmd = dr
 			if tm > th {
 				u := tm - th
@@ -156,6 +164,8 @@ func TestIdentifyRefuses(t *testing.T) {
 	// periods, so its halves agree, yet the envelope e^(−σt) is still 22 %
 	// at 0.8 s.
 	ringing, rst := synthLog(3, 1e-3, 0.2, 1.0, 0, 10, 1, 0.03, 20*math.Pi/math.Sqrt(1-0.03*0.03), 0.004, 0.01, 0.01)
+	backwards := copyTrace(good)
+	backwards.Time[st.Start+40] = backwards.Time[st.Start+39]
 	wobble := copyTrace(good)
 	for i, tm := range wobble.Time {
 		if tm >= 0 {
@@ -174,6 +184,7 @@ func TestIdentifyRefuses(t *testing.T) {
 		{"record too short", short, sst, 1, "still moving"},
 		{"settles too late", ringing, rst, 1, "record ends too soon"},
 		{"does not fit", wobble, st, 1, "does not fit"},
+		{"time does not increase", backwards, st, 1, "does not increase"},
 		{"no command change", good, metrics.Step{Index: 1, Start: 100, End: 500, From: 1, To: 1}, 1, "does not change"},
 		{"step outside record", good, metrics.Step{Index: 1, Start: 100, End: 50000, From: 0, To: 1}, 1, "do not fit"},
 		{"bad gain", good, st, 0, "gain"},
@@ -189,19 +200,130 @@ func TestIdentifyRefuses(t *testing.T) {
 	}
 }
 
-// BenchmarkIdentify fits one 1.2 s step logged at 1 kHz (1,101 samples
-// fitted), for each response shape of TestIdentifyRecoversKnownLoop.
+// The same tolerances hold for records the uniform 1 kHz logs above do not
+// cover: instants jittered by up to ±15 % of the sample period (fitted
+// without the uniform grid), instants written to the microsecond at a rate
+// that is not a round number (the grid with per-sample offsets), a loop
+// fast for its sample rate (ωn·dt = 0.15, fine bins), no pre-step samples,
+// a dead time at the lower bound (0), a 10 kHz log, and a long lightly
+// damped ring. Invented data, as in synthLog.
+func TestIdentifyRecoversIrregularAndFastRecords(t *testing.T) {
+	cases := []struct {
+		name                string
+		dt, pre, post       float64
+		jitter, round       float64 // fraction of dt; seconds
+		dr, g, zeta, wn, th float64
+	}{
+		{"jittered instants", 1e-3, 0.2, 1.0, 0.3, 0, 10, 1, 0.45, 22, 0.004},
+		{"jittered, overdamped", 1e-3, 0.2, 1.0, 0.3, 0, 10, 0.95, 1.6, 30, 0.006},
+		{"microsecond instants", 1.0003e-3, 0.2, 1.0, 0, 1e-6, 10, 1, 0.45, 22, 0.004},
+		{"fast loop", 1e-3, 0.2, 1.5, 0, 0, 10, 1, 0.5, 150, 0.003},
+		{"fast overdamped loop", 1e-3, 0.2, 1.5, 0, 0, 10, 1, 1.3, 200, 0.002},
+		{"no pre-step samples", 1e-3, 0.001, 1.0, 0, 0, 10, 1, 0.45, 22, 0.004},
+		{"no dead time", 1e-3, 0.2, 1.0, 0, 0, 10, 1, 0.45, 22, 0},
+		{"10 kHz", 1e-4, 0.2, 1.0, 0, 0, 10, 1, 0.45, 22, 0.004},
+		{"light damping", 1e-3, 0.2, 2.0, 0, 0, 10, 1, 0.15, 30, 0.004},
+	}
+	rng := rand.New(rand.NewPCG(21, 22))
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			var times []float64
+			for i := -int(math.Round(tc.pre / tc.dt)); i <= int(math.Round(tc.post/tc.dt)); i++ {
+				tm := float64(i) * tc.dt
+				if tc.jitter > 0 && i != 0 {
+					tm += tc.jitter * tc.dt * (rng.Float64() - 0.5)
+				}
+				if tc.round > 0 {
+					tm = tc.round * math.Round(tm/tc.round)
+				}
+				times = append(times, tm)
+			}
+			tr, st := synthLogAt(7, times, 1.5, tc.dr, tc.g, tc.zeta, tc.wn, tc.th, 0.01, 0.01)
+			got, err := Identify(tr, st, 0.55)
+			if err != nil {
+				t.Fatal(err)
+			}
+			t.Logf("fit %+v", got)
+			if math.Abs(got.Damping-tc.zeta) > 0.02 {
+				t.Errorf("ζ = %.4f, want %v ± 0.02", got.Damping, tc.zeta)
+			}
+			if math.Abs(got.NaturalFrequency/tc.wn-1) > 0.02 {
+				t.Errorf("ωn = %.4f, want %v ± 2 %%", got.NaturalFrequency, tc.wn)
+			}
+			if math.Abs(got.StaticGain/tc.g-1) > 0.005 {
+				t.Errorf("G = %.5f, want %v ± 0.5 %%", got.StaticGain, tc.g)
+			}
+			if got.DeadTime < 0 || math.Abs(got.DeadTime-tc.th) > 1e-3 {
+				t.Errorf("θ = %.5f s, want %v ± 1 ms and not negative", got.DeadTime, tc.th)
+			}
+			if want := math.Sqrt(1e-4 + 1e-4/12); math.Abs(got.RMSResidual/want-1) > 0.15 {
+				t.Errorf("RMS residual %.5f, want ≈ %.5f", got.RMSResidual, want)
+			}
+		})
+	}
+}
+
+// Identify is deterministic: the same record gives bit-identical results,
+// called twice in a row and after fits of other records (of other lengths,
+// sampled irregularly) in between.
+func TestIdentifyDeterministic(t *testing.T) {
+	a, sa := synthLog(7, 1e-3, 0.2, 1.499, 1.5, 10, 1, 0.6, 15, 0.004, 0.01, 0.01)
+	b, sb := synthLog(9, 1e-4, 0.2, 1.0, 0, -4, 0.9, 1.4, 40, 0.002, 0.01, 0.01)
+	var times []float64
+	for i := -150; i <= 800; i++ {
+		times = append(times, float64(i)*1e-3+2e-4*math.Sin(float64(i)))
+	}
+	c, sc := synthLogAt(3, times, 0, 5, 1, 0.3, 30, 0.003, 0.01, 0.01)
+	bits := func(f Identified) [11]uint64 {
+		return [11]uint64{
+			math.Float64bits(f.StaticGain), math.Float64bits(f.Damping), math.Float64bits(f.NaturalFrequency),
+			math.Float64bits(f.DeadTime), math.Float64bits(f.InitialValue), math.Float64bits(f.RMSResidual), uint64(f.Samples),
+			math.Float64bits(f.Reference.Gain), math.Float64bits(f.Reference.StaticGain),
+			math.Float64bits(f.Reference.Damping), math.Float64bits(f.Reference.NaturalFrequency),
+		}
+	}
+	fit := func(tr metrics.Trace, st metrics.Step) [11]uint64 {
+		got, err := Identify(tr, st, 0.55)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return bits(got)
+	}
+	first := [3][11]uint64{fit(a, sa), fit(b, sb), fit(c, sc)}
+	if again := fit(a, sa); again != first[0] {
+		t.Errorf("record a, called twice: %x then %x", first[0], again)
+	}
+	for round := range 2 {
+		for i, r := range []struct {
+			tr metrics.Trace
+			st metrics.Step
+		}{{c, sc}, {a, sa}, {b, sb}} {
+			k := [3]int{2, 0, 1}[i]
+			if got := fit(r.tr, r.st); got != first[k] {
+				t.Errorf("round %d, record %d: %x, first %x", round, k, got, first[k])
+			}
+		}
+	}
+}
+
+// BenchmarkIdentify fits one step logged at 1 kHz: a step of 1,500 samples
+// (1,600 fitted with the tail of the pre-step window) for an underdamped
+// (ζ = 0.6) and an overdamped (ζ = 1.5) loop, and the 1,001-sample steps of
+// TestIdentifyRecoversKnownLoop.
 func BenchmarkIdentify(b *testing.B) {
 	for _, tc := range []struct {
 		name                string
+		post                float64
 		dr, g, zeta, wn, th float64
 	}{
-		{"underdamped", 10, 1, 0.45, 22, 0.004},
-		{"overdamped", 10, 0.95, 1.6, 30, 0.006},
-		{"critically damped", 5, 1, 1, 25, 0.003},
+		{"1500 samples/underdamped", 1.499, 10, 1, 0.6, 15, 0.004},
+		{"1500 samples/overdamped", 1.499, 10, 0.95, 1.5, 25, 0.006},
+		{"1001 samples/underdamped", 1.0, 10, 1, 0.45, 22, 0.004},
+		{"1001 samples/overdamped", 1.0, 10, 0.95, 1.6, 30, 0.006},
+		{"1001 samples/critically damped", 1.0, 5, 1, 1, 25, 0.003},
 	} {
 		b.Run(tc.name, func(b *testing.B) {
-			tr, st := synthLog(7, 1e-3, 0.2, 1.0, 1.5, tc.dr, tc.g, tc.zeta, tc.wn, tc.th, 0.01, 0.01)
+			tr, st := synthLog(7, 1e-3, 0.2, tc.post, 1.5, tc.dr, tc.g, tc.zeta, tc.wn, tc.th, 0.01, 0.01)
 			for b.Loop() {
 				if _, err := Identify(tr, st, 0.55); err != nil {
 					b.Fatal(err)
