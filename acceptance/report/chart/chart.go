@@ -6,6 +6,7 @@ import (
 	"sort"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -190,15 +191,6 @@ func Downsample(t, y []float64, n int) ([]float64, []float64) {
 	return ot, oy
 }
 
-// SettlingBand returns the settling band half-width, as a fraction of the
-// step size, that the batch was measured with.
-func SettlingBand(b *acceptance.Batch) float64 {
-	if b.SpecDoc != nil && b.SpecDoc.Metrics.SettlingBandPct > 0 {
-		return b.SpecDoc.Metrics.SettlingBandPct / 100
-	}
-	return metrics.DefaultOptions().Band
-}
-
 // ForBatch lays out every step of every unit whose record was kept, and the
 // model's predictions when the batch has a model.
 func ForBatch(b *acceptance.Batch) *Overlay {
@@ -226,7 +218,7 @@ type segment struct {
 }
 
 func build(b *acceptance.Batch, units []int) *Overlay {
-	o := &Overlay{Band: SettlingBand(b)}
+	o := &Overlay{Band: digest.SettlingBand(b)}
 	var segs []segment
 	for _, ui := range units {
 		u := &b.Units[ui]

@@ -1,10 +1,17 @@
-// Package chart owns the step-response figures that the reports draw: it
-// turns recorded and predicted traces into step responses normalised to
-// their step, y = (response − from)/(to − from) against the time from the
-// step instant, reduces each curve to a few hundred points without losing
-// its peaks, chooses the time window and the settling band, and lays the
-// curves out as a gonum plot.
+// Package chart owns the figures that the reports draw, as gonum plots:
 //
+//   - the overlay of recorded and predicted steps normalised to their step,
+//     y = (response − from)/(to − from) against the time from the step
+//     instant, with the settling band (Overlay);
+//   - a unit's steps in the record's own units and clock, with the command,
+//     the prediction shifted to the step instant, the settling band and the
+//     instants at which the time limits end (UnitFigure);
+//   - the failure-reason Pareto bars (Pareto) and the histogram of a
+//     limited metric with its limits and predicted value (Histogram), from
+//     package digest.
+//
+// Curves are reduced to a few hundred points without losing their peaks,
+// and a figure holds a bounded number of curves whatever the batch size.
 // The package draws nothing itself: a report writer renders the returned
 // plot on its own canvas (vector graphics in the PDF report). It never
 // re-measures a metric; it only reshapes the samples that the batch kept.

@@ -188,3 +188,6 @@ func (NiceTicks) Ticks(min, max float64) []plot.Tick {
 	}
 	return ticks
 }
+
+// fontOf is the chart face at a size in points.
+func fontOf(size vg.Length) font.Font { return font.From(Font, size) }

@@ -2,18 +2,31 @@
 // QA lead who signs it, the plant manager who reads its first page, and the
 // test engineer who digs into the failures.
 //
-// The report opens with a summary (identification, the result banner with
-// counts and yield, the limits, the decision rule, the authorisation block,
-// and the model's prediction beside what the batch achieved), then a chart of every recorded step normalised to its step, a table of
-// every unit, a detail page for each unit that did not pass (or for every
-// unit), and the safety cautions. Every page carries the report title, the
-// spec id and revision, the report id and "page x of y", as ISO/IEC
-// 17025:2017 §7.8.2.1 asks of a test report.
+// The one-minute summary comes first: the identification that ISO/IEC
+// 17025:2017 §7.8.2.1 asks of a test report (report id, dates of issue and
+// of testing, specification with its SHA-256, tool, items tested,
+// laboratory, site and customer), the result banner with counts and yield,
+// the failure reasons as a Pareto bar chart and the limited metrics over
+// the measured steps with their capability indices; then a histogram per
+// limited metric with its limits and the predicted value. The method
+// follows (metric definitions with their references, the limits, the
+// decision rule, the statements and the authorisation block), then the
+// model against the line (predicted against achieved, the identified loop
+// against the model's, notes on likely causes worded as indications, the
+// designed gains with their caution), the overlay of every recorded step,
+// the unit table, a page per unit that did not pass (or per unit) with its
+// response, command and prediction, and the safety cautions, closed by an
+// end-of-report line. Every page carries the report title, the spec id and
+// revision, the report id and "page x of y".
+//
+// What the report shows is computed once by package digest; WriteDigest
+// takes a digest that another writer shares.
 //
 // Charts are drawn as vector graphics through Canvas, a gonum vg.Canvas
-// backed by gofpdf. Text is set in an embedded Unicode TrueType font
-// (Liberation Sans), so Greek letters, signs such as ± and µ, arrows and
-// non-ASCII serials print; text read from logs passes through Clean first.
+// backed by gofpdf; a page draws a bounded number of curves whatever the
+// batch size. Text is set in an embedded Unicode TrueType font (Liberation
+// Sans), so Greek letters, signs such as ± and µ, arrows and non-ASCII
+// serials print; text read from logs passes through Clean first.
 //
 // Output is deterministic: the document dates are the batch's report date,
 // resources are written in sorted order, and nothing reads the clock.

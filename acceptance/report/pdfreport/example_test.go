@@ -5,6 +5,7 @@ import (
 	"fmt"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -31,7 +32,7 @@ func ExampleWrite() {
 		return
 	}
 	fmt.Println(bytes.HasPrefix(buf.Bytes(), []byte("%PDF-")))
-	fmt.Println(pdfreport.ReportID(b))
+	fmt.Println(digest.ReportID(b))
 	// Output:
 	// true
 	// DEMO-A-c81406f0

@@ -22,7 +22,7 @@ import (
 
 func ptr(v float64) *float64 { return &v }
 
-func digest(s string) string {
+func sha(s string) string {
 	h := sha256.Sum256([]byte(s))
 	return hex.EncodeToString(h[:])
 }
@@ -134,9 +134,9 @@ func testBatch() *acceptance.Batch {
 	}
 	spec := &acceptance.Spec{
 		SpecID: "ACT-25", Revision: "C", Title: "Linear actuator VD-25, end-of-line step test",
-		ResponseUnit: "mm", Limits: limits, Source: "/specs/act-25.yaml", SHA256: digest("spec ACT-25 C"),
+		ResponseUnit: "mm", Limits: limits, Source: "/specs/act-25.yaml", SHA256: sha("spec ACT-25 C"),
 		Report: acceptance.ReportInfo{
-			Company: "Example Motion Works", Site: "Line 3 test bay", Address: "1 Test Street",
+			Company: "Example Motion Works", Site: "Line 3 test bay", Address: "1 Test Street", Customer: "Vent Systems Ltd",
 			PreparedBy: acceptance.Signatory{Name: "A. Engineer", Role: "Test engineer"},
 			ApprovedBy: acceptance.Signatory{Name: "Q. Lead", Role: "QA lead"},
 		},
@@ -147,6 +147,7 @@ func testBatch() *acceptance.Batch {
 		Spec:       acceptance.SpecInfo{SpecID: spec.SpecID, Revision: spec.Revision, SHA256: spec.SHA256, Title: spec.Title},
 		Limits:     limits,
 		ReportDate: "2024-05-17",
+		TestDates:  acceptance.DateRange{First: "2024-05-15", Last: "2024-05-16"},
 		SpecDoc:    spec,
 	}
 	predM := closedFormMetrics(0.6, 5, 0, 10)
@@ -158,6 +159,7 @@ func testBatch() *acceptance.Batch {
 			Realised:   acceptance.Prediction{Kind: "realised", Metrics: predM},
 			IdealTrace: secondOrder(0.6, 5, 0.002, 3, []float64{0}, []float64{10}),
 		}},
+		Designs: []acceptance.GainDesign{{Target: "overshoot_pct", Value: 15, KpIdeal: ptr(1.9)}},
 	}
 	units := []unitSpec{
 		{serial: "SN-1001", file: "logs/SN-1001.csv", zeta: 0.6, wn: 5, keepTrace: true},
@@ -168,7 +170,7 @@ func testBatch() *acceptance.Batch {
 	for _, us := range units {
 		tr := secondOrder(us.zeta, us.wn, 0.002, 6, []float64{0.5, 3.5}, []float64{10, 0})
 		u := acceptance.UnitResult{
-			Unit: us.serial, File: us.file, SHA256: digest(us.file), Samples: tr.Len(),
+			Unit: us.serial, File: us.file, SHA256: sha(us.file), Samples: tr.Len(),
 			Metadata: map[string]string{"rig": "EOL-3", "operator": "B. Tech"},
 			Verdict:  acceptance.Pass,
 		}
@@ -201,9 +203,7 @@ func testBatch() *acceptance.Batch {
 				}
 			}
 			u.Steps = append(u.Steps, s)
-			for _, r := range reasons {
-				u.Reasons = append(u.Reasons, fmt.Sprintf("step %d: %s", k+1, r))
-			}
+			u.Reasons = append(u.Reasons, reasons...)
 			if v == acceptance.Fail || (v == acceptance.Invalid && u.Verdict == acceptance.Pass) {
 				u.Verdict = v
 			}
@@ -221,8 +221,8 @@ func testBatch() *acceptance.Batch {
 	}
 	// An unreadable log: an invalid unit with no steps.
 	bad := acceptance.UnitResult{
-		Unit: "SN-1004", File: "logs/SN-1004.csv", SHA256: digest("SN-1004"), Verdict: acceptance.Invalid,
-		Reasons: []string{`logs/SN-1004.csv:12:3: cannot read "1,2.3" as a number in column "position"; set log.decimal_comma: true if the rig writes decimal commas`},
+		Unit: "SN-1004", File: "logs/SN-1004.csv", SHA256: sha("SN-1004"), Verdict: acceptance.Invalid,
+		Reasons: []string{`log cannot be read: logs/SN-1004.csv:12:3: cannot read "1,2.3" as a number in column "position"; set log.decimal_comma: true if the rig writes decimal commas`},
 	}
 	b.Units = append(b.Units[:3], append([]acceptance.UnitResult{bad}, b.Units[3:]...)...)
 	for _, u := range b.Units {

@@ -95,19 +95,57 @@ func (l *layout) fit(s string, w float64) string {
 }
 
 // wrap cleans s and splits it into lines of width w in the current font,
-// at most maxLines lines; a cut last line ends with an ellipsis.
+// at most maxLines lines (0: no limit); a cut last line ends with an
+// ellipsis. Lines break only at plain spaces, so a no-break space keeps a
+// number with its unit.
 func (l *layout) wrap(s string, w float64, maxLines int) []string {
 	s = Clean(s)
 	if s == "" {
 		return []string{""}
 	}
-	lines := l.pdf.SplitText(s, w)
-	if len(lines) == 0 {
-		return []string{""}
-	}
+	lines := l.split(s, w-2*l.pdf.GetCellMargin())
 	if maxLines > 0 && len(lines) > maxLines {
 		rest := strings.Join(lines[maxLines-1:], " ")
 		lines = append(lines[:maxLines-1], l.fit(rest+" …", w))
+	}
+	return lines
+}
+
+// split breaks s into lines no wider than avail in the current font,
+// greedily at plain spaces; a word wider than a line is cut between
+// characters.
+func (l *layout) split(s string, avail float64) []string {
+	var lines []string
+	line := ""
+	width := func(t string) float64 { return l.pdf.GetStringWidth(t) }
+	for _, word := range strings.Split(s, " ") {
+		if word == "" {
+			continue
+		}
+		try := word
+		if line != "" {
+			try = line + " " + word
+		}
+		if width(try) <= avail {
+			line = try
+			continue
+		}
+		if line != "" {
+			lines = append(lines, line)
+		}
+		line = word
+		for width(line) > avail {
+			r := []rune(line)
+			cut := len(r) - 1
+			for cut > 1 && width(string(r[:cut])) > avail {
+				cut--
+			}
+			lines = append(lines, string(r[:cut]))
+			line = string(r[cut:])
+		}
+	}
+	if line != "" || len(lines) == 0 {
+		lines = append(lines, line)
 	}
 	return lines
 }
@@ -141,12 +179,16 @@ func (l *layout) subheading(s string, keep float64) {
 	l.pdf.CellFormat(contentW, 5.5, l.fit(s, contentW), "", 1, "L", false, 0, "")
 }
 
-// para prints wrapped text across the body width.
+// para prints wrapped text across the body width, breaking pages between
+// lines.
 func (l *layout) para(s string, size, lh float64, c rgb) {
 	l.font("", size)
 	l.textColour(c)
-	l.pdf.SetX(marginL)
-	l.pdf.MultiCell(contentW, lh, Clean(s), "", "L", false)
+	for _, line := range l.wrap(s, contentW, 0) {
+		l.ensure(lh)
+		l.pdf.SetX(marginL)
+		l.pdf.CellFormat(contentW, lh, line, "", 1, "L", false, 0, "")
+	}
 }
 
 // column is one column of a table.

@@ -4,15 +4,13 @@ import (
 	"bytes"
 	"fmt"
 	"math"
-	"regexp"
 	"strings"
 	"testing"
 
+	"codeberg.org/go-fonts/liberation/liberationsansregular"
 	"github.com/jung-kurt/gofpdf"
 	"gonum.org/v1/plot/vg"
 
-	"github.com/stepgate/stepgate/acceptance"
-	"github.com/stepgate/stepgate/metrics"
 	"github.com/stepgate/stepgate/templates"
 )
 
@@ -52,21 +50,6 @@ func TestGlyphs(t *testing.T) {
 	for _, r := range "\U0001F600\u4e2d" {
 		if HasGlyph(r) {
 			t.Errorf("HasGlyph(%q) = true for a character Liberation Sans does not cover", r)
-		}
-	}
-}
-
-func TestNum(t *testing.T) {
-	tests := []struct {
-		in   float64
-		want string
-	}{
-		{0, "0"}, {10, "10"}, {9.478, "9.478"}, {0.55362, "0.5536"}, {1.33333, "1.333"},
-		{-0.9478, "-0.9478"}, {12345.6, "12346"}, {0.0001234, "1.234e-04"}, {2.5e6, "2.500e+06"},
-	}
-	for _, tc := range tests {
-		if got := Num(tc.in); got != tc.want {
-			t.Errorf("Num(%v) = %q, want %q", tc.in, got, tc.want)
 		}
 	}
 }
@@ -114,123 +97,6 @@ func TestCautions(t *testing.T) {
 				t.Errorf("cautions line prints differently from its text: %q → %q", l, c)
 			}
 		}
-	}
-}
-
-func TestReportID(t *testing.T) {
-	b := testBatch()
-	id := ReportID(b)
-	if !regexp.MustCompile(`^ACT-25-C-[0-9a-f]{8}$`).MatchString(id) {
-		t.Fatalf("ReportID = %q, want ACT-25-C- and 8 hex digits", id)
-	}
-	if again := ReportID(testBatch()); again != id {
-		t.Errorf("same inputs gave %q and %q", id, again)
-	}
-	tests := []struct {
-		name string
-		edit func(b *acceptance.Batch)
-	}{
-		{"unit file changed", func(b *acceptance.Batch) { b.Units[0].SHA256 = digest("other") }},
-		{"unit renamed", func(b *acceptance.Batch) { b.Units[0].Unit = "SN-9001" }},
-		{"units reordered", func(b *acceptance.Batch) { b.Units[0], b.Units[1] = b.Units[1], b.Units[0] }},
-		{"unit dropped", func(b *acceptance.Batch) { b.Units = b.Units[1:] }},
-		{"spec changed", func(b *acceptance.Batch) { b.Spec.SHA256 = digest("other spec") }},
-		{"date changed", func(b *acceptance.Batch) { b.ReportDate = "2024-05-18" }},
-		{"tool changed", func(b *acceptance.Batch) { b.Tool.Version = "0.2.0" }},
-	}
-	for _, tc := range tests {
-		b := testBatch()
-		tc.edit(b)
-		if got := ReportID(b); got == id {
-			t.Errorf("%s: report id unchanged (%s)", tc.name, got)
-		}
-	}
-	// The same files in another folder are the same inputs.
-	b = testBatch()
-	for i := range b.Units {
-		b.Units[i].File = "/elsewhere/" + b.Units[i].File
-	}
-	if got := ReportID(b); got != id {
-		t.Errorf("moving the logs changed the id: %s, was %s", got, id)
-	}
-	b = testBatch()
-	b.Spec.SpecID, b.Spec.Revision = "", ""
-	if got := ReportID(b); !regexp.MustCompile(`^[0-9a-f]{8}$`).MatchString(got) {
-		t.Errorf("without spec id and revision: %q, want 8 hex digits", got)
-	}
-}
-
-func TestLimitedMetricsAndUnits(t *testing.T) {
-	b := testBatch()
-	b.Limits["zz_custom"] = acceptance.Limit{}
-	got := strings.Join(LimitedMetrics(b), ",")
-	// metrics.Names order, then others alphabetically
-	want := "final_value,rise_time_s,overshoot_pct,settling_time_s,zz_custom"
-	if got != want {
-		t.Errorf("LimitedMetrics = %s, want %s", got, want)
-	}
-	for _, tc := range []struct{ name, want string }{
-		{"overshoot_pct", "%"}, {"rise_time_s", "s"}, {"final_value", "mm"}, {"steady_state_error", "mm"},
-		{"steady_state_error_pct", "%"}, {"zz_custom", ""},
-	} {
-		if u := MetricUnit(tc.name, "mm"); u != tc.want {
-			t.Errorf("MetricUnit(%s) = %q, want %q", tc.name, u, tc.want)
-		}
-	}
-}
-
-func TestCompare(t *testing.T) {
-	b := testBatch()
-	cmp := Compare(b)
-	if len(cmp) != len(LimitedMetrics(b)) {
-		t.Fatalf("%d comparisons, want one per limited metric (%d)", len(cmp), len(LimitedMetrics(b)))
-	}
-	// Overshoot of the up-steps: the four recorded units, closed form
-	// 100·exp(−πζ/√(1−ζ²)) (Ogata, 5th ed., §5-3).
-	var sum, lo, hi float64 = 0, math.Inf(1), math.Inf(-1)
-	for _, u := range b.Units {
-		for _, s := range u.Steps {
-			if s.From == 0 && s.To == 10 {
-				v := s.Metrics[string(metrics.Overshoot)].V
-				sum += v
-				lo, hi = math.Min(lo, v), math.Max(hi, v)
-			}
-		}
-	}
-	for _, c := range cmp {
-		if c.Metric != string(metrics.Overshoot) {
-			continue
-		}
-		wantPred := 100 * math.Exp(-math.Pi*0.6/math.Sqrt(1-0.36)) // 9.48 % for ζ = 0.6 (Ogata Example 5-1, from memory)
-		if !c.Predicted.OK || math.Abs(c.Predicted.V-wantPred) > 1e-9 {
-			t.Errorf("predicted overshoot %+v, want %.4f", c.Predicted, wantPred)
-		}
-		if c.Kind != "ideal" || c.Steps != 4 || c.Measured != 4 {
-			t.Errorf("kind %s, %d of %d steps: want ideal, 4 of 4", c.Kind, c.Measured, c.Steps)
-		}
-		if math.Abs(c.Mean.V-sum/4) > 1e-12 || c.Min.V != lo || c.Max.V != hi {
-			t.Errorf("mean/min/max %v %v %v, want %v %v %v", c.Mean.V, c.Min.V, c.Max.V, sum/4, lo, hi)
-		}
-	}
-	// A nominal step that no unit made has unknown statistics, not zeros.
-	b.Model.Nominal[0].From, b.Model.Nominal[0].To = 0, 5
-	for _, c := range Compare(b) {
-		if c.Mean.OK || c.Min.OK || c.Max.OK || c.Mean.Why == "" || c.Steps != 0 {
-			t.Errorf("%s: unmatched nominal step gave %+v", c.Metric, c)
-		}
-	}
-	b.Model = nil
-	if Compare(b) != nil {
-		t.Errorf("Compare without a model should be nil")
-	}
-}
-
-func TestYield(t *testing.T) {
-	if _, ok := Yield(acceptance.Summary{}); ok {
-		t.Errorf("yield of no units should be undefined")
-	}
-	if y, ok := Yield(acceptance.Summary{Units: 8, Pass: 6, Fail: 2}); !ok || y != 0.75 {
-		t.Errorf("yield 6 of 8 = %v, want 0.75", y)
 	}
 }
 
@@ -287,5 +153,42 @@ func TestCanvasGeometry(t *testing.T) {
 	line := fmt.Sprintf("%.2f %.2f l", (x0+25.4)*k, (297-(y0+h-25.4))*k)
 	if !bytes.Contains(buf.Bytes(), []byte(move)) || !bytes.Contains(buf.Bytes(), []byte(line)) {
 		t.Errorf("content lacks %q then %q", move, line)
+	}
+}
+
+// TestWrap checks the line breaking of the layout: lines break at plain
+// spaces only, so a no-break space (U+00A0) keeps a number with its unit,
+// and a word longer than a line is cut.
+func TestWrap(t *testing.T) {
+	pdf := gofpdf.New("P", "mm", "A4", "")
+	pdf.AddUTF8FontFromBytes(fontFamily, "", liberationsansregular.TTF)
+	pdf.SetFont(fontFamily, "", 10)
+	l := &layout{pdf: pdf}
+	w := pdf.GetStringWidth("coefficient of variation 7.05")*1.02 + 2*pdf.GetCellMargin()
+	tests := []struct {
+		in   string
+		want []string
+	}{
+		{"coefficient of variation 7.05 %, above", []string{"coefficient of variation 7.05", "%, above"}},
+		{"coefficient of variation 7.05\u00a0%, above", []string{"coefficient of variation", "7.05\u00a0%, above"}},
+		{"", []string{""}},
+	}
+	for _, tc := range tests {
+		if got := l.wrap(tc.in, w, 0); strings.Join(got, "|") != strings.Join(tc.want, "|") {
+			t.Errorf("wrap(%q) = %q, want %q", tc.in, got, tc.want)
+		}
+	}
+	long := strings.Repeat("x", 200)
+	lines := l.wrap(long, w, 0)
+	if len(lines) < 2 || strings.Join(lines, "") != long {
+		t.Errorf("a long word should be cut into lines that join to it: %q", lines)
+	}
+	for _, line := range lines {
+		if pdf.GetStringWidth(line) > w-2*pdf.GetCellMargin()+1e-9 {
+			t.Errorf("line %q wider than the cell", line)
+		}
+	}
+	if cut := l.wrap("one two three four five six seven eight nine ten eleven twelve", w, 2); len(cut) != 2 || !strings.HasSuffix(cut[1], "…") {
+		t.Errorf("two lines at most: %q", cut)
 	}
 }

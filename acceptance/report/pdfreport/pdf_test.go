@@ -15,6 +15,7 @@ import (
 	"unicode/utf16"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 )
 
 // pdfString is a string as gofpdf writes it into a content stream or the
@@ -95,9 +96,10 @@ func TestWriteStructure(t *testing.T) {
 		opt      Options
 		minPages int
 	}{
-		// summary, chart, unit table, one page per unit that did not pass, cautions
-		{"units that did not pass", Options{Uncompressed: true}, 3 + notPassed + 1},
-		{"every unit", Options{Uncompressed: true, AllUnits: true}, 3 + len(b.Units) + 1},
+		// summary, histograms, method, model against the line, step
+		// responses, unit table, one page per unit that did not pass, cautions
+		{"units that did not pass", Options{Uncompressed: true}, 6 + notPassed + 1},
+		{"every unit", Options{Uncompressed: true, AllUnits: true}, 6 + len(b.Units) + 1},
 	}
 	pages := map[string]int{}
 	for _, tc := range tests {
@@ -138,18 +140,38 @@ func TestWriteStructure(t *testing.T) {
 func TestWriteText(t *testing.T) {
 	b := testBatch()
 	out := write(t, b, Options{Uncompressed: true})
-	id := ReportID(b)
+	id := digest.ReportID(b)
 	want := []string{
-		"ACT-25",                               // spec id
-		"spec ACT-25 rev C",                    // page header
-		"report " + id,                         // header: report id on every page
-		"SN-1002-ζ±µ→",                         // failing unit, non-ASCII serial
-		"SN-1004",                              // invalid unit (unreadable file)
-		"SN-1005",                              // invalid unit, its BEL character removed
-		"Safety when testing moving machinery", // caution heading
-		"End of report " + id,
+		// Identification, ISO/IEC 17025:2017 §7.8.2.1 (references §7).
+		"report " + id,      // header: report id on every page
+		"spec ACT-25 rev C", // page header
+		"ACT-25, revision C",
+		b.Spec.SHA256,
+		"2024-05-15 to 2024-05-16", // test dates, earliest to latest
+		"2024-05-17",               // date of issue
+		"Example Motion Works", "1 Test Street", "Vent Systems Ltd", "Line 3 test bay",
+		"stepgate 0.1.0",
+		"Prepared by", "Reviewed by", "Approved by", "A. Engineer",
+		// Method: definitions with references, and the decision rule.
+		"ANSI/ISA-51.1-1979 (R1993)", "IEEE Std 181-2011 (state levels)",
+		"Simple acceptance (ISO 14253-1:2017; ILAC-G8:09/2019)",
+		// The one-minute summary.
+		"2 of 5 units passed", "yield 40.0 %",
+		"Why units did not pass (3 of 5 units)", "overshoot above its max", "log cannot be read",
+		"Limited metrics over the measured steps", "Distribution of the limited metrics",
+		// The model against the line.
+		"Predicted against achieved", "Identified loop against the model", "Likely causes: indications, not proof",
+		"Gains the model gives, for reference",
+		// Units.
+		"SN-1002-ζ±µ→", // failing unit, non-ASCII serial
+		"SN-1004",      // invalid unit (unreadable file)
+		"SN-1005",      // invalid unit, its BEL character removed
 		"Units that did not pass (3)",
 		"All units (5)",
+		"Response, command and prediction",
+		// Cautions and the end of the report.
+		"Safety when testing moving machinery",
+		"— " + EndMark + " " + id + " —",
 	}
 	for _, w := range want {
 		if !bytes.Contains(out, []byte(pdfString(w, false))) {
@@ -157,8 +179,8 @@ func TestWriteText(t *testing.T) {
 		}
 	}
 	for _, u := range b.Units {
-		if u.Verdict == acceptance.Fail && !bytes.Contains(out, []byte(pdfString(Clean(u.Unit), false))) {
-			t.Errorf("failing unit %q not found", u.Unit)
+		if u.Verdict != acceptance.Pass && !bytes.Contains(out, []byte(pdfString(Clean("Unit "+u.Unit), false))) {
+			t.Errorf("unit %q did not pass but has no page", u.Unit)
 		}
 	}
 	if bytes.Contains(out, []byte(pdfString("SN-9999", false))) {
@@ -222,9 +244,15 @@ func TestWriteTextExtracted(t *testing.T) {
 	pages := strings.Count(string(raw), "\f")
 	for _, w := range []string{
 		"ACT-25", "SN-1002-ζ±µ→", "SN-1004", "2 of 5 units passed", "yield 40.0 %",
-		"page 1 of " + strconv.Itoa(pages), "report " + ReportID(b),
+		"page 1 of " + strconv.Itoa(pages), "page " + strconv.Itoa(pages) + " of " + strconv.Itoa(pages), "report " + digest.ReportID(b),
 		"no safety certification", "ISO 12100:2010", "OSHA 29 CFR 1910.147",
 		"ζ = 0.25, ωn = 6 rad/s", // the identified loop of SN-1002
+		"Test dates 2024-05-15 to 2024-05-16", "Spec SHA-256 " + b.Spec.SHA256,
+		"End of report " + digest.ReportID(b), "This report has " + strconv.Itoa(pages) + " pages; this is the last.",
+		// The gain caution of templates.GainCaution, and the closing advice.
+		"CAUTION: a gain computed from a linear model", "Reduce it, try it on the machine with the guards",
+		// Capability of the overshoot limit (max only): Cpu, flagged n < 30.
+		"Cpu", "indicative only, n < 30",
 	} {
 		if !strings.Contains(text, w) {
 			t.Errorf("extracted text lacks %q", w)
@@ -279,7 +307,10 @@ func TestWriteEmptyBatch(t *testing.T) {
 	b.Model = nil
 	out := write(t, b, Options{Uncompressed: true})
 	for _, w := range []string{"No units were tested", "yield: not defined", "The batch has no units.", "Units",
-		"No step response can be drawn: no record of a step was kept for this report."} {
+		"No unit was tested.", "No step response can be drawn: no record of a step was kept for this report.",
+		"The spec has no model section, so nothing was predicted",
+		"not measured on any step: no histogram", // limited metrics, no step measured
+	} {
 		if !bytes.Contains(out, []byte(pdfString(w, false))) {
 			t.Errorf("empty batch: text %q not found", w)
 		}
@@ -313,5 +344,29 @@ func TestWriteLogo(t *testing.T) {
 	pages := len(pageObject.FindAll(out, -1))
 	if n := bytes.Count(out, []byte(" Do Q")); n < pages {
 		t.Errorf("logo drawn %d times on %d pages", n, pages)
+	}
+}
+
+// TestWriteAllPassed: a batch in which every unit passed has no failure
+// reasons to chart and no unit pages.
+func TestWriteAllPassed(t *testing.T) {
+	b := testBatch()
+	var kept []acceptance.UnitResult
+	for _, u := range b.Units {
+		if u.Verdict == acceptance.Pass {
+			kept = append(kept, u)
+		}
+	}
+	b.Units, b.Summary = kept, acceptance.Count(kept)
+	out := write(t, b, Options{Uncompressed: true})
+	for _, w := range []string{"Every unit passed: there is no failure reason to show.", "2 of 2 units passed", "yield 100.0 %"} {
+		if !bytes.Contains(out, []byte(pdfString(w, false))) {
+			t.Errorf("text %q not found", w)
+		}
+	}
+	for _, w := range []string{"Units that did not pass", "Unit SN-1001"} {
+		if bytes.Contains(out, []byte(pdfString(w, false))) {
+			t.Errorf("a batch that passed shows %q", w)
+		}
 	}
 }

@@ -93,23 +93,3 @@ func formatFloats(v []float64) string {
 	}
 	return strings.Join(parts, ",")
 }
-
-// Num formats a measured number for a table: four significant digits,
-// without an exponent between 0.001 and 1,000,000, and a plain "0" for zero.
-func Num(v float64) string {
-	if v == 0 {
-		return "0"
-	}
-	a := v
-	if a < 0 {
-		a = -a
-	}
-	if a < 1e-3 || a >= 1e6 {
-		return strconv.FormatFloat(v, 'e', 3, 64)
-	}
-	s := strconv.FormatFloat(v, 'g', 4, 64)
-	if strings.ContainsAny(s, "eE") {
-		s = strconv.FormatFloat(v, 'f', 0, 64)
-	}
-	return s
-}

@@ -1,0 +1,226 @@
+package chart
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"strconv"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
+)
+
+// MaxBars is the most reasons a Pareto chart shows; the rest are counted
+// in a note by the report.
+const MaxBars = 10
+
+// Colours of the summary charts.
+var (
+	ColourBars      = color.RGBA{R: 0x44, G: 0x77, B: 0xAA, A: 0xFF} // histogram bars, as passed steps
+	ColourLimit     = ColourFail                                     // limit lines
+	ColourPredicted = ColourPrediction                               // predicted value
+	colourMean      = color.RGBA{R: 0x66, G: 0x66, B: 0x66, A: 0xFF}
+)
+
+// Pareto lays out the failure reasons as horizontal bars, most frequent at
+// the top, at most MaxBars of them, each labelled with its count of units
+// and its share of the units tested: red for a limit exceeded, orange for a
+// reason that kept the data from showing pass or fail. It fails when there
+// are no causes to draw.
+func Pareto(causes []digest.Cause, units int) (*plot.Plot, error) {
+	if len(causes) == 0 {
+		return nil, fmt.Errorf("chart: no failure reasons to draw")
+	}
+	shown := causes
+	if len(shown) > MaxBars {
+		shown = shown[:MaxBars]
+	}
+	p := plot.New()
+	setFonts(p)
+	p.BackgroundColor = color.White
+	p.X.Label.Text = "units showing the reason"
+	n := len(shown)
+	names := make([]string, n)
+	most := 0
+	var labels plotter.XYLabels
+	for i, c := range shown {
+		pos := float64(n - 1 - i) // most frequent at the top
+		names[n-1-i] = c.Label
+		most = max(most, c.Units)
+		bar, err := plotter.NewBarChart(plotter.Values{float64(c.Units)}, vg.Points(10))
+		if err != nil {
+			return nil, fmt.Errorf("chart: bar %q: %w", c.Label, err)
+		}
+		bar.Horizontal = true
+		bar.XMin = pos
+		bar.LineStyle.Width = 0
+		bar.Color = ColourInvalid
+		if c.Verdict == acceptance.Fail {
+			bar.Color = ColourFail
+		}
+		p.Add(bar)
+		text := strconv.Itoa(c.Units)
+		if units > 0 {
+			text += " (" + strconv.FormatFloat(100*float64(c.Units)/float64(units), 'f', 0, 64) + " %)"
+		}
+		labels.XYs = append(labels.XYs, plotter.XY{X: float64(c.Units), Y: pos})
+		labels.Labels = append(labels.Labels, text)
+	}
+	l, err := plotter.NewLabels(labels)
+	if err != nil {
+		return nil, fmt.Errorf("chart: bar labels: %w", err)
+	}
+	for i := range l.TextStyle {
+		l.TextStyle[i].Font = fontOf(7.5)
+		l.TextStyle[i].YAlign = -0.5
+		l.Offset = vg.Point{X: vg.Points(3)}
+	}
+	p.Add(l)
+	p.NominalY(names...)
+	p.Y.Tick.Label.Font = fontOf(8)
+	p.X.Min = 0
+	p.X.Max = float64(most) * 1.3
+	p.X.Tick.Marker = countTicks{}
+	p.Y.Min, p.Y.Max = -0.6, float64(n)-0.4
+	grid := plotter.NewGrid()
+	grid.Horizontal.Width = 0
+	grid.Vertical.Color = colourGrid
+	grid.Vertical.Width = vg.Points(0.4)
+	p.Add(grid)
+	return p, nil
+}
+
+// Histogram lays out the histogram of one limited metric over the measured
+// steps, the bins beyond the limits in red, with its limits as red dashed
+// lines, the predicted value as a black line and the batch mean as a grey
+// dotted one. It fails when the
+// metric was measured on no step.
+func Histogram(s digest.MetricStats) (*plot.Plot, error) {
+	if len(s.Bins) == 0 {
+		return nil, fmt.Errorf("chart: %s was measured on no step", s.Metric)
+	}
+	p := plot.New()
+	setFonts(p)
+	p.BackgroundColor = color.White
+	p.Title.Text = s.Label
+	if s.Unit != "" {
+		p.X.Label.Text = s.Label + " (" + s.Unit + ")"
+	} else {
+		p.X.Label.Text = s.Label
+	}
+	p.Y.Label.Text = "steps"
+	p.Title.TextStyle.Font = fontOf(9.5)
+	p.X.Label.TextStyle.Font = fontOf(8)
+	p.Y.Label.TextStyle.Font = fontOf(8)
+	// Bins inside the limits in blue, bins beyond them in red.
+	in := &plotter.Histogram{FillColor: ColourBars}
+	out := &plotter.Histogram{FillColor: ColourFail}
+	most := 0
+	for _, b := range s.Bins {
+		bin := plotter.HistogramBin{Min: b.Lo, Max: b.Hi, Weight: float64(b.Count)}
+		if b.Outside {
+			out.Bins = append(out.Bins, bin)
+		} else {
+			in.Bins = append(in.Bins, bin)
+		}
+		most = max(most, b.Count)
+	}
+	for _, h := range []*plotter.Histogram{in, out} {
+		if len(h.Bins) == 0 {
+			continue
+		}
+		h.LineStyle.Width = vg.Points(0.4)
+		h.LineStyle.Color = color.White
+		h.Width = h.Bins[0].Max - h.Bins[0].Min
+		p.Add(h)
+	}
+	lo, hi := s.Bins[0].Lo, s.Bins[len(s.Bins)-1].Hi
+	top := math.Max(1, float64(most)) * 1.25
+	vline := func(x float64, c color.Color, width float64, dashes []vg.Length) (*plotter.Line, error) {
+		l, err := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: top}})
+		if err != nil {
+			return nil, err
+		}
+		l.Color, l.Width, l.Dashes = c, vg.Points(width), dashes
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+		return l, nil
+	}
+	var limitLine *plotter.Line
+	for _, lim := range []*float64{s.Min, s.Max} {
+		if lim == nil {
+			continue
+		}
+		l, err := vline(*lim, ColourLimit, 1.2, []vg.Length{vg.Points(4), vg.Points(2)})
+		if err != nil {
+			return nil, fmt.Errorf("chart: %s limit: %w", s.Metric, err)
+		}
+		p.Add(l)
+		limitLine = l
+	}
+	var meanLine, predLine *plotter.Line
+	if s.Mean.OK {
+		l, err := vline(s.Mean.V, colourMean, 0.9, []vg.Length{vg.Points(1), vg.Points(1.5)})
+		if err != nil {
+			return nil, fmt.Errorf("chart: %s mean: %w", s.Metric, err)
+		}
+		p.Add(l)
+		meanLine = l
+	}
+	if s.Predicted.OK {
+		l, err := vline(s.Predicted.V, ColourPredicted, 1.4, nil)
+		if err != nil {
+			return nil, fmt.Errorf("chart: %s prediction: %w", s.Metric, err)
+		}
+		p.Add(l)
+		predLine = l
+	}
+	if limitLine != nil {
+		p.Legend.Add("limit", limitLine)
+	}
+	if predLine != nil {
+		p.Legend.Add("predicted", predLine)
+	}
+	if meanLine != nil {
+		p.Legend.Add("mean", meanLine)
+	}
+	p.Legend.Top = true
+	p.Legend.TextStyle.Font = fontOf(7)
+	p.Legend.ThumbnailWidth = vg.Points(16)
+	p.Legend.Padding = vg.Points(1.5)
+	pad := 0.05 * (hi - lo)
+	if pad == 0 {
+		pad = 1
+	}
+	p.X.Min, p.X.Max = lo-pad, hi+pad
+	p.Y.Min, p.Y.Max = 0, top*1.15
+	p.X.Tick.Marker = NiceTicks{}
+	p.Y.Tick.Marker = countTicks{}
+	return p, nil
+}
+
+// countTicks marks a count axis at whole numbers: every 1, 2 or 5 times a
+// power of ten, at least four labelled ticks where the range allows.
+type countTicks struct{}
+
+// Ticks returns the ticks for the range min..max.
+func (countTicks) Ticks(min, max float64) []plot.Tick {
+	step := 1.0
+	for _, s := range []float64{1, 2, 5, 10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10000, 20000, 50000} {
+		step = s
+		if (max-min)/s <= 8 {
+			break
+		}
+	}
+	for (max-min)/step > 8 {
+		step *= 10
+	}
+	var ticks []plot.Tick
+	for v := math.Ceil(min/step) * step; v <= max; v += step {
+		ticks = append(ticks, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', 0, 64)})
+	}
+	return ticks
+}

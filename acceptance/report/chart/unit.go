@@ -1,0 +1,340 @@
+package chart
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// MaxPanels is the most steps a unit's figure draws; the unit page lists
+// every step in its tables.
+const MaxPanels = 4
+
+// Colours of the unit figure: the command grey, the limit instants in
+// P. Tol's purple and green (SRON/EPS/TN/09-002, from memory).
+var (
+	ColourCommand  = color.RGBA{R: 0x88, G: 0x88, B: 0x88, A: 0xFF}
+	colourRiseMark = color.RGBA{R: 0xAA, G: 0x33, B: 0x77, A: 0xFF}
+	colourSettMark = color.RGBA{R: 0x22, G: 0x88, B: 0x33, A: 0xFF}
+	colourMark     = color.RGBA{R: 0x66, G: 0x66, B: 0x66, A: 0xFF}
+)
+
+// UnitFigure is the figure of one unit: one panel per step, up to
+// MaxPanels, each in the record's own units and clock.
+type UnitFigure struct {
+	Panels []Panel
+	// Steps counts the unit's steps; NotDrawn those beyond MaxPanels.
+	Steps, NotDrawn int
+	// Skipped lists steps that could not be drawn, with the reason.
+	Skipped []string
+	// PredictionKind is "realised" or "ideal" when a panel shows a
+	// prediction.
+	PredictionKind string
+	// ResponseUnit labels the value axis.
+	ResponseUnit string
+}
+
+// Panel is one step of a unit: response and command against time on the
+// record's clock, the prediction shifted to the step instant, the settling
+// band around the final value and the instants at which limited times end.
+type Panel struct {
+	Step     int
+	Verdict  acceptance.Verdict
+	Start    float64 // step instant, seconds on the record's clock
+	From, To float64
+	// T and Response, CmdT and Command are the record over the panel's
+	// window, each thinned to at most PointsFew points.
+	T, Response, CmdT, Command []float64
+	// PredT, PredY are the prediction shifted to the step instant; empty
+	// without one.
+	PredT, PredY []float64
+	// BandLo and BandHi bound the settling band, from the step instant to
+	// the end of the window.
+	BandLo, BandHi float64
+	// End is the end of the window on the record's clock.
+	End float64
+	// Marks are the instants step instant + limit of every limited time.
+	Marks []Mark
+}
+
+// Mark is a vertical line at an instant on the record's clock.
+type Mark struct {
+	At    float64
+	Label string // e.g. "rise-time max 0.16 s"
+	kind  string // metric name
+}
+
+// ForUnitSteps lays out the steps of unit number i of the batch (an index
+// into b.Units). A unit without a kept record gets a figure without panels.
+func ForUnitSteps(b *acceptance.Batch, i int) *UnitFigure {
+	u := &b.Units[i]
+	f := &UnitFigure{Steps: len(u.Steps), ResponseUnit: digest.ResponseUnit(b)}
+	if u.Trace == nil || u.Trace.Len() == 0 {
+		return f
+	}
+	band := digest.SettlingBand(b)
+	for si := range u.Steps {
+		if len(f.Panels) == MaxPanels {
+			f.NotDrawn = len(u.Steps) - si
+			break
+		}
+		s := &u.Steps[si]
+		label := fmt.Sprintf("step %d", s.Index)
+		start, err := StartIndex(u.Trace, s.StartS)
+		if err != nil {
+			f.Skipped = append(f.Skipped, label+": "+err.Error())
+			continue
+		}
+		end := u.Trace.Len()
+		if si+1 < len(u.Steps) {
+			if e, err := StartIndex(u.Trace, u.Steps[si+1].StartS); err == nil && e > start {
+				end = e
+			}
+		}
+		lo := 0
+		if si > 0 {
+			if e, err := StartIndex(u.Trace, u.Steps[si-1].StartS); err == nil && e < start {
+				lo = e
+			}
+		}
+		pn := panel(b, u.Trace, s, start, end, lo, band)
+		if pn.PredT != nil {
+			f.PredictionKind = predictionKind(b)
+		}
+		f.Panels = append(f.Panels, pn)
+	}
+	return f
+}
+
+func predictionKind(b *acceptance.Batch) string {
+	if b.Model != nil && b.Model.Realised {
+		return "realised"
+	}
+	return "ideal"
+}
+
+// panel cuts one step's window out of the record.
+func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, start, end, lo int, band float64) Panel {
+	p := Panel{Step: s.Index, Verdict: s.Verdict, Start: tr.Time[start], From: s.From, To: s.To}
+	recEnd := tr.Time[end-1]
+	window := recEnd - p.Start
+	if l, ok := b.Limits[string(metrics.SettlingTime)]; ok && l.Max != nil && *l.Max > 0 {
+		window = math.Min(window, windowOverSett**l.Max)
+	}
+	if window <= 0 {
+		window = recEnd - p.Start
+	}
+	p.End = p.Start + window
+	t0 := math.Max(tr.Time[lo], p.Start-0.1*window)
+	var t, y, c []float64
+	for k := lo; k < end && tr.Time[k] <= p.End; k++ {
+		if tr.Time[k] < t0 {
+			continue
+		}
+		t = append(t, tr.Time[k])
+		y = append(y, tr.Response[k])
+		if k < len(tr.Command) {
+			c = append(c, tr.Command[k])
+		}
+	}
+	p.T, p.Response = Downsample(t, y, PointsFew)
+	if len(c) == len(t) {
+		p.CmdT, p.Command = Downsample(t, c, PointsFew)
+	}
+	centre := s.To
+	if v, ok := s.Metrics[string(metrics.FinalValue)]; ok && v.OK {
+		centre = v.V
+	}
+	half := band * math.Abs(s.To-s.From)
+	p.BandLo, p.BandHi = centre-half, centre+half
+	p.PredT, p.PredY = shiftedPrediction(b, s, t0, p.Start, p.End)
+	for _, name := range digest.LimitedMetrics(b) {
+		if !strings.HasSuffix(name, "_s") || name == "start_s" {
+			continue
+		}
+		l := b.Limits[name]
+		for _, side := range []struct {
+			v    *float64
+			word string
+		}{{l.Min, "min"}, {l.Max, "max"}} {
+			if side.v == nil || *side.v < 0 {
+				continue
+			}
+			label := strings.ReplaceAll(digest.MetricLabel(name), " ", "-") + " " + side.word + " " + digest.Num(*side.v) + " s"
+			p.Marks = append(p.Marks, Mark{At: p.Start + *side.v, Label: label, kind: name})
+		}
+	}
+	return p
+}
+
+// shiftedPrediction returns the nominal prediction of the step's command
+// change (levels within 1 % of the step size), its time shifted so that
+// its step instant falls on the recorded one, over [t0, end].
+func shiftedPrediction(b *acceptance.Batch, s *acceptance.StepResult, t0, at, end float64) (t, y []float64) {
+	if b.Model == nil {
+		return nil, nil
+	}
+	tol := 0.01 * math.Abs(s.To-s.From)
+	for _, n := range b.Model.Nominal {
+		if math.Abs(n.From-s.From) > tol || math.Abs(n.To-s.To) > tol {
+			continue
+		}
+		tr := n.IdealTrace
+		if b.Model.Realised {
+			tr = n.RealisedTrace
+		}
+		if tr == nil || tr.Len() == 0 {
+			continue
+		}
+		k0, err := CommandStart(tr, n.From, n.To)
+		if err != nil {
+			continue
+		}
+		shift := at - tr.Time[k0]
+		var pt, py []float64
+		for k := range tr.Time {
+			tt := tr.Time[k] + shift
+			if tt < t0 {
+				continue
+			}
+			if tt > end {
+				break
+			}
+			pt = append(pt, tt)
+			py = append(py, tr.Response[k])
+		}
+		return Downsample(pt, py, PointsFew)
+	}
+	return nil, nil
+}
+
+// Plot lays the panel out: the settling band, the command, the prediction,
+// the response coloured by the step's verdict, and the limit instants.
+func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
+	p := plot.New()
+	setFonts(p)
+	p.BackgroundColor = color.White
+	p.Title.Text = strings.TrimSpace(fmt.Sprintf("step %d: %s → %s %s", pn.Step, digest.Num(pn.From), digest.Num(pn.To), responseUnit)) +
+		", " + strings.ToUpper(string(pn.Verdict))
+	p.Title.TextStyle.Font = fontOf(9)
+	p.X.Label.Text = "time (s)"
+	p.Y.Label.Text = "response"
+	if responseUnit != "" {
+		p.Y.Label.Text += " (" + responseUnit + ")"
+	}
+	p.X.Label.TextStyle.Font = fontOf(8)
+	p.Y.Label.TextStyle.Font = fontOf(8)
+	p.X.Tick.Marker = NiceTicks{}
+	p.Y.Tick.Marker = NiceTicks{}
+	grid := plotter.NewGrid()
+	grid.Vertical.Color, grid.Horizontal.Color = colourGrid, colourGrid
+	grid.Vertical.Width, grid.Horizontal.Width = vg.Points(0.4), vg.Points(0.4)
+	p.Add(grid)
+
+	band, err := plotter.NewPolygon(plotter.XYs{
+		{X: pn.Start, Y: pn.BandLo}, {X: pn.End, Y: pn.BandLo}, {X: pn.End, Y: pn.BandHi}, {X: pn.Start, Y: pn.BandHi},
+	})
+	if err != nil {
+		return nil, fmt.Errorf("chart: step %d settling band: %w", pn.Step, err)
+	}
+	band.Color = ColourBand
+	band.LineStyle.Color = colourBandEdge
+	band.LineStyle.Width = vg.Points(0.4)
+	band.LineStyle.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
+	p.Add(band)
+	p.Legend.Add("settling band", band)
+
+	line := func(t, y []float64) (*plotter.Line, error) {
+		xys := make(plotter.XYs, len(t))
+		for i := range t {
+			xys[i] = plotter.XY{X: t[i], Y: y[i]}
+		}
+		return plotter.NewLine(xys)
+	}
+	if len(pn.Command) > 0 {
+		l, err := line(pn.CmdT, pn.Command)
+		if err != nil {
+			return nil, fmt.Errorf("chart: step %d command: %w", pn.Step, err)
+		}
+		l.Color, l.Width = ColourCommand, vg.Points(0.8)
+		l.StepStyle = plotter.PostStep
+		p.Add(l)
+		p.Legend.Add("command", l)
+	}
+	if len(pn.PredT) > 0 {
+		l, err := line(pn.PredT, pn.PredY)
+		if err != nil {
+			return nil, fmt.Errorf("chart: step %d prediction: %w", pn.Step, err)
+		}
+		l.Color, l.Width = ColourPrediction, vg.Points(1.3)
+		p.Add(l)
+		p.Legend.Add("prediction ("+predictionKind+")", l)
+	}
+	if len(pn.T) > 0 {
+		l, err := line(pn.T, pn.Response)
+		if err != nil {
+			return nil, fmt.Errorf("chart: step %d response: %w", pn.Step, err)
+		}
+		styleLine(l, kindOf(pn.Verdict))
+		l.Width = vg.Points(1)
+		p.Add(l)
+		p.Legend.Add("response ("+strings.ToLower(string(pn.Verdict))+")", l)
+	}
+	ymin, ymax := math.Min(pn.BandLo, math.Min(pn.From, pn.To)), math.Max(pn.BandHi, math.Max(pn.From, pn.To))
+	for _, ys := range [][]float64{pn.Response, pn.PredY} {
+		for _, v := range ys {
+			ymin, ymax = math.Min(ymin, v), math.Max(ymax, v)
+		}
+	}
+	pad := 0.06 * (ymax - ymin)
+	if pad == 0 {
+		pad = 1
+	}
+	ymin, ymax = ymin-pad, ymax+pad
+	for _, m := range pn.Marks {
+		l, err := plotter.NewLine(plotter.XYs{{X: m.At, Y: ymin}, {X: m.At, Y: ymax}})
+		if err != nil {
+			return nil, fmt.Errorf("chart: step %d mark: %w", pn.Step, err)
+		}
+		l.Width = vg.Points(0.9)
+		switch m.kind {
+		case string(metrics.RiseTime):
+			l.Color, l.Dashes = colourRiseMark, []vg.Length{vg.Points(3), vg.Points(2)}
+		case string(metrics.SettlingTime):
+			l.Color, l.Dashes = colourSettMark, []vg.Length{vg.Points(5), vg.Points(2), vg.Points(1), vg.Points(2)}
+		default:
+			l.Color, l.Dashes = colourMark, []vg.Length{vg.Points(1), vg.Points(2)}
+		}
+		p.Add(l)
+		p.Legend.Add(m.Label, l)
+	}
+	// The legend goes where the response is not: at the bottom after an
+	// up-step, at the top after a down-step.
+	p.Legend.Top = pn.To < pn.From
+	p.Legend.Left = false
+	p.Legend.TextStyle.Font = fontOf(6.5)
+	p.Legend.ThumbnailWidth = vg.Points(14)
+	p.Legend.Padding = vg.Points(1)
+	p.Legend.XOffs = -vg.Points(3)
+	if p.Legend.Top {
+		p.Legend.YOffs = -vg.Points(3)
+	} else {
+		p.Legend.YOffs = vg.Points(3)
+	}
+	x0 := pn.Start - 0.1*(pn.End-pn.Start)
+	if len(pn.T) > 0 {
+		x0 = pn.T[0]
+	}
+	p.X.Min, p.X.Max = x0, pn.End
+	p.Y.Min, p.Y.Max = ymin, ymax
+	return p, nil
+}

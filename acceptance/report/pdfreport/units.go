@@ -1,0 +1,386 @@
+package pdfreport
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/chart"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// chartPage draws every kept step normalised to its step, with the model's
+// prediction.
+func (r *report) chartPage() error {
+	p, b := r.pdf, r.b
+	p.AddPage()
+	r.heading("Step responses", 120)
+	o := chart.ForBatch(b)
+	r.para(fmt.Sprintf("Every recorded step, normalised to its own step: 0 is the level before the step, 1 the commanded level; time runs from the step instant. "+
+		"The shaded band is the settling band ±%s %% of the step.", num(o.Band*100)), 9, 4.6, black)
+	if err := r.drawOverlay(o, 125); err != nil {
+		return err
+	}
+	r.overlayNotes(o)
+	return nil
+}
+
+// drawOverlay draws the chart, or says why there is none.
+func (r *report) drawOverlay(o *chart.Overlay, h float64) error {
+	p := r.pdf
+	if len(o.Curves) == 0 {
+		r.ensure(12)
+		p.Ln(2)
+		r.para("No step response can be drawn: no record of a step was kept for this report.", 10, 5, invalidText)
+		return nil
+	}
+	r.ensure(h + 2)
+	p.Ln(1)
+	y := p.GetY()
+	pl, err := o.Plot()
+	if err != nil {
+		return err
+	}
+	r.drawPlot(pl, marginL, y, contentW, h)
+	p.SetXY(marginL, y+h+1)
+	return nil
+}
+
+// overlayNotes says which steps the chart leaves out, and why.
+func (r *report) overlayNotes(o *chart.Overlay) {
+	var notes []string
+	notes = append(notes, fmt.Sprintf("%d of %d steps drawn.", o.Shown, o.Steps))
+	if o.NoRecord > 0 {
+		notes = append(notes, fmt.Sprintf("%d steps belong to units whose record was not kept for the report.", o.NoRecord))
+	}
+	if o.Thinned > 0 {
+		notes = append(notes, fmt.Sprintf("%d steps left out to keep the chart readable (passed steps first; at most %d curves).", o.Thinned, chart.MaxCurves))
+	}
+	if o.Clipped {
+		notes = append(notes, fmt.Sprintf("Curves beyond %s … %s are cut at the frame.", num(o.YMin), num(o.YMax)))
+	}
+	if n := len(o.Skipped); n > 0 {
+		notes = append(notes, fmt.Sprintf("%d could not be drawn; first: %s", n, o.Skipped[0]))
+	}
+	if o.PredictionKind != "" {
+		notes = append(notes, "Black: the model's "+o.PredictionKind+" prediction of each nominal step.")
+	}
+	r.para(strings.Join(notes, " "), 8.5, 4.3, grey)
+}
+
+func (r *report) unitTable() {
+	p := r.pdf
+	p.AddPage()
+	cols := []column{
+		{title: "#", width: 10, align: "R"},
+		{title: "unit", width: 36, align: "L"},
+		{title: "file", width: 42, align: "L"},
+		{title: "steps", width: 12, align: "R"},
+		{title: "verdict", width: 18, align: "C"},
+		{title: "first reason", width: 62, align: "L", wrap: 2},
+	}
+	row := func(i int) []cell {
+		u := &r.b.Units[i]
+		reason := ""
+		if u.Verdict != acceptance.Pass {
+			reason = digest.FirstReason(u)
+		}
+		return []cell{
+			{text: strconv.Itoa(i + 1), smallerInk: true}, txt(u.Unit), txt(filepath.Base(u.File)),
+			txt(strconv.Itoa(len(u.Steps))), verdictCell(u.Verdict), txt(reason),
+		}
+	}
+	if len(r.b.Units) == 0 {
+		r.heading("Units", 10)
+		r.para("The batch has no units.", 9, 4.6, black)
+		return
+	}
+	var bad [][]cell
+	all := make([][]cell, 0, len(r.b.Units))
+	for i := range r.b.Units {
+		all = append(all, row(i))
+		if r.b.Units[i].Verdict != acceptance.Pass {
+			bad = append(bad, all[i])
+		}
+	}
+	if len(bad) > 0 && len(bad) < len(all) {
+		r.heading(fmt.Sprintf("Units that did not pass (%d)", len(bad)), 20)
+		r.table(cols, bad)
+		p.Ln(2)
+	}
+	r.heading(fmt.Sprintf("All units (%d)", len(all)), 20)
+	r.table(cols, all)
+	which := "each unit that did not pass has"
+	if r.o.AllUnits {
+		which = "every unit has"
+	}
+	r.para("# is the unit's place in the batch. Long texts are shortened with “…”; "+which+" a detail page with all its reasons.", 8, 4.2, grey)
+}
+
+func (r *report) unitPage(i int) error {
+	p, u := r.pdf, &r.b.Units[i]
+	p.AddPage()
+	r.font("B", 13)
+	y := p.GetY()
+	p.CellFormat(contentW-30, 7, r.fit("Unit "+u.Unit, contentW-30), "", 0, "L", false, 0, "")
+	fill, ink := verdictColours(u.Verdict)
+	r.fillColour(fill)
+	r.textColour(ink)
+	r.font("B", 10)
+	p.SetXY(marginL+contentW-28, y)
+	p.CellFormat(28, 7, r.fit(verdictWord(u.Verdict), 28), "", 1, "C", true, 0, "")
+	r.textColour(black)
+	p.SetXY(marginL, y+8)
+
+	sha := u.SHA256
+	if sha == "" {
+		sha = "not computed: the file could not be read"
+	}
+	kv := [][2]string{{"File", u.File}, {"File SHA-256", sha}, {"Rows read", rowsRead(u)}, {"Steps", strconv.Itoa(len(u.Steps))}}
+	if f := u.Fit; f != nil {
+		kv = append(kv, [2]string{"Identified loop", fitText(f, r.unit)})
+	}
+	if len(u.Metadata) == 0 {
+		kv = append(kv, [2]string{"Log header", "no metadata read"})
+	} else {
+		keys := make([]string, 0, len(u.Metadata))
+		for k := range u.Metadata {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		var parts []string
+		for _, k := range keys {
+			parts = append(parts, k+": "+u.Metadata[k])
+		}
+		kv = append(kv, [2]string{"Log header", strings.Join(parts, " · ")})
+	}
+	r.keyValues(34, kv)
+
+	if len(u.Reasons) > 0 {
+		r.subheading("Reasons", 10)
+		for _, s := range u.Reasons {
+			r.bullet(s, 9, 4.6)
+		}
+	}
+	if err := r.unitFigure(i); err != nil {
+		return err
+	}
+	for k := range u.Steps {
+		r.stepTable(&u.Steps[k])
+	}
+	return nil
+}
+
+// rowsRead says how much of a unit's file could be read.
+func rowsRead(u *acceptance.UnitResult) string {
+	switch {
+	case u.Samples > 0:
+		return strconv.Itoa(u.Samples) + " data rows"
+	case len(u.Steps) == 0 && u.Verdict == acceptance.Invalid:
+		return "none used: the reader stops at the first error, so no sample of this file was measured"
+	}
+	return "0"
+}
+
+// bullet prints one bulleted, wrapped line.
+func (r *report) bullet(s string, size, lh float64) {
+	p := r.pdf
+	r.font("", size)
+	lines := r.wrap(s, contentW-5, 0)
+	r.ensure(float64(len(lines)) * lh)
+	r.textColour(black)
+	for k, line := range lines {
+		p.SetX(marginL)
+		mark := ""
+		if k == 0 {
+			mark = "•"
+		}
+		p.CellFormat(5, lh, mark, "", 0, "C", false, 0, "")
+		p.CellFormat(contentW-5, lh, line, "", 1, "L", false, 0, "")
+	}
+}
+
+// Unit figure geometry.
+const (
+	panelGap = 6.0
+	panelH   = 68.0
+)
+
+// unitFigure draws the unit's steps, or says plainly why there is no chart.
+func (r *report) unitFigure(i int) error {
+	p, u := r.pdf, &r.b.Units[i]
+	f := chart.ForUnitSteps(r.b, i)
+	if len(f.Panels) == 0 {
+		r.subheading("Record", 8)
+		msg := "No chart: the record of this unit was not kept for the report."
+		switch {
+		case len(u.Steps) == 0 && u.Trace == nil && u.Samples == 0:
+			msg = "No chart: no record could be read from this file, so there is no trace to draw. The reasons above say where reading stopped."
+		case len(u.Steps) == 0:
+			msg = "No chart: the record has no step to draw."
+		case len(f.Skipped) > 0:
+			msg = "No chart: " + strings.Join(f.Skipped, "; ") + "."
+		}
+		r.para(msg, 9, 4.6, invalidText)
+		return nil
+	}
+	cols := 1
+	if len(f.Panels) > 1 {
+		cols = 2
+	}
+	w := (contentW - panelGap*float64(cols-1)) / float64(cols)
+	r.subheading("Response, command and prediction", panelH+2)
+	y := p.GetY()
+	for k := range f.Panels {
+		col := k % cols
+		if col == 0 && k > 0 {
+			y += panelH + 2
+			p.SetY(y)
+			if r.ensure(panelH + 2) {
+				y = p.GetY()
+			}
+		}
+		pl, err := f.Panels[k].Plot(f.ResponseUnit, f.PredictionKind)
+		if err != nil {
+			return err
+		}
+		r.drawPlot(pl, marginL+float64(col)*(w+panelGap), y, w, panelH)
+	}
+	p.SetY(y)
+	p.SetXY(marginL, p.GetY()+panelH+1)
+	var notes []string
+	notes = append(notes, fmt.Sprintf("Time on the record's clock. Shaded: the settling band ±%s %% of the step around the final value. Vertical lines: the step instant plus each time limit.", num(r.d.Band*100)))
+	if f.PredictionKind != "" {
+		notes = append(notes, "Black: the model's "+f.PredictionKind+" prediction, shifted to the step instant.")
+	}
+	if f.NotDrawn > 0 {
+		notes = append(notes, fmt.Sprintf("%d more steps are not drawn; the tables below list every step.", f.NotDrawn))
+	}
+	if len(f.Skipped) > 0 {
+		notes = append(notes, "Not drawn: "+strings.Join(f.Skipped, "; ")+".")
+	}
+	r.para(strings.Join(notes, " "), 8, 4.2, grey)
+	return nil
+}
+
+// fitText describes an identified closed loop.
+func fitText(f *acceptance.Fit, unit string) string {
+	if f.Why != "" && !f.Damping.OK {
+		return "not identified: " + f.Why
+	}
+	s := fmt.Sprintf("from step %d: ζ = %s, ωn = %s rad/s, static gain %s, dead time %s s, rms residual %s %s",
+		f.Step, value(f.Damping), value(f.NaturalFrequency), value(f.StaticGain), value(f.DeadTime), value(f.RMSResidual), unit)
+	if f.Why != "" {
+		s += " (" + f.Why + ")"
+	}
+	return strings.TrimSpace(s)
+}
+
+func (r *report) stepTable(s *acceptance.StepResult) {
+	title := fmt.Sprintf("Step %d: %s → %s %s at t = %s s, %s", s.Index, num(s.From), num(s.To), r.unit, num(s.StartS), verdictWord(s.Verdict))
+	r.subheading(title, 6+3*lineH)
+	checks := map[string]acceptance.Check{}
+	for _, c := range s.Checks {
+		checks[c.Metric] = c
+	}
+	names := make([]string, 0, len(metrics.Names)+len(checks))
+	seen := map[string]bool{}
+	for _, n := range metrics.Names {
+		names = append(names, string(n))
+		seen[string(n)] = true
+	}
+	var extra []string
+	for k := range checks {
+		if !seen[k] {
+			extra = append(extra, k)
+		}
+	}
+	sort.Strings(extra)
+	names = append(names, extra...)
+
+	havePred := s.Predicted != nil
+	cols := []column{
+		{title: "metric", width: 36, align: "L"},
+		{title: "measured", width: 18, align: "R"},
+		{title: "predicted", width: 18, align: "R"},
+		{title: "gap", width: 17, align: "R"},
+		{title: "min", width: 12, align: "R"},
+		{title: "max", width: 12, align: "R"},
+		{title: "unit", width: 10, align: "L"},
+		{title: "check", width: 14, align: "C"},
+		{title: "note", width: 43, align: "L", wrap: 3},
+	}
+	var rows [][]cell
+	for _, m := range names {
+		v, ok := s.Metrics[m]
+		c, limited := checks[m]
+		if !ok && !limited {
+			continue
+		}
+		note := ""
+		if !v.OK {
+			note = s.Unmeasured[m]
+			if note == "" {
+				note = v.Why
+			}
+		}
+		pred, gap := "", ""
+		if havePred {
+			pred = "—"
+			if pv, ok := s.Predicted.Metrics[m]; ok {
+				pred = value(pv)
+			}
+			gap = "—"
+			if g := s.Gap[m]; g != nil {
+				gap = gapText(*g, v, s.Predicted.Metrics[m])
+			}
+		}
+		row := []cell{txt(digest.MetricLabel(m)), {text: value(v), bold: limited}, txt(pred), txt(gap)}
+		if limited {
+			if c.Reason != "" {
+				note = c.Reason
+			}
+			row = append(row, txt(bound(c.Min)), txt(bound(c.Max)), txt(digest.MetricUnit(m, r.unit)), verdictCell(c.Verdict), txt(note))
+		} else {
+			row = append(row, txt(""), txt(""), txt(digest.MetricUnit(m, r.unit)), txt(""), txt(note))
+		}
+		rows = append(rows, row)
+	}
+	r.table(cols, rows)
+	// Reasons the table's notes do not already give.
+	given := map[string]bool{}
+	for _, c := range s.Checks {
+		given[c.Reason] = true
+	}
+	var rest []string
+	for _, why := range s.Reasons {
+		if !given[why] {
+			rest = append(rest, why)
+		}
+	}
+	if len(rest) > 0 {
+		r.para("Step reasons: "+strings.Join(rest, "; "), 8.5, 4.3, black)
+	}
+}
+
+// gapText prints measured − predicted. A difference below a billionth of
+// the values compared is floating-point rounding of equal numbers and
+// prints as 0; the workbook keeps the exact difference.
+func gapText(g float64, measured, predicted metrics.Value) string {
+	scale := 0.0
+	if measured.OK {
+		scale = math.Abs(measured.V)
+	}
+	if predicted.OK {
+		scale = math.Max(scale, math.Abs(predicted.V))
+	}
+	if math.Abs(g) < 1e-9*scale {
+		return "0"
+	}
+	return num(g)
+}
