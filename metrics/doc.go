@@ -25,7 +25,10 @@
 // still moving would judge settling against the wrong place.
 //
 // Times are in seconds from the step instant: the first sample at which the
-// command holds its new value. Sampling need not be uniform. A metric that
+// command holds its new value. Sampling need not be uniform, but a step
+// whose record has a gap (an interval between samples longer than ten
+// median sample periods) is not measured: metrics interpolated across
+// samples that were never taken are not evidence. A metric that
 // cannot be measured is a Value with OK false and a reason, never a zero or a
 // sentinel. Peak and overshoot are taken from the samples as recorded:
 // measurement noise raises them by about the largest noise excursion near the

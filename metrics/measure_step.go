@@ -3,6 +3,8 @@ package metrics
 import (
 	"fmt"
 	"math"
+	"slices"
+	"strconv"
 )
 
 // Window lengths used for the state levels.
@@ -69,6 +71,13 @@ func Measure(tr Trace, minChange float64, o Options) []StepMetrics {
 //   - LastOutside: MeasureLastOutside around FinalValue, or around To when
 //     FinalValue is unknown; known whenever the step has samples.
 //
+// A step whose record has a gap, an interval between samples (from the last
+// one before the step instant on) longer than 10 times the median sample
+// period, has every metric unknown except StepSize, with the gap's size and
+// place as the reason; LastOutside, which needs no interpolation, is still
+// given around To. Irregular sampling without such a gap is measured
+// normally.
+//
 // A step with fewer than o.MinSamples samples has every metric unknown
 // except StepSize (LastOutside and Duration are still given). Invalid
 // options, a step that does not fit the trace, or a non-finite or
@@ -112,8 +121,12 @@ func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 	}
 	m.LastOutside = MeasureLastOutside(t, y, s.To, halfWidth)
 	if len(y) < o.MinSamples {
-		m.setAll(fmt.Sprintf("step has only %d samples (%s s); %d are needed to measure it",
-			len(y), num(m.Duration), o.MinSamples))
+		m.setAll(fmt.Sprintf("step has only %s (%s s); %d are needed to measure it",
+			samples(len(y)), num(m.Duration), o.MinSamples))
+		return m
+	}
+	if why := timeGap(tr.Time, s, buf); why != "" {
+		m.setAll(why)
 		return m
 	}
 	tol := steadyFraction * halfWidth
@@ -145,6 +158,59 @@ func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 	m.SteadyStateError, m.SteadyStateErrorPct = MeasureSteadyStateError(s.To, m.FinalValue.V, size)
 	m.LastOutside = MeasureLastOutside(t, y, m.FinalValue.V, halfWidth)
 	return m
+}
+
+// maxGapPeriods is how many median sample periods one interval between
+// samples may span inside a step before the step counts as having a gap in
+// the record (stepgate's choice; common practice, no source). Jitter of a
+// rig's logging clock stays far below it; a rig that stopped logging for a
+// while exceeds it.
+const maxGapPeriods = 10
+
+// timeGap returns why step s cannot be measured when its record has a gap:
+// an interval between consecutive samples, from the last sample before the
+// step instant to the step's last sample, longer than maxGapPeriods times
+// the median interval over the step and its pre-step window. Every metric
+// measured across such a gap would rest on samples that were never taken:
+// a crossing interpolated over it, a peak or a band exit missed inside it.
+// It returns "" when there is no gap.
+func timeGap(time []float64, s Step, buf *[]float64) string {
+	lo := max(s.PreStart, 0)
+	n := s.End - lo - 1
+	if n < 2 {
+		return ""
+	}
+	d := scratch(buf, n)
+	shortest := math.Inf(1)
+	for i := range d {
+		d[i] = time[lo+i+1] - time[lo+i]
+		shortest = math.Min(shortest, d[i])
+	}
+	worst, at := 0.0, -1
+	for i := max(s.Start, lo+1); i < s.End; i++ {
+		if g := time[i] - time[i-1]; g > worst {
+			worst, at = g, i
+		}
+	}
+	// No interval is ten times the shortest: no gap, whatever the median.
+	if at < 0 || worst <= maxGapPeriods*shortest {
+		return ""
+	}
+	slices.Sort(d)
+	med := sortedMedian(d)
+	if !(med > 0) || worst <= maxGapPeriods*med {
+		return ""
+	}
+	return fmt.Sprintf("time gap of %s s at %s s (no sample between %s s and %s s), %s× the median sample period of %s s: the record is missing data inside step %d, so it is not measured",
+		num(worst), num(time[at]), num(time[at-1]), num(time[at]), num(worst/med), num(med), s.Index)
+}
+
+// samples writes a sample count with its noun, "1 sample", "5 samples".
+func samples(n int) string {
+	if n == 1 {
+		return "1 sample"
+	}
+	return strconv.Itoa(n) + " samples"
 }
 
 // setAll marks every metric but StepSize unknown with the same reason.

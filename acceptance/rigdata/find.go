@@ -30,17 +30,23 @@ func IsLogName(name string) bool {
 // with one of the LogExtensions, following symbolic links but never into a
 // directory already visited, so link loops end. Directories (and files)
 // under any of the exclude paths are skipped during the search; a file
-// named directly in paths is always returned.
+// named directly in paths is always returned, and a directory named
+// directly is searched even when it lies inside an exclude path (an output
+// directory that holds the log folder, as in `--out . logs`): an exclude
+// path only skips what lies under it within a search.
 //
 // The result is sorted and holds each file once, even when it is reached
 // through several paths or links: the first path that reaches it, in the
 // order given and directory entries in name order, names it. Paths are
 // cleaned but keep the form the user gave (relative stays relative).
 //
-// A path that does not exist, a directory that cannot be listed, or a
-// broken link with a log extension is an error naming it. An exclude path
-// that does not exist excludes nothing. No paths, or directories without
-// logs, give an empty result.
+// A path that does not exist or a directory that cannot be listed is an
+// error naming it. Inside a searched directory, an entry with a log
+// extension that cannot be a log (a broken or looping link, a named pipe, a
+// socket or a device) is returned all the same, so that reading it fails
+// with the reason and the batch reports it as a unit instead of stopping or
+// leaving it out silently. An exclude path that does not exist excludes
+// nothing. No paths, or directories without logs, give an empty result.
 func FindLogs(paths []string, exclude []string) ([]string, error) {
 	fl := finder{visited: map[string]bool{}}
 	for _, x := range exclude {
@@ -68,8 +74,11 @@ func FindLogs(paths []string, exclude []string) ([]string, error) {
 		}
 		switch {
 		case st.IsDir():
-			if fl.excluded(real) {
-				continue
+			fl.active = fl.active[:0]
+			for _, x := range fl.exclude {
+				if !within(real, x) {
+					fl.active = append(fl.active, x)
+				}
 			}
 			if err := fl.walk(filepath.Clean(p), real); err != nil {
 				return nil, err
@@ -99,6 +108,7 @@ type foundLog struct {
 
 type finder struct {
 	exclude []string
+	active  []string        // the exclude paths that apply to the current search
 	visited map[string]bool // real paths of directories searched
 	found   []foundLog
 }
@@ -118,21 +128,28 @@ func realPath(p string) (string, error) {
 	return filepath.Clean(real), nil
 }
 
-// excluded reports whether real is an exclude path or lies under one.
+// excluded reports whether real is an exclude path of the current search
+// or lies under one.
 func (fl *finder) excluded(real string) bool {
-	for _, x := range fl.exclude {
-		if real == x {
-			return true
-		}
-		prefix := x
-		if !strings.HasSuffix(prefix, string(filepath.Separator)) {
-			prefix += string(filepath.Separator)
-		}
-		if strings.HasPrefix(real, prefix) {
+	for _, x := range fl.active {
+		if within(real, x) {
 			return true
 		}
 	}
 	return false
+}
+
+// within reports whether path is dir or lies under it; both are clean and
+// absolute.
+func within(path, dir string) bool {
+	if path == dir {
+		return true
+	}
+	prefix := dir
+	if !strings.HasSuffix(prefix, string(filepath.Separator)) {
+		prefix += string(filepath.Separator)
+	}
+	return strings.HasPrefix(path, prefix)
 }
 
 // walk searches the directory shown as dir, whose resolved path is real.
@@ -151,15 +168,16 @@ func (fl *finder) walk(dir, real string) error {
 		typ := e.Type()
 		if typ&fs.ModeSymlink != 0 {
 			target, err := realPath(shown)
+			var st fs.FileInfo
+			if err == nil {
+				st, err = os.Stat(shown)
+			}
 			if err != nil {
-				if IsLogName(e.Name()) {
-					return fmt.Errorf("find logs: %s: broken link: %w", shown, err)
+				// A broken or looping link: a log that cannot be read.
+				if IsLogName(e.Name()) && !fl.excluded(childReal) {
+					fl.found = append(fl.found, foundLog{shown, childReal})
 				}
 				continue
-			}
-			st, err := os.Stat(shown)
-			if err != nil {
-				return fmt.Errorf("find logs: %w", err)
 			}
 			childReal = target
 			typ = st.Mode().Type()
@@ -173,10 +191,10 @@ func (fl *finder) walk(dir, real string) error {
 				return err
 			}
 		case !IsLogName(e.Name()):
-		case typ.IsRegular():
-			fl.found = append(fl.found, foundLog{shown, childReal})
 		default:
-			return fmt.Errorf("find logs: %s: not a regular file (%s)", shown, typ)
+			// Regular files, and entries that cannot be logs (named pipes,
+			// sockets, devices), which the reader refuses with the reason.
+			fl.found = append(fl.found, foundLog{shown, childReal})
 		}
 	}
 	return nil

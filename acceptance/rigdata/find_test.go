@@ -73,7 +73,9 @@ func TestFindLogs(t *testing.T) {
 		{"link to a parent followed once", []string{"logs/day1"}, nil, []string{
 			"logs/day1/deep/g.Txt", "logs/day1/f.csv", "logs/day1/loop/B.CSV", "logs/day1/loop/a.csv", "logs/day1/loop/c.tsv",
 			"logs/day1/loop/d.txt", "logs/day1/loop/ext/z.csv", "logs/day1/loop/rejected/h.csv", "logs/day1/loop/rejected/sub/i.csv"}},
-		{"excluded root", []string{"logs/rejected"}, []string{"logs"}, []string{}},
+		{"root inside an excluded directory is searched", []string{"logs/rejected"}, []string{"logs"}, []string{"logs/rejected/h.csv", "logs/rejected/sub/i.csv"}},
+		{"excluded directory inside a root inside another", []string{"logs/rejected"}, []string{"logs", "logs/rejected/sub"}, []string{"logs/rejected/h.csv"}},
+		{"root equal to an excluded directory is searched", []string{"logs/day1/deep"}, []string{"logs/day1/deep"}, []string{"logs/day1/deep/g.Txt"}},
 		{"directory without logs", []string{"logs/empty"}, nil, []string{}},
 		{"no paths", nil, nil, []string{}},
 		{"exclude path not made yet", []string{"logs/day1/deep"}, []string{"reports/out"}, []string{"logs/day1/deep/g.Txt"}},
@@ -97,7 +99,7 @@ func TestFindLogs(t *testing.T) {
 
 func TestFindLogsErrors(t *testing.T) {
 	root := t.TempDir()
-	tree(t, root, "logs/a.csv", "logs/broken.csv -> missing.csv", "ok/b.csv")
+	tree(t, root, "logs/a.csv", "ok/b.csv")
 	t.Chdir(root)
 	cases := []struct {
 		name    string
@@ -107,7 +109,6 @@ func TestFindLogsErrors(t *testing.T) {
 		notExit bool
 	}{
 		{"nonexistent path", []string{"ok", "nowhere"}, nil, "nowhere", true},
-		{"broken link with a log extension", []string{"logs"}, nil, filepath.Join("logs", "broken.csv"), false},
 	}
 	for _, c := range cases {
 		_, err := FindLogs(c.paths, c.exclude)
@@ -129,6 +130,43 @@ func TestIsLogName(t *testing.T) {
 	for name, want := range cases {
 		if got := IsLogName(name); got != want {
 			t.Errorf("IsLogName(%q) = %v, want %v", name, got, want)
+		}
+	}
+}
+
+// TestFindLogsUnreadableEntries checks that entries with a log extension
+// that cannot be read as logs are returned, so that the batch reports each
+// as a unit with the reader's reason instead of stopping or dropping it: a
+// broken link, a link to itself (a loop; POSIX.1-2017 ELOOP), a named pipe
+// and a directory link loop, which the search follows once.
+func TestFindLogsUnreadableEntries(t *testing.T) {
+	root := t.TempDir()
+	tree(t, root, "logs/a.csv", "logs/broken.csv -> missing.csv", "logs/self.csv -> self.csv", "logs/up -> ..", "logs/notes -> nowhere")
+	fifo := filepath.Join(root, "logs", "pipe.csv")
+	if err := mkfifo(fifo); err != nil {
+		t.Skipf("named pipes unavailable: %v", err)
+	}
+	t.Chdir(root)
+	got, err := FindLogs([]string{"logs"}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []string{"logs/a.csv", "logs/broken.csv", "logs/pipe.csv", "logs/self.csv"}
+	for i := range want {
+		want[i] = filepath.FromSlash(want[i])
+	}
+	if !reflect.DeepEqual(got, want) {
+		t.Fatalf("FindLogs = %q, want %q", got, want)
+	}
+	f := Format{Time: "time", Command: "command", Response: "position"}
+	for _, c := range []struct{ file, phrase string }{
+		{"logs/broken.csv", "no such file or directory"},
+		{"logs/self.csv", "too many levels of symbolic links"},
+		{"logs/pipe.csv", "is a named pipe (FIFO), not a regular file"},
+	} {
+		_, err := ReadFile(filepath.FromSlash(c.file), f)
+		if err == nil || !strings.Contains(err.Error(), c.phrase) || !strings.Contains(err.Error(), filepath.FromSlash(c.file)) {
+			t.Errorf("ReadFile(%s) = %v, want an error naming the file and %q", c.file, err, c.phrase)
 		}
 	}
 }

@@ -6,6 +6,8 @@ import (
 	"encoding/hex"
 	"errors"
 	"math"
+	"os"
+	"path/filepath"
 	"strconv"
 	"testing"
 )
@@ -29,6 +31,28 @@ func FuzzRead(f *testing.F) {
 	for i, s := range seeds {
 		f.Add([]byte(s), i%2 == 0, i%3 == 0)
 	}
+	// The logs of the test data, with their headers renamed to the columns
+	// read here: the bad-input corpus (testdata/bad/README.md), the
+	// end-to-end logs and the sample logs. Long logs are cut to their first
+	// 32 KiB, itself a truncated-log seed.
+	for _, glob := range []string{"../../testdata/bad/*.csv", "../../testdata/e2e/*.csv", "../../testdata/logs/*.csv"} {
+		paths, _ := filepath.Glob(glob)
+		for _, p := range paths {
+			data, err := os.ReadFile(p)
+			if err != nil {
+				f.Fatal(err)
+			}
+			data = data[:min(len(data), 32<<10)]
+			for _, h := range [][2]string{
+				{"t,cmd,pos,effort", "time,command,position,effort"},
+				{"t,target,position,drive", "time,command,position,effort"},
+				{"Zeit_ms;Sollwert;Istwert", "time;command;position"},
+			} {
+				data = bytes.Replace(data, []byte(h[0]), []byte(h[1]), 1)
+			}
+			f.Add(data, bytes.Contains(data, []byte("Istwert")) || bytes.Contains(data, []byte("time;command;position")), true)
+		}
+	}
 	f.Fuzz(func(t *testing.T, data []byte, decimalComma, effort bool) {
 		fm := Format{Time: "time", Command: "command", Response: "position", DecimalComma: decimalComma, MaxLineBytes: 4096}
 		if effort {
@@ -47,12 +71,13 @@ func FuzzRead(f *testing.F) {
 		if n < 2 || lg.Rows != n || len(tr.Command) != n || len(tr.Response) != n {
 			t.Fatalf("rows %d, lengths %d %d %d", lg.Rows, n, len(tr.Command), len(tr.Response))
 		}
-		if effort != (tr.Effort != nil) || (effort && len(tr.Effort) != n) {
+		// Effort is optional: read when asked for and the header has it.
+		if (!effort && tr.Effort != nil) || (tr.Effort != nil && len(tr.Effort) != n) {
 			t.Fatalf("effort %v with %d values", effort, len(tr.Effort))
 		}
 		for i := range n {
 			vals := []float64{tr.Time[i], tr.Command[i], tr.Response[i]}
-			if effort {
+			if tr.Effort != nil {
 				vals = append(vals, tr.Effort[i])
 			}
 			for _, v := range vals {

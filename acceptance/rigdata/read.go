@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"hash"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"strconv"
@@ -107,10 +108,18 @@ func ReadFile(path string, f Format) (*Log, error) { return NewReader(f).ReadFil
 func Read(r io.Reader, name string, f Format) (*Log, error) { return NewReader(f).Read(r, name) }
 
 // ReadFile reads the log at path. A file larger than the Format's MaxBytes
-// is refused before it is read.
+// is refused before it is read, and so is anything but a regular file (a
+// directory, a named pipe, a socket, a device), which is never opened: a
+// named pipe without a writer would block the read for ever.
 func (rd *Reader) ReadFile(path string) (*Log, error) {
 	if rd.err != nil {
 		return nil, fmt.Errorf("read log %s: %w", path, rd.err)
+	}
+	if st, err := os.Stat(path); err != nil {
+		return nil, fmt.Errorf("read log: %w", err)
+	} else if !st.Mode().IsRegular() && !st.IsDir() {
+		return nil, &ParseError{File: path, Err: because(ErrNotText,
+			fmt.Sprintf("is %s, not a regular file: a log must be a file", fileKind(st.Mode())))}
 	}
 	fh, err := os.Open(path)
 	if err != nil {
@@ -161,6 +170,23 @@ func (rd *Reader) reset(r io.Reader, name string) {
 	rd.prevT = rd.prevT[:0]
 	rd.prevTL = 0
 	rd.comment, rd.commentLine = "", 0
+}
+
+// fileKind names the type of a file that is not a regular file.
+func fileKind(m fs.FileMode) string {
+	switch {
+	case m&fs.ModeNamedPipe != 0:
+		return "a named pipe (FIFO)"
+	case m&fs.ModeSocket != 0:
+		return "a socket"
+	case m&fs.ModeCharDevice != 0:
+		return "a character device"
+	case m&fs.ModeDevice != 0:
+		return "a device"
+	case m&fs.ModeIrregular != 0:
+		return "an irregular file"
+	}
+	return "a special file (" + m.Type().String() + ")"
 }
 
 func (rd *Reader) tooLarge(name string, size int64) error {
@@ -295,7 +321,11 @@ func (rd *Reader) sniff() error {
 		if 4*max(even, odd) >= len(b) && min(even, odd)*8 < max(even, odd) {
 			return notText("file looks like UTF-16 text without a byte-order mark (every other byte is NUL): save the log as UTF-8")
 		}
-		return notText(fmt.Sprintf("file holds binary data (%d NUL bytes in the first %d bytes), not a text log", nul, len(b)))
+		noun := "NUL bytes"
+		if nul == 1 {
+			noun = "NUL byte"
+		}
+		return notText(fmt.Sprintf("file holds binary data (%d %s in the first %d bytes), not a text log", nul, noun, len(b)))
 	}
 	return nil
 }
