@@ -10,6 +10,7 @@ import (
 	"sort"
 	"strings"
 	"sync"
+	"time"
 
 	"github.com/stepgate/stepgate/acceptance/rigdata"
 	"github.com/stepgate/stepgate/metrics"
@@ -65,7 +66,7 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 			defer wg.Done()
 			rd := rigdata.NewReader(format)
 			for i := range jobs {
-				u, n := processFile(rd, spec, opts, pred, files[i], o.Traces)
+				u, n := judgeFile(rd, spec, opts, pred, files[i], o.Traces)
 				results[i] = u
 				if o.Progress != nil {
 					mu.Lock()
@@ -82,7 +83,7 @@ feed:
 	for i := range files {
 		select {
 		case <-ctx.Done():
-			cancelled = ctx.Err()
+			cancelled = context.Cause(ctx)
 			break feed
 		case jobs <- i:
 		}
@@ -123,6 +124,21 @@ feed:
 		b.Model = &ModelSummary{Config: *spec.Model, Warnings: []string{predErr.Error()}}
 	}
 	return b, nil
+}
+
+// judgeFile is processFile guarded so that one log can never stop the
+// batch: should judging it panic, the log becomes an invalid unit whose
+// reason carries the internal error, and the other logs are judged as
+// usual.
+func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, path string, policy TracePolicy) (u UnitResult, n int64) {
+	defer func() {
+		if r := recover(); r != nil {
+			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
+				Reasons: []string{fmt.Sprintf("stepgate failed while judging this log (internal error: %v); please report it with the log", r)}}
+			n = 0
+		}
+	}()
+	return processFile(rd, spec, opts, pred, path, policy)
 }
 
 // processFile reads and judges one file; it returns the unit and the bytes
@@ -236,8 +252,14 @@ func testDates(units []UnitResult) DateRange {
 	return r
 }
 
+// isDate reports whether s is a calendar date written YYYY-MM-DD (ISO
+// 8601); a metadata value such as 2026-13-45 is no date, and must not
+// become the date a report carries.
 func isDate(s string) bool {
 	if len(s) != 10 || s[4] != '-' || s[7] != '-' {
+		return false
+	}
+	if _, err := time.Parse("2006-01-02", s); err != nil {
 		return false
 	}
 	for i, c := range s {

@@ -460,7 +460,7 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 		if errors.Is(err, io.EOF) {
 			p.probs = append(p.probs, Problem{Msg: "the file is empty; `stepgate spec init` prints a template"})
 		} else {
-			p.probs = append(p.probs, specSyntaxProblem(err))
+			p.probs = append(p.probs, specSyntaxProblem(err, data))
 		}
 		return nil, p
 	}
@@ -468,7 +468,7 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 	if err := dec.Decode(&extra); err == nil {
 		p.probs = append(p.probs, Problem{Line: extra.Line, Column: extra.Column, Msg: "only one YAML document is allowed; remove the '---' separator and what follows"})
 	} else if !errors.Is(err, io.EOF) {
-		p.probs = append(p.probs, specSyntaxProblem(err))
+		p.probs = append(p.probs, specSyntaxProblem(err, data))
 	}
 	root := &doc
 	if root.Kind == yaml.DocumentNode && len(root.Content) == 1 {
@@ -512,14 +512,31 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 // specSyntaxProblem turns a YAML syntax error into a problem with its line.
 // The YAML library counts lines from 1 for errors found while scanning, but
 // from 0 for "did not find expected …" errors, whose line is where the
-// unclosed part starts; those are shifted to count from 1 and say so.
-func specSyntaxProblem(err error) Problem {
+// unclosed part starts; those are shifted to count from 1 and say so. When
+// the library points past the last line (it places the end of the file on
+// a line of its own), the problem is put on the last line and said to be
+// at the end of the file.
+func specSyntaxProblem(err error, data []byte) Problem {
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
+	last := bytes.Count(data, []byte("\n"))
+	if len(data) > 0 && data[len(data)-1] != '\n' {
+		last++
+	}
+	last = max(last, 1)
+	atEnd := func(msg string) Problem {
+		return Problem{Line: last, Msg: "invalid YAML: " + msg + " at the end of the file: a bracket, brace or quote opened earlier is not closed"}
+	}
 	if m := specYAMLLine.FindStringSubmatch(err.Error()); m != nil {
 		n, _ := strconv.Atoi(m[1])
 		msg = m[2]
 		if strings.HasPrefix(msg, "did not find expected") {
+			if n+1 > last {
+				return atEnd(msg)
+			}
 			return Problem{Line: n + 1, Msg: "invalid YAML: " + msg + " in the part that starts on this line"}
+		}
+		if n > last {
+			return atEnd(msg)
 		}
 		return Problem{Line: n, Msg: "invalid YAML: " + msg}
 	}
@@ -1093,6 +1110,20 @@ func (p *specParser) validateModel(m *model.Config) {
 	if m.Actuator != nil {
 		p.nonNegative("model.actuator.effort_limit", m.Actuator.EffortLimit)
 		p.nonNegative("model.actuator.deadband", m.Actuator.Deadband)
+	}
+	// The model package has rules of its own (a derivative needs its
+	// filter, a deadband must lie below the effort limit); a model it
+	// refuses would leave every run without predictions, so it is a spec
+	// problem at the key it names.
+	if !p.skipTree("model") {
+		if _, err := model.Build(*m); err != nil {
+			var fe *model.FieldError
+			if errors.As(err, &fe) {
+				p.problem(fe.Key, specValNode, "%s", fe.Msg)
+			} else {
+				p.problem("model", specKeyNode, "%v", err)
+			}
+		}
 	}
 }
 

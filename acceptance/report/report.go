@@ -6,6 +6,7 @@ package report
 
 import (
 	"bufio"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -33,6 +34,21 @@ type Options struct {
 // WriteAll writes the three reports into dir (created if missing). On any
 // error no final name is touched and the temporary files are removed.
 func WriteAll(dir string, b *acceptance.Batch, o Options) (paths []string, err error) {
+	return WriteAllContext(context.Background(), dir, b, o)
+}
+
+// WriteAllContext is WriteAll that stops when ctx is cancelled (an
+// interrupted run). Each report is written to a temporary file in dir; only
+// when all three are complete, flushed and synced, and ctx is still live,
+// are they renamed to their final names, one after the other. Once
+// cancelled, it renames nothing: the final names keep the previous run's
+// reports, or stay absent. On every error, including a cancellation, a
+// failed write (a full disk) or a panic in a report writer, the temporary
+// files are removed and the error says which report and directory.
+func WriteAllContext(ctx context.Context, dir string, b *acceptance.Batch, o Options) (paths []string, err error) {
+	if err := interrupted(ctx); err != nil {
+		return nil, err
+	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("output directory %s: %w", dir, err)
 	}
@@ -46,6 +62,10 @@ func WriteAll(dir string, b *acceptance.Batch, o Options) (paths []string, err e
 	}
 	var temps []string
 	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("writing the reports in %s: internal error: %v", dir, r)
+			paths = nil
+		}
 		if err != nil {
 			for _, t := range temps {
 				os.Remove(t)
@@ -53,12 +73,25 @@ func WriteAll(dir string, b *acceptance.Batch, o Options) (paths []string, err e
 		}
 	}()
 	for _, wr := range writers {
-		tmp, werr := writeTemp(dir, wr.name, wr.write)
-		if tmp != "" {
-			temps = append(temps, tmp)
+		if err := interrupted(ctx); err != nil {
+			return nil, err
 		}
-		if werr != nil {
+		if werr := writeTemp(ctx, dir, wr.name, wr.write, &temps); werr != nil {
 			return nil, werr
+		}
+	}
+	// The last point at which an interruption is obeyed: from here the
+	// renames run to the end, so the final names never mix two runs'
+	// reports because of a signal.
+	if err := interrupted(ctx); err != nil {
+		return nil, err
+	}
+	// A final name taken by a directory would fail its rename after the
+	// others had succeeded; refuse before renaming any.
+	for _, wr := range writers {
+		final := filepath.Join(dir, wr.name)
+		if st, serr := os.Lstat(final); serr == nil && st.IsDir() {
+			return nil, fmt.Errorf("%s is a directory; cannot replace it with the report", final)
 		}
 	}
 	for i, wr := range writers {
@@ -68,23 +101,53 @@ func WriteAll(dir string, b *acceptance.Batch, o Options) (paths []string, err e
 		}
 		paths = append(paths, final)
 	}
+	syncDir(dir)
 	return paths, nil
 }
 
+// interrupted returns an error when ctx is done, naming its cause.
+func interrupted(ctx context.Context) error {
+	if ctx.Err() == nil {
+		return nil
+	}
+	return fmt.Errorf("interrupted (%w); no report written", context.Cause(ctx))
+}
+
+// ctxWriter fails every write once its context is done, so that a report
+// being written stops at its next write after an interruption.
+type ctxWriter struct {
+	ctx context.Context
+	w   io.Writer
+}
+
+func (c ctxWriter) Write(p []byte) (int, error) {
+	if err := c.ctx.Err(); err != nil {
+		return 0, context.Cause(c.ctx)
+	}
+	return c.w.Write(p)
+}
+
 // writeTemp writes one report to a new temporary file next to its final name
-// and syncs it.
-func writeTemp(dir, name string, write func(io.Writer) error) (string, error) {
+// and syncs it. The temporary file's name is appended to temps as soon as it
+// exists, so that the caller removes it on any later failure.
+func writeTemp(ctx context.Context, dir, name string, write func(io.Writer) error, temps *[]string) error {
 	f, err := os.CreateTemp(dir, "."+name+".tmp-*")
 	if err != nil {
-		return "", fmt.Errorf("output directory %s: cannot create %s: %w", dir, name, err)
+		return fmt.Errorf("output directory %s: cannot create %s: %w", dir, name, err)
 	}
-	tmp := f.Name()
+	*temps = append(*temps, f.Name())
 	// CreateTemp makes the file private; reports are ordinary documents.
 	if err := f.Chmod(0o644); err != nil {
 		f.Close()
-		return tmp, fmt.Errorf("output directory %s: %s: %w", dir, name, err)
+		return fmt.Errorf("output directory %s: %s: %w", dir, name, err)
 	}
-	bw := bufio.NewWriterSize(f, 1<<16)
+	closed := false
+	defer func() {
+		if !closed {
+			f.Close()
+		}
+	}()
+	bw := bufio.NewWriterSize(ctxWriter{ctx, f}, 1<<16)
 	err = write(bw)
 	if err == nil {
 		err = bw.Flush()
@@ -92,13 +155,27 @@ func writeTemp(dir, name string, write func(io.Writer) error) (string, error) {
 	if err == nil {
 		err = f.Sync()
 	}
+	closed = true
 	if cerr := f.Close(); err == nil {
 		err = cerr
 	}
 	if err != nil {
-		return tmp, fmt.Errorf("writing %s in %s: %w", name, dir, err)
+		if ctx.Err() != nil {
+			return fmt.Errorf("writing %s in %s: interrupted (%w); no report written", name, dir, context.Cause(ctx))
+		}
+		return fmt.Errorf("writing %s in %s: %w", name, dir, err)
 	}
-	return tmp, nil
+	return nil
+}
+
+// syncDir flushes the directory entry of the renamed reports to disk where
+// the system supports it; a failure leaves the reports in place and is not
+// an error.
+func syncDir(dir string) {
+	if d, err := os.Open(dir); err == nil {
+		d.Sync()
+		d.Close()
+	}
 }
 
 // ErrOutputInsideInput is returned when the output directory lies inside an

@@ -2,14 +2,17 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"os/signal"
 	"path/filepath"
 	"strings"
 	"syscall"
 	"time"
+	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 
@@ -44,7 +47,7 @@ func newRunCmd() *cobra.Command {
 	fl.StringVar(&f.out, "out", "", "output directory for results.json, report.xlsx and report.pdf")
 	fl.IntVar(&f.workers, "workers", 0, "concurrent workers (0: one per core)")
 	fl.BoolVar(&f.allUnits, "all-units", false, "give every unit a page in the PDF, not only failing and invalid ones")
-	fl.StringVar(&f.reportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD (default: SOURCE_DATE_EPOCH, else the newest test date in the logs)")
+	fl.StringVar(&f.reportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD (default: SOURCE_DATE_EPOCH, else the newest test date in the logs, else the newest modification date of the log files)")
 	fl.BoolVar(&f.quiet, "quiet", false, "print nothing but errors")
 	cmd.MarkFlagRequired("spec")
 	cmd.MarkFlagRequired("out")
@@ -53,6 +56,19 @@ func newRunCmd() *cobra.Command {
 
 // runBatch is the run command's body.
 func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []string) error {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	// SIGINT and SIGTERM cancel the run from its start: the batch stops
+	// taking files and no report is renamed into place. A second signal
+	// ends the program at once (the default action is restored).
+	ctx, stop := signal.NotifyContext(ctx, os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
+
 	spec, err := acceptance.LoadSpec(f.spec)
 	if err != nil {
 		return usageErr(err)
@@ -65,6 +81,14 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	if err != nil {
 		return usageErr(fmt.Errorf("--out %s: %w", f.out, err))
 	}
+	if err := checkOutDir(f.out, outAbs); err != nil {
+		return usageErr(err)
+	}
+	if err := checkOutNotInput(f.out, outAbs, args); err != nil {
+		return usageErr(err)
+	}
+	// The output directory is skipped wherever a search meets it, so that
+	// nothing stepgate or a user left there is read as a log.
 	files, err := rigdata.FindLogs(args, []string{outAbs})
 	if err != nil {
 		return usageErr(err)
@@ -72,11 +96,6 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	if len(files) == 0 {
 		return usageErr(fmt.Errorf("%s: %w", strings.Join(args, " "), acceptance.ErrNoLogs))
 	}
-	if ctx == nil {
-		ctx = context.Background()
-	}
-	ctx, stop := signal.NotifyContext(ctx, os.Interrupt, syscall.SIGTERM)
-	defer stop()
 
 	b, err := acceptance.Run(ctx, spec, files, acceptance.RunOptions{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: version},
@@ -86,7 +105,15 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	if err != nil {
 		return usageErr(fmt.Errorf("%w; no report written", err))
 	}
-	paths, err := report.WriteAll(f.out, b, report.Options{})
+	if b.ReportDate == "" {
+		// No flag, no SOURCE_DATE_EPOCH and no test date in any log: the
+		// files themselves date the test.
+		b.ReportDate = newestFileDate(files)
+		if !f.quiet && b.ReportDate != "" {
+			fmt.Fprintf(stderr, "stepgate: no log carries a started_at date; the reports are dated %s, the newest modification date of the log files (set it with --report-date)\n", b.ReportDate)
+		}
+	}
+	paths, err := report.WriteAllContext(ctx, f.out, b, report.Options{})
 	if err != nil {
 		return usageErr(err)
 	}
@@ -103,6 +130,66 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 		return &exitError{code: 1, err: errUnitsNotPassed}
 	}
 	return nil
+}
+
+// checkOutDir refuses, before any log is read, an output directory that
+// cannot be one: an existing file, or a path under a file. The directory
+// itself is made only when the reports are written.
+func checkOutDir(out, outAbs string) error {
+	for p := outAbs; ; p = filepath.Dir(p) {
+		st, err := os.Stat(p)
+		switch {
+		case err == nil && !st.IsDir():
+			return fmt.Errorf("--out %s: %s is a file, not a directory", out, p)
+		case err == nil:
+			return nil
+		case !errors.Is(err, fs.ErrNotExist) && !errors.Is(err, syscall.ENOTDIR):
+			return fmt.Errorf("--out %s: %w", out, err)
+		}
+		if filepath.Dir(p) == p {
+			return nil
+		}
+	}
+}
+
+// checkOutNotInput refuses an output directory that is one of the input
+// directories: the reports would be written among the logs being judged.
+// An output directory inside an input directory is allowed; the search
+// skips it.
+func checkOutNotInput(out, outAbs string, args []string) error {
+	realOut, err := filepath.EvalSymlinks(outAbs)
+	if err != nil {
+		return nil // not made yet: it cannot be an input directory
+	}
+	for _, a := range args {
+		st, err := os.Stat(a)
+		if err != nil || !st.IsDir() {
+			continue
+		}
+		realIn, err := filepath.EvalSymlinks(a)
+		if err != nil {
+			continue
+		}
+		if abs, err := filepath.Abs(realIn); err == nil && abs == realOut {
+			return fmt.Errorf("--out %s is the input directory %s: %w; write the reports to another directory", out, a, report.ErrOutputInsideInput)
+		}
+	}
+	return nil
+}
+
+// newestFileDate is the UTC date (YYYY-MM-DD) of the newest modification
+// time among files, or "" when none can be read.
+func newestFileDate(files []string) string {
+	var newest time.Time
+	for _, p := range files {
+		if st, err := os.Stat(p); err == nil && st.ModTime().After(newest) {
+			newest = st.ModTime()
+		}
+	}
+	if newest.IsZero() {
+		return ""
+	}
+	return newest.UTC().Format("2006-01-02")
 }
 
 // reportDate resolves the date the reports carry: the flag, else
@@ -127,19 +214,22 @@ func reportDate(flag string) (string, error) {
 // printSummary writes the verdict table to stdout.
 func printSummary(w io.Writer, b *acceptance.Batch) {
 	fmt.Fprintf(w, "%s rev %s: %s\n", b.Spec.SpecID, b.Spec.Revision, b.Spec.Title)
+	// Unit ids come from file names and log metadata: control characters
+	// in them must not reach the terminal.
+	ids := make([]string, len(b.Units))
 	width := len("unit")
-	for _, u := range b.Units {
-		if len(u.Unit) > width {
-			width = len(u.Unit)
-		}
+	for i, u := range b.Units {
+		ids[i] = oneLine(u.Unit, 64)
+		width = max(width, utf8.RuneCountInString(ids[i]))
 	}
 	fmt.Fprintf(w, "%-*s  %-7s  %s\n", width, "unit", "verdict", "first reason")
-	for _, u := range b.Units {
+	for i, u := range b.Units {
 		reason := ""
 		if len(u.Reasons) > 0 {
 			reason = u.Reasons[0]
 		}
-		fmt.Fprintf(w, "%-*s  %-7s  %s\n", width, u.Unit, u.Verdict, oneLine(reason, 100))
+		pad := strings.Repeat(" ", width-utf8.RuneCountInString(ids[i]))
+		fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, oneLine(reason, 100))
 	}
 	s := b.Summary
 	yield := 0.0
@@ -149,10 +239,11 @@ func printSummary(w io.Writer, b *acceptance.Batch) {
 	fmt.Fprintf(w, "units %d: pass %d, fail %d, invalid %d; yield %.1f %%\n", s.Units, s.Pass, s.Fail, s.Invalid, yield)
 }
 
-// oneLine removes control characters and shortens s to at most n runes.
+// oneLine replaces control characters (C0, DEL and C1, which terminals
+// act on) and invalid UTF-8 by spaces and shortens s to at most n runes.
 func oneLine(s string, n int) string {
 	s = strings.Map(func(r rune) rune {
-		if r < 0x20 || r == 0x7f {
+		if r < 0x20 || (r >= 0x7f && r < 0xa0) || r == utf8.RuneError {
 			return ' '
 		}
 		return r

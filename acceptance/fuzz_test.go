@@ -1,0 +1,110 @@
+package acceptance_test
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
+)
+
+// FuzzParseSpec checks the spec parser on arbitrary bytes. It never panics
+// and is deterministic. A refused spec is a *SpecError whose every problem
+// has a message and a position that exists in the file (1-based line and
+// column, or 0 when not known). An accepted spec keeps every rule the
+// loader promises: an identity, three distinct signal columns, a positive
+// step threshold, measurement levels the metrics package accepts, a log
+// format the reader accepts, limits on known metrics with min ≤ max and a
+// bound each, and a model the model package builds. Its summary can be
+// written, and parsing its own bytes again gives the same digest.
+func FuzzParseSpec(f *testing.F) {
+	f.Add([]byte(templates.SpecTemplate))
+	for _, glob := range []string{"../testdata/specs/*.yaml", "../testdata/e2e/*.yaml", "../testdata/bad/specs/*.yaml"} {
+		paths, _ := filepath.Glob(glob)
+		for _, p := range paths {
+			data, err := os.ReadFile(p)
+			if err != nil {
+				f.Fatal(err)
+			}
+			f.Add(data)
+		}
+	}
+	f.Add([]byte(""))
+	f.Add([]byte("spec_id: &a x\nrevision: *a\n<<: {limits: {}}\n"))
+	f.Add([]byte("- [\n"))
+
+	f.Fuzz(func(t *testing.T, data []byte) {
+		s, err := acceptance.ParseSpec(data, "f.yaml")
+		_, err2 := acceptance.ParseSpec(data, "f.yaml")
+		if (err == nil) != (err2 == nil) || (err != nil && err.Error() != err2.Error()) {
+			t.Fatalf("two parses differ: %v / %v", err, err2)
+		}
+		if err != nil {
+			var se *acceptance.SpecError
+			if !errors.As(err, &se) {
+				t.Fatalf("error %T is not a *SpecError: %v", err, err)
+			}
+			if s != nil {
+				t.Fatal("spec returned with an error")
+			}
+			lines := strings.Count(string(data), "\n") + 1
+			for _, p := range se.Problems {
+				if p.Msg == "" || p.Line < 0 || p.Column < 0 || p.Line > lines || (p.Line == 0 && p.Column != 0) {
+					t.Fatalf("problem %+v does not point into the %d-line file", p, lines)
+				}
+			}
+			if len(se.Problems) == 0 || !strings.HasPrefix(err.Error(), "f.yaml") {
+				t.Fatalf("error without problems or file name: %q", err)
+			}
+			return
+		}
+		checkAcceptedSpec(t, s)
+	})
+}
+
+// checkAcceptedSpec checks the rules an accepted spec keeps.
+func checkAcceptedSpec(t *testing.T, s *acceptance.Spec) {
+	t.Helper()
+	if strings.TrimSpace(s.SpecID) == "" || strings.TrimSpace(s.Revision) == "" {
+		t.Fatalf("accepted without an identity: %q %q", s.SpecID, s.Revision)
+	}
+	sig := s.Signals
+	if sig.Time == "" || sig.Command == "" || sig.Response == "" ||
+		sig.Time == sig.Command || sig.Time == sig.Response || sig.Command == sig.Response {
+		t.Fatalf("accepted signals %+v", sig)
+	}
+	if !(s.Steps.MinChange > 0) {
+		t.Fatalf("accepted min_change %v", s.Steps.MinChange)
+	}
+	if err := s.Options().Validate(); err != nil {
+		t.Fatalf("accepted levels the metrics package refuses: %v", err)
+	}
+	if err := s.Format().Validate(); err != nil {
+		t.Fatalf("accepted a log format the reader refuses: %v", err)
+	}
+	if len(s.Limits) == 0 {
+		t.Fatal("accepted without limits")
+	}
+	known := map[string]bool{}
+	for _, n := range metrics.Names {
+		known[string(n)] = true
+	}
+	for name, l := range s.Limits {
+		if !known[name] || (l.Min == nil && l.Max == nil) || (l.Min != nil && l.Max != nil && *l.Min > *l.Max) {
+			t.Fatalf("accepted limit %s %+v", name, l)
+		}
+	}
+	if s.Model != nil {
+		if _, err := model.Build(*s.Model); err != nil {
+			t.Fatalf("accepted a model the model package refuses: %v", err)
+		}
+	}
+	if s.Explain() == "" || len(s.SHA256) != 64 {
+		t.Fatalf("no summary or digest")
+	}
+}
