@@ -17,20 +17,28 @@ import (
 )
 
 // TracePolicy says which units keep their full record in memory for the
-// report's charts and unit pages.
+// report's unit pages.
 type TracePolicy int
 
 // Trace policies.
 const (
-	KeepAllTraces     TracePolicy = iota // every unit keeps its trace
-	KeepNonPassTraces                    // only failing and invalid units
-	KeepNoTraces                         // none
+	// KeepPageTraces keeps the records of the units that get a detail page
+	// (see Batch.PageUnits): memory stays flat in the batch size. The
+	// records are read again after the batch is judged.
+	KeepPageTraces TracePolicy = iota
+	KeepAllTraces              // every unit keeps its record
+	KeepNoTraces               // none
 )
+
+// MaxUnitPages is the most units that get a detail page in the PDF; the
+// XLSX and results.json hold every unit.
+const MaxUnitPages = 200
 
 // RunOptions control a batch run.
 type RunOptions struct {
 	Workers    int         // concurrent workers; 0 means one per core
 	Traces     TracePolicy // which traces to keep
+	AllUnits   bool        // every unit, not only those that did not pass, gets a detail page
 	Tool       ToolInfo    // name and version printed in the reports
 	ReportDate string      // YYYY-MM-DD; empty means the newest test date in the logs
 	// Progress, when set, is called after each file with the count done, the
@@ -54,6 +62,7 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 	format := spec.Format()
 	opts := spec.Options()
 	pred, predErr := newPredictor(spec)
+	sampler := newCurveSampler(spec, len(files))
 
 	results := make([]UnitResult, len(files))
 	jobs := make(chan int)
@@ -66,7 +75,7 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 			defer wg.Done()
 			rd := rigdata.NewReader(format)
 			for i := range jobs {
-				u, n := judgeFile(rd, spec, opts, pred, files[i], o.Traces)
+				u, n := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces)
 				results[i] = u
 				if o.Progress != nil {
 					mu.Lock()
@@ -118,6 +127,9 @@ feed:
 	if b.ReportDate == "" {
 		b.ReportDate = b.TestDates.Last
 	}
+	if o.Traces == KeepPageTraces {
+		loadPageTraces(b, format, o.AllUnits)
+	}
 	if pred != nil {
 		b.Model = pred.summary()
 	} else if predErr != nil {
@@ -130,7 +142,7 @@ feed:
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, path string, policy TracePolicy) (u UnitResult, n int64) {
+func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64) {
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
@@ -138,12 +150,12 @@ func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predi
 			n = 0
 		}
 	}()
-	return processFile(rd, spec, opts, pred, path, policy)
+	return processFile(rd, spec, opts, pred, cs, path, policy)
 }
 
 // processFile reads and judges one file; it returns the unit and the bytes
 // read.
-func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, path string, policy TracePolicy) (UnitResult, int64) {
+func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64) {
 	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []string{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
@@ -157,7 +169,7 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	}
 	if err != nil {
 		u.Verdict = Invalid
-		u.Reasons = []string{"log cannot be read: " + err.Error()}
+		u.Reasons = []string{"log cannot be read: " + readReason(err)}
 		var n int64
 		if lg != nil {
 			n = lg.Size
@@ -170,7 +182,7 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	tr := lg.Trace
 	if verr := tr.Validate(); verr != nil {
 		u.Verdict = Invalid
-		u.Reasons = []string{fmt.Sprintf("log %s: %v", path, verr)}
+		u.Reasons = []string{fmt.Sprintf("log cannot be measured: %v", verr)}
 		return u, lg.Size
 	}
 	steps := metrics.FindSteps(tr, spec.Steps.MinChange)
@@ -184,15 +196,75 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 		u.Steps = append(u.Steps, sr)
 	}
 	u.Verdict, u.Reasons = spec.JudgeUnit(u.Steps)
+	for i, st := range steps {
+		if cs.keep(path, st.Index, u.Steps[i].Verdict) {
+			u.Steps[i].Curve = normalisedCurve(tr, st, cs.window)
+		}
+	}
 	if pred != nil && len(steps) > 0 {
 		u.Fit = pred.fit(tr, steps[0])
 	}
-	keep := policy == KeepAllTraces || (policy == KeepNonPassTraces && u.Verdict != Pass)
-	if keep {
+	if policy == KeepAllTraces {
 		t := tr
 		u.Trace = &t
 	}
 	return u, lg.Size
+}
+
+// PageUnits returns the indices of the units that get a detail page: the
+// first MaxUnitPages units that did not pass (every unit with all), in
+// batch order.
+func (b *Batch) PageUnits(all bool) []int {
+	var idx []int
+	for i := range b.Units {
+		if len(idx) == MaxUnitPages {
+			break
+		}
+		if all || b.Units[i].Verdict != Pass {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+// loadPageTraces reads again the records of the units that get a page. A
+// record that cannot be read again, or no longer matches the digest judged,
+// is left out; the page then says there is no record.
+func loadPageTraces(b *Batch, f rigdata.Format, all bool) {
+	rd := rigdata.NewReader(f)
+	for _, i := range b.PageUnits(all) {
+		u := &b.Units[i]
+		if u.Trace != nil || u.SHA256 == "" || len(u.Steps) == 0 {
+			continue
+		}
+		lg, err := rd.ReadFile(u.File)
+		if err != nil || lg.SHA256 != u.SHA256 {
+			continue
+		}
+		t := lg.Trace
+		u.Trace = &t
+	}
+}
+
+// readReason is a read error without the file name, which the unit carries.
+func readReason(err error) string {
+	var pe *rigdata.ParseError
+	if !errors.As(err, &pe) || pe.Err == nil {
+		return err.Error()
+	}
+	var b strings.Builder
+	if pe.Line > 0 {
+		fmt.Fprintf(&b, "line %d", pe.Line)
+		if pe.Column > 0 {
+			fmt.Fprintf(&b, ", field %d", pe.Column)
+		}
+		b.WriteString(": ")
+	}
+	if pe.Field != "" {
+		fmt.Fprintf(&b, "column %q: ", pe.Field)
+	}
+	b.WriteString(pe.Err.Error())
+	return b.String()
 }
 
 // unitFromPath is the file name without its extension.

@@ -46,7 +46,7 @@ func BenchmarkRun(b *testing.B) {
 	b.SetBytes(size)
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		batch, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepNonPassTraces})
+		batch, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepPageTraces})
 		if err != nil {
 			b.Fatal(err)
 		}

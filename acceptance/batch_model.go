@@ -104,6 +104,18 @@ type StepResult struct {
 	// Evidence holds observations from the record that point at causes of a
 	// gap (saturation, friction); nil when none could be made.
 	Evidence *StepEvidence `json:"evidence,omitempty"`
+
+	// Curve is the step's response normalised to its step, for the overlay
+	// chart; nil for steps the chart does not need (see curveSampler).
+	Curve *StepCurve `json:"-"`
+}
+
+// StepCurve is a step's response normalised to its step, (y − from)/(to −
+// from), on a uniform grid from the step instant: point k lies at
+// k·Window/(len(Y) − 1) seconds. Points after the step's record ends are NaN.
+type StepCurve struct {
+	Window float64
+	Y      []float32
 }
 
 // StepEvidence is what the record of one step shows beyond the metrics,

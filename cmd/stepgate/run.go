@@ -18,6 +18,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report"
+	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
 )
 
@@ -28,6 +29,7 @@ type runFlags struct {
 	allUnits   bool
 	reportDate string
 	quiet      bool
+	verbose    bool
 }
 
 func newRunCmd() *cobra.Command {
@@ -49,6 +51,7 @@ func newRunCmd() *cobra.Command {
 	fl.BoolVar(&f.allUnits, "all-units", false, "give every unit a page in the PDF, not only failing and invalid ones")
 	fl.StringVar(&f.reportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD (default: SOURCE_DATE_EPOCH, else the newest test date in the logs, else the newest modification date of the log files)")
 	fl.BoolVar(&f.quiet, "quiet", false, "print nothing but errors")
+	fl.BoolVar(&f.verbose, "verbose", false, "list every unit with all its reasons, and the run's timing on stderr")
 	cmd.MarkFlagRequired("spec")
 	cmd.MarkFlagRequired("out")
 	return cmd
@@ -97,11 +100,27 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 		return usageErr(fmt.Errorf("%s: %w", strings.Join(args, " "), acceptance.ErrNoLogs))
 	}
 
+	if f.quiet && f.verbose {
+		return usageErr(errors.New("--quiet and --verbose exclude each other"))
+	}
+	if f.workers < 0 {
+		return usageErr(fmt.Errorf("--workers %d: want 0 (one per core) or more", f.workers))
+	}
+	started := time.Now()
+	prog := newProgress(stderr, f.quiet)
+	var readBytes int64
 	b, err := acceptance.Run(ctx, spec, files, acceptance.RunOptions{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: version},
 		ReportDate: date,
-		Traces:     acceptance.KeepAllTraces,
+		Workers:    f.workers,
+		AllUnits:   f.allUnits,
+		Traces:     acceptance.KeepPageTraces,
+		Progress: func(done, total int, n int64) {
+			readBytes = n
+			prog.update(done, total, n)
+		},
 	})
+	prog.finish()
 	if err != nil {
 		return usageErr(fmt.Errorf("%w; no report written", err))
 	}
@@ -113,7 +132,8 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 			fmt.Fprintf(stderr, "stepgate: no log carries a started_at date; the reports are dated %s, the newest modification date of the log files (set it with --report-date)\n", b.ReportDate)
 		}
 	}
-	paths, err := report.WriteAllContext(ctx, f.out, b, report.Options{})
+	judged := time.Since(started)
+	paths, err := report.WriteAllContext(ctx, f.out, b, report.Options{PDF: pdfreport.Options{AllUnits: f.allUnits}})
 	if err != nil {
 		return usageErr(err)
 	}
@@ -121,10 +141,15 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 		return usageErr(fmt.Errorf("interrupted after the reports were written"))
 	}
 	if !f.quiet {
-		printSummary(stdout, b)
+		printSummary(stdout, b, f.verbose)
 		for _, p := range paths {
 			fmt.Fprintln(stdout, "wrote", p)
 		}
+	}
+	if f.verbose {
+		total := time.Since(started)
+		fmt.Fprintf(stderr, "stepgate: %d files, %.1f MB judged in %.2f s (%.1f MB/s), reports written in %.2f s\n",
+			len(files), float64(readBytes)/1e6, judged.Seconds(), float64(readBytes)/1e6/judged.Seconds(), (total - judged).Seconds())
 	}
 	if b.Summary.Pass != b.Summary.Units {
 		return &exitError{code: 1, err: errUnitsNotPassed}
@@ -212,8 +237,14 @@ func reportDate(flag string) (string, error) {
 }
 
 // printSummary writes the verdict table to stdout.
-func printSummary(w io.Writer, b *acceptance.Batch) {
+// summaryAllUpTo is the batch size up to which the summary lists every
+// unit; a larger batch lists the units that did not pass (--verbose lists
+// all).
+const summaryAllUpTo = 100
+
+func printSummary(w io.Writer, b *acceptance.Batch, verbose bool) {
 	fmt.Fprintf(w, "%s rev %s: %s\n", b.Spec.SpecID, b.Spec.Revision, b.Spec.Title)
+	listAll := verbose || len(b.Units) <= summaryAllUpTo
 	// Unit ids come from file names and log metadata: control characters
 	// in them must not reach the terminal.
 	ids := make([]string, len(b.Units))
@@ -222,14 +253,29 @@ func printSummary(w io.Writer, b *acceptance.Batch) {
 		ids[i] = oneLine(u.Unit, 64)
 		width = max(width, utf8.RuneCountInString(ids[i]))
 	}
-	fmt.Fprintf(w, "%-*s  %-7s  %s\n", width, "unit", "verdict", "first reason")
+	head := "first reason"
+	if verbose {
+		head = "reasons"
+	}
+	fmt.Fprintf(w, "%-*s  %-7s  %s\n", width, "unit", "verdict", head)
 	for i, u := range b.Units {
+		if !listAll && u.Verdict == acceptance.Pass {
+			continue
+		}
 		reason := ""
 		if len(u.Reasons) > 0 {
 			reason = u.Reasons[0]
 		}
 		pad := strings.Repeat(" ", width-utf8.RuneCountInString(ids[i]))
 		fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, oneLine(reason, 100))
+		if verbose {
+			for _, r := range u.Reasons[min(1, len(u.Reasons)):] {
+				fmt.Fprintf(w, "%s  %-7s  %s\n", strings.Repeat(" ", width), "", oneLine(r, 100))
+			}
+		}
+	}
+	if !listAll {
+		fmt.Fprintf(w, "(%d passing units not listed; --verbose lists every unit)\n", b.Summary.Pass)
 	}
 	s := b.Summary
 	yield := 0.0

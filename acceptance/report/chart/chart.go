@@ -215,6 +215,9 @@ type segment struct {
 	start, end int
 	from, to   float64
 	duration   float64
+	// pre is the batch's normalised curve of a step whose record was not
+	// kept; tr is nil then.
+	pre *acceptance.StepCurve
 }
 
 func build(b *acceptance.Batch, units []int) *Overlay {
@@ -224,11 +227,15 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 		u := &b.Units[ui]
 		for si, s := range u.Steps {
 			o.Steps++
+			label := fmt.Sprintf("%s, step %d", u.Unit, s.Index)
+			if (u.Trace == nil || u.Trace.Len() == 0) && s.Curve != nil && len(s.Curve.Y) > 1 {
+				segs = append(segs, segment{kind: kindOf(s.Verdict), label: label, pre: s.Curve, duration: curveDuration(s.Curve)})
+				continue
+			}
 			if u.Trace == nil || u.Trace.Len() == 0 {
 				o.NoRecord++
 				continue
 			}
-			label := fmt.Sprintf("%s, step %d", u.Unit, s.Index)
 			start, err := StartIndex(u.Trace, s.StartS)
 			if err != nil {
 				o.Skipped = append(o.Skipped, label+": "+err.Error())
@@ -279,7 +286,13 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 	ymin, ymax := math.Inf(1), math.Inf(-1)
 	for _, group := range [][]segment{segs, preds} {
 		for _, s := range group {
-			t, y, err := Normalise(s.tr, s.start, s.end, s.from, s.to, o.Window)
+			var t, y []float64
+			var err error
+			if s.pre != nil {
+				t, y = curvePoints(s.pre, o.Window)
+			} else {
+				t, y, err = Normalise(s.tr, s.start, s.end, s.from, s.to, o.Window)
+			}
 			if err != nil {
 				o.Skipped = append(o.Skipped, s.label+": "+err.Error())
 				continue
@@ -305,6 +318,32 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 		o.Clipped = ymin < o.YMin || ymax > o.YMax
 	}
 	return o
+}
+
+// curveDuration is the time the curve covers before its record ends.
+func curveDuration(c *acceptance.StepCurve) float64 {
+	n := len(c.Y)
+	last := 0
+	for k, v := range c.Y {
+		if !math.IsNaN(float64(v)) {
+			last = k
+		}
+	}
+	return c.Window * float64(last) / float64(n-1)
+}
+
+// curvePoints returns the curve's points up to window seconds.
+func curvePoints(c *acceptance.StepCurve, window float64) (t, y []float64) {
+	n := len(c.Y)
+	for k, v := range c.Y {
+		tk := c.Window * float64(k) / float64(n-1)
+		if tk > window || math.IsNaN(float64(v)) {
+			break
+		}
+		t = append(t, tk)
+		y = append(y, float64(v))
+	}
+	return t, y
 }
 
 func kindOf(v acceptance.Verdict) Kind {

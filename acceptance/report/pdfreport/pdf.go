@@ -105,11 +105,9 @@ func WriteDigest(w io.Writer, d *digest.Digest, o Options) error {
 			return fmt.Errorf("pdfreport: %s: %w", s.what, err)
 		}
 	}
-	for i := range b.Units {
-		if o.AllUnits || b.Units[i].Verdict != acceptance.Pass {
-			if err := r.unitPage(i); err != nil {
-				return fmt.Errorf("pdfreport: unit %q: %w", b.Units[i].Unit, err)
-			}
+	for _, i := range b.PageUnits(o.AllUnits) {
+		if err := r.unitPage(i); err != nil {
+			return fmt.Errorf("pdfreport: unit %q: %w", b.Units[i].Unit, err)
 		}
 	}
 	r.cautions()

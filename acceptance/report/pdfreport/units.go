@@ -100,27 +100,52 @@ func (r *report) unitTable() {
 		r.para("The batch has no units.", 9, 4.6, black)
 		return
 	}
-	var bad [][]cell
-	all := make([][]cell, 0, len(r.b.Units))
+	var bad, all [][]cell
+	nBad := 0
 	for i := range r.b.Units {
-		all = append(all, row(i))
-		if r.b.Units[i].Verdict != acceptance.Pass {
-			bad = append(bad, all[i])
+		pass := r.b.Units[i].Verdict == acceptance.Pass
+		if !pass {
+			nBad++
+		}
+		if len(all) < maxTableRows {
+			all = append(all, row(i))
+			if !pass && len(bad) < maxTableRows {
+				bad = append(bad, all[len(all)-1])
+			}
+		} else if !pass && len(bad) < maxTableRows {
+			bad = append(bad, row(i))
 		}
 	}
-	if len(bad) > 0 && len(bad) < len(all) {
-		r.heading(fmt.Sprintf("Units that did not pass (%d)", len(bad)), 20)
+	more := func(shown, total int) {
+		if total > shown {
+			r.para(fmt.Sprintf("%d more not listed here: report.xlsx (Units sheet) and results.json list every unit.", total-shown), 8.5, 4.3, grey)
+		}
+	}
+	if nBad > 0 && nBad < len(r.b.Units) {
+		r.heading(fmt.Sprintf("Units that did not pass (%d)", nBad), 20)
 		r.table(cols, bad)
+		more(len(bad), nBad)
 		p.Ln(2)
 	}
-	r.heading(fmt.Sprintf("All units (%d)", len(all)), 20)
+	r.heading(fmt.Sprintf("All units (%d)", len(r.b.Units)), 20)
 	r.table(cols, all)
-	which := "each unit that did not pass has"
-	if r.o.AllUnits {
+	more(len(all), len(r.b.Units))
+	pages := len(r.b.PageUnits(r.o.AllUnits))
+	which := fmt.Sprintf("the %d units that did not pass have", pages)
+	if r.o.AllUnits && pages == len(r.b.Units) {
 		which = "every unit has"
+	} else if r.o.AllUnits {
+		which = fmt.Sprintf("the first %d units have", pages)
+	} else if pages == nBad {
+		which = "each unit that did not pass has"
+	} else {
+		which = fmt.Sprintf("the first %d of the %d units that did not pass have", pages, nBad)
 	}
 	r.para("# is the unit's place in the batch. Long texts are shortened with “…”; "+which+" a detail page with all its reasons.", 8, 4.2, grey)
 }
+
+// maxTableRows is the most rows a unit table lists; the XLSX lists all.
+const maxTableRows = 1000
 
 func (r *report) unitPage(i int) error {
 	p, u := r.pdf, &r.b.Units[i]
