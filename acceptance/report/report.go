@@ -12,8 +12,10 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"sync"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/report/jsonreport"
 	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
 	"github.com/stepgate/stepgate/acceptance/report/xlsxreport"
@@ -52,32 +54,52 @@ func WriteAllContext(ctx context.Context, dir string, b *acceptance.Batch, o Opt
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("output directory %s: %w", dir, err)
 	}
+	d, err := digest.New(b)
+	if err != nil {
+		return nil, fmt.Errorf("reports: %w", err)
+	}
 	writers := []struct {
 		name  string
 		write func(io.Writer) error
 	}{
 		{JSONName, func(w io.Writer) error { return jsonreport.Write(w, b) }},
-		{XLSXName, func(w io.Writer) error { return xlsxreport.Write(w, b) }},
-		{PDFName, func(w io.Writer) error { return pdfreport.Write(w, b, o.PDF) }},
+		{XLSXName, func(w io.Writer) error { return xlsxreport.WriteDigest(w, d) }},
+		{PDFName, func(w io.Writer) error { return pdfreport.WriteDigest(w, d, o.PDF) }},
 	}
-	var temps []string
+	// The three reports are written at the same time, each to its own
+	// temporary file; they only read the batch and its digest.
+	temps := make([]string, len(writers))
+	errs := make([]error, len(writers))
 	defer func() {
-		if r := recover(); r != nil {
-			err = fmt.Errorf("writing the reports in %s: internal error: %v", dir, r)
-			paths = nil
-		}
 		if err != nil {
 			for _, t := range temps {
-				os.Remove(t)
+				if t != "" {
+					os.Remove(t)
+				}
 			}
 		}
 	}()
-	for _, wr := range writers {
-		if err := interrupted(ctx); err != nil {
-			return nil, err
-		}
-		if werr := writeTemp(ctx, dir, wr.name, wr.write, &temps); werr != nil {
-			return nil, werr
+	var wg sync.WaitGroup
+	for i, wr := range writers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			defer func() {
+				if r := recover(); r != nil {
+					errs[i] = fmt.Errorf("writing %s in %s: internal error: %v", wr.name, dir, r)
+				}
+			}()
+			if err := interrupted(ctx); err != nil {
+				errs[i] = err
+				return
+			}
+			errs[i] = writeTemp(ctx, dir, wr.name, wr.write, &temps[i])
+		}()
+	}
+	wg.Wait()
+	for _, e := range errs {
+		if e != nil {
+			return nil, e
 		}
 	}
 	// The last point at which an interruption is obeyed: from here the
@@ -128,14 +150,14 @@ func (c ctxWriter) Write(p []byte) (int, error) {
 }
 
 // writeTemp writes one report to a new temporary file next to its final name
-// and syncs it. The temporary file's name is appended to temps as soon as it
+// and syncs it. The temporary file's name is stored in *temp as soon as it
 // exists, so that the caller removes it on any later failure.
-func writeTemp(ctx context.Context, dir, name string, write func(io.Writer) error, temps *[]string) error {
+func writeTemp(ctx context.Context, dir, name string, write func(io.Writer) error, temp *string) error {
 	f, err := os.CreateTemp(dir, "."+name+".tmp-*")
 	if err != nil {
 		return fmt.Errorf("output directory %s: cannot create %s: %w", dir, name, err)
 	}
-	*temps = append(*temps, f.Name())
+	*temp = f.Name()
 	// CreateTemp makes the file private; reports are ordinary documents.
 	if err := f.Chmod(0o644); err != nil {
 		f.Close()

@@ -19,37 +19,36 @@ const fontFamily = "LiberationSans"
 
 var (
 	glyphsOnce sync.Once
-	glyphsFont *sfnt.Font
+	glyphs     []uint64 // bit r set: both faces draw rune r (r ≤ U+FFFF)
 )
 
 // HasGlyph reports whether the embedded report font can draw r in both its
-// regular and bold faces.
+// regular and bold faces. The faces are looked up once for the whole Basic
+// Multilingual Plane and the answer kept as a bit set.
 func HasGlyph(r rune) bool {
 	glyphsOnce.Do(func() {
-		// The font ships inside a Go package; it always parses.
-		glyphsFont, _ = sfnt.Parse(liberationsansregular.TTF)
+		// The fonts ship inside a Go package; they always parse.
+		reg, err1 := sfnt.Parse(liberationsansregular.TTF)
+		bold, err2 := sfnt.Parse(liberationsansbold.TTF)
+		glyphs = make([]uint64, 0x10000/64)
+		if err1 != nil || err2 != nil {
+			return
+		}
+		var buf sfnt.Buffer
+		for c := rune(0); c <= 0xFFFF; c++ {
+			i, err := reg.GlyphIndex(&buf, c)
+			if err != nil || i == 0 {
+				continue
+			}
+			if i, err = bold.GlyphIndex(&buf, c); err == nil && i != 0 {
+				glyphs[c/64] |= 1 << (c % 64)
+			}
+		}
 	})
-	if glyphsFont == nil || r > 0xFFFF {
+	if r < 0 || r > 0xFFFF {
 		return false
 	}
-	var buf sfnt.Buffer
-	i, err := glyphsFont.GlyphIndex(&buf, r)
-	return err == nil && i != 0 && hasBold(r)
-}
-
-var (
-	boldOnce sync.Once
-	boldFont *sfnt.Font
-)
-
-func hasBold(r rune) bool {
-	boldOnce.Do(func() { boldFont, _ = sfnt.Parse(liberationsansbold.TTF) })
-	if boldFont == nil {
-		return false
-	}
-	var buf sfnt.Buffer
-	i, err := boldFont.GlyphIndex(&buf, r)
-	return err == nil && i != 0
+	return glyphs[r/64]&(1<<(r%64)) != 0
 }
 
 // Clean makes text from a log or a spec safe to print: it removes control

@@ -87,7 +87,9 @@ func WriteDigest(w io.Writer, d *digest.Digest) error {
 			return fmt.Errorf("xlsxreport: sheet %s: %w", s.name, err)
 		}
 	}
-	f.SetActiveSheet(0)
+	// Summary is the renamed first sheet of a new workbook and so already
+	// the active one. (SetActiveSheet would parse every streamed sheet back
+	// into memory.)
 	var buf bytes.Buffer
 	if err := f.Write(&buf); err != nil {
 		return fmt.Errorf("xlsxreport: writing the workbook: %w", err)
