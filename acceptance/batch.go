@@ -73,7 +73,9 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			rd := rigdata.NewReader(format)
+			// Each trace is measured before the next file is read, so the
+			// worker's reader lends its buffers instead of copying them.
+			rd := rigdata.NewReader(format).Shared()
 			for i := range jobs {
 				u, n := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces)
 				results[i] = u
@@ -205,7 +207,7 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 		u.Fit = pred.fit(tr, steps[0])
 	}
 	if policy == KeepAllTraces {
-		t := tr
+		t := copyTrace(tr)
 		u.Trace = &t
 	}
 	return u, lg.Size
@@ -265,6 +267,17 @@ func readReason(err error) string {
 	}
 	b.WriteString(pe.Err.Error())
 	return b.String()
+}
+
+// copyTrace returns a trace that owns its samples.
+func copyTrace(tr metrics.Trace) metrics.Trace {
+	c := func(v []float64) []float64 {
+		if v == nil {
+			return nil
+		}
+		return append([]float64(nil), v...)
+	}
+	return metrics.Trace{Time: c(tr.Time), Command: c(tr.Command), Response: c(tr.Response), Effort: c(tr.Effort)}
 }
 
 // unitFromPath is the file name without its extension.

@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 	"strconv"
+	"sync"
 )
 
 // Window lengths used for the state levels.
@@ -38,10 +39,11 @@ func Measure(tr Trace, minChange float64, o Options) []StepMetrics {
 		return nil
 	}
 	out := make([]StepMetrics, len(steps))
-	var buf []float64
+	bp := scratchPool.Get().(*[]float64)
 	for i, s := range steps {
-		out[i] = measureStep(tr, s, o, &buf)
+		out[i] = measureStep(tr, s, o, bp)
 	}
+	scratchPool.Put(bp)
 	return out
 }
 
@@ -85,9 +87,16 @@ func Measure(tr Trace, minChange float64, o Options) []StepMetrics {
 // the reason. Start and Duration are 0 only when the step does not fit the
 // trace.
 func MeasureStep(tr Trace, s Step, o Options) StepMetrics {
-	var buf []float64
-	return measureStep(tr, s, o, &buf)
+	bp := scratchPool.Get().(*[]float64)
+	m := measureStep(tr, s, o, bp)
+	scratchPool.Put(bp)
+	return m
 }
+
+// scratchPool recycles the sorting buffers of the state levels between
+// calls, so that measuring a batch does not allocate one per step. The
+// results never refer to the buffer.
+var scratchPool = sync.Pool{New: func() any { return new([]float64) }}
 
 func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 	m := StepMetrics{Step: s, StepSize: Known(s.Size())}

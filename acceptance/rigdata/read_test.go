@@ -547,3 +547,33 @@ func TestReadOptionalEffortMissing(t *testing.T) {
 		t.Fatalf("got effort %v, response %v; want no effort and 2 samples", lg.Trace.Effort, lg.Trace.Response)
 	}
 }
+
+// A shared reader returns the same values as a copying one; its trace is
+// reused by the next read.
+func TestReaderShared(t *testing.T) {
+	f := Format{Time: "time", Command: "command", Response: "position"}
+	a := "time,command,position\n0,0,0\n1,1,0.5\n2,1,1\n"
+	b := "time,command,position\n0,5,5\n1,6,5.5\n2,6,6\n"
+	want, err := Read(strings.NewReader(a), "a.csv", f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rd := NewReader(f).Shared()
+	got, err := rd.Read(strings.NewReader(a), "a.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range want.Trace.Time {
+		if got.Trace.Time[i] != want.Trace.Time[i] || got.Trace.Command[i] != want.Trace.Command[i] || got.Trace.Response[i] != want.Trace.Response[i] {
+			t.Fatalf("sample %d: shared %v/%v/%v, copied %v/%v/%v", i, got.Trace.Time[i], got.Trace.Command[i], got.Trace.Response[i],
+				want.Trace.Time[i], want.Trace.Command[i], want.Trace.Response[i])
+		}
+	}
+	first := got.Trace.Command
+	if _, err := rd.Read(strings.NewReader(b), "b.csv"); err != nil {
+		t.Fatal(err)
+	}
+	if first[0] != 5 {
+		t.Errorf("a shared trace should be overwritten by the next read; command[0] = %v", first[0])
+	}
+}

@@ -159,7 +159,7 @@ func floor(files []string, specPath string) (bytes, rows int64, err error) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			rd := rigdata.NewReader(f)
+			rd := rigdata.NewReader(f).Shared() // per-worker reusable buffers, as the batch uses
 			for p := range jobs {
 				lg, err := rd.ReadFile(p)
 				if lg != nil {
