@@ -22,9 +22,9 @@ type TracePolicy int
 
 // Trace policies.
 const (
-	// KeepPageTraces keeps the records of the units that get a detail page
-	// (see Batch.PageUnits): memory stays flat in the batch size. The
-	// records are read again after the batch is judged.
+	// KeepPageTraces keeps no record while judging; the report reads the
+	// log of each unit that gets a detail page again when it draws the page
+	// (see Batch.UnitTrace), so memory stays flat in the batch size.
 	KeepPageTraces TracePolicy = iota
 	KeepAllTraces              // every unit keeps its record
 	KeepNoTraces               // none
@@ -130,7 +130,7 @@ feed:
 		b.ReportDate = b.TestDates.Last
 	}
 	if o.Traces == KeepPageTraces {
-		loadPageTraces(b, format, o.AllUnits)
+		b.loader = traceLoader(format)
 	}
 	if pred != nil {
 		b.Model = pred.summary()
@@ -229,22 +229,23 @@ func (b *Batch) PageUnits(all bool) []int {
 	return idx
 }
 
-// loadPageTraces reads again the records of the units that get a page. A
-// record that cannot be read again, or no longer matches the digest judged,
-// is left out; the page then says there is no record.
-func loadPageTraces(b *Batch, f rigdata.Format, all bool) {
+// traceLoader returns a function that reads a unit's log again for its
+// detail page. A log that cannot be read again, or no longer matches the
+// digest judged, gives no record; the page then says so.
+func traceLoader(f rigdata.Format) func(u *UnitResult) *metrics.Trace {
+	var mu sync.Mutex
 	rd := rigdata.NewReader(f)
-	for _, i := range b.PageUnits(all) {
-		u := &b.Units[i]
-		if u.Trace != nil || u.SHA256 == "" || len(u.Steps) == 0 {
-			continue
+	return func(u *UnitResult) *metrics.Trace {
+		if u.SHA256 == "" || len(u.Steps) == 0 {
+			return nil
 		}
+		mu.Lock()
 		lg, err := rd.ReadFile(u.File)
+		mu.Unlock()
 		if err != nil || lg.SHA256 != u.SHA256 {
-			continue
+			return nil
 		}
-		t := lg.Trace
-		u.Trace = &t
+		return &lg.Trace
 	}
 }
 

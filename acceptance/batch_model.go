@@ -33,6 +33,25 @@ type Batch struct {
 
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *Spec `json:"-"`
+
+	// loader reads a unit's record again for its detail page; nil when the
+	// batch was not made by Run.
+	loader func(u *UnitResult) *metrics.Trace
+}
+
+// UnitTrace returns the record of unit i: the kept one, else the log read
+// again (and checked against the digest judged), else nil. A record read
+// again is not kept, so a report that draws unit pages one after the other
+// holds one record at a time.
+func (b *Batch) UnitTrace(i int) *metrics.Trace {
+	u := &b.Units[i]
+	if u.Trace != nil {
+		return u.Trace
+	}
+	if b.loader == nil {
+		return nil
+	}
+	return b.loader(u)
 }
 
 // DateRange is the first and last date (YYYY-MM-DD) of a set of tests.

@@ -78,7 +78,8 @@ type Mark struct {
 func ForUnitSteps(b *acceptance.Batch, i int) *UnitFigure {
 	u := &b.Units[i]
 	f := &UnitFigure{Steps: len(u.Steps), ResponseUnit: digest.ResponseUnit(b)}
-	if u.Trace == nil || u.Trace.Len() == 0 {
+	tr := b.UnitTrace(i)
+	if tr == nil || tr.Len() == 0 {
 		return f
 	}
 	band := digest.SettlingBand(b)
@@ -89,24 +90,24 @@ func ForUnitSteps(b *acceptance.Batch, i int) *UnitFigure {
 		}
 		s := &u.Steps[si]
 		label := fmt.Sprintf("step %d", s.Index)
-		start, err := StartIndex(u.Trace, s.StartS)
+		start, err := StartIndex(tr, s.StartS)
 		if err != nil {
 			f.Skipped = append(f.Skipped, label+": "+err.Error())
 			continue
 		}
-		end := u.Trace.Len()
+		end := tr.Len()
 		if si+1 < len(u.Steps) {
-			if e, err := StartIndex(u.Trace, u.Steps[si+1].StartS); err == nil && e > start {
+			if e, err := StartIndex(tr, u.Steps[si+1].StartS); err == nil && e > start {
 				end = e
 			}
 		}
 		lo := 0
 		if si > 0 {
-			if e, err := StartIndex(u.Trace, u.Steps[si-1].StartS); err == nil && e < start {
+			if e, err := StartIndex(tr, u.Steps[si-1].StartS); err == nil && e < start {
 				lo = e
 			}
 		}
-		pn := panel(b, u.Trace, s, start, end, lo, band)
+		pn := panel(b, tr, s, start, end, lo, band)
 		if pn.PredT != nil {
 			f.PredictionKind = predictionKind(b)
 		}
