@@ -103,22 +103,20 @@ type UnitResult struct {
 
 // StepResult is one step's metrics and checks.
 type StepResult struct {
-	Index   int                      `json:"index"`
-	StartS  float64                  `json:"start_s"`
-	From    float64                  `json:"from"`
-	To      float64                  `json:"to"`
-	Verdict Verdict                  `json:"verdict"`
-	Reasons []string                 `json:"reasons"`
-	Metrics map[string]metrics.Value `json:"metrics"`
-	// Unmeasured gives the reason for every metric that is null.
-	Unmeasured map[string]string `json:"unmeasured"`
-	Checks     []Check           `json:"checks"`
+	Index   int       `json:"index"`
+	StartS  float64   `json:"start_s"`
+	From    float64   `json:"from"`
+	To      float64   `json:"to"`
+	Verdict Verdict   `json:"verdict"`
+	Reasons []string  `json:"reasons"`
+	Metrics MetricSet `json:"metrics"`
+	Checks  []Check   `json:"checks"`
 
 	// Predicted is the model's prediction of this step (realised when the
 	// spec has a loop section, else ideal); nil without a model.
 	Predicted *Prediction `json:"predicted,omitempty"`
-	// Gap is measured − predicted per metric; nil where either is unknown.
-	Gap map[string]*float64 `json:"gap,omitempty"`
+	// Gap is measured − predicted per metric; null where either is unknown.
+	Gap *GapSet `json:"gap,omitempty"`
 
 	// Evidence holds observations from the record that point at causes of a
 	// gap (saturation, friction); nil when none could be made.
@@ -155,9 +153,8 @@ type StepEvidence struct {
 
 // Prediction is one simulated step measured by the metrics package.
 type Prediction struct {
-	Kind       string                   `json:"kind"` // "ideal" or "realised"
-	Metrics    map[string]metrics.Value `json:"metrics"`
-	Unmeasured map[string]string        `json:"unmeasured,omitempty"`
+	Kind    string    `json:"kind"` // "ideal" or "realised"
+	Metrics MetricSet `json:"metrics"`
 }
 
 // Fit is the effective second-order closed loop identified from a unit's

@@ -35,6 +35,7 @@ type predEntry struct {
 	idealTr  *metrics.Trace
 	realTr   *metrics.Trace
 	err      error
+	failed   Prediction // every metric unknown with err, when err is set
 }
 
 // newPredictor builds the spec's model; it returns nil and no error when the
@@ -64,6 +65,10 @@ func (p *predictor) entry(k predKey) *predEntry {
 		pr, err := p.sys.Predict(k.from, k.to, k.duration, k.dt)
 		if err != nil {
 			e.err = err
+			e.failed = Prediction{Kind: p.kind().String()}
+			for _, n := range metrics.Names {
+				e.failed.Metrics.Set(n, metrics.Unknown(err.Error()))
+			}
 			return
 		}
 		e.idealTr, e.realTr = &pr.Ideal, &pr.Realised
@@ -76,22 +81,18 @@ func (p *predictor) entry(k predKey) *predEntry {
 // measure runs the metrics package over a simulated trace: the very code
 // that measured the logs.
 func (p *predictor) measure(tr metrics.Trace, kind model.Kind, k predKey) Prediction {
-	out := Prediction{Kind: kind.String(), Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
+	out := Prediction{Kind: kind.String()}
 	steps := metrics.FindSteps(tr, p.spec.Steps.MinChange)
 	if len(steps) == 0 {
 		for _, n := range metrics.Names {
-			out.Metrics[string(n)] = metrics.Unknown("the simulated command has no step")
-			out.Unmeasured[string(n)] = "the simulated command has no step"
+			out.Metrics.Set(n, metrics.Unknown("the simulated command has no step"))
 		}
 		return out
 	}
 	m := metrics.MeasureStep(tr, steps[0], p.opts)
 	for _, n := range metrics.Names {
 		v, _ := m.Get(n)
-		out.Metrics[string(n)] = v
-		if !v.OK {
-			out.Unmeasured[string(n)] = v.Why
-		}
+		out.Metrics.Set(n, v)
 	}
 	return out
 }
@@ -116,26 +117,20 @@ func (p *predictor) attach(sr *StepResult, m metrics.StepMetrics, tr metrics.Tra
 	}
 	e := p.entry(k)
 	if e.err != nil {
-		sr.Predicted = &Prediction{Kind: p.kind().String(), Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
-		for _, n := range metrics.Names {
-			sr.Predicted.Metrics[string(n)] = metrics.Unknown(e.err.Error())
-			sr.Predicted.Unmeasured[string(n)] = e.err.Error()
-		}
+		// Shared by every step of this shape: read-only from here on.
+		sr.Predicted = &e.failed
 		return
 	}
-	pr := e.ideal
+	pr := &e.ideal
 	if p.realised {
-		pr = e.realised
+		pr = &e.realised
 	}
-	sr.Predicted = &pr
-	sr.Gap = map[string]*float64{}
-	for _, n := range metrics.Names {
-		meas, pred := sr.Metrics[string(n)], pr.Metrics[string(n)]
+	sr.Predicted = pr
+	sr.Gap = &GapSet{}
+	for i, n := range metrics.Names {
+		meas, pred := sr.Metrics.Get(string(n)), pr.Metrics.Get(string(n))
 		if meas.OK && pred.OK {
-			g := meas.V - pred.V
-			sr.Gap[string(n)] = &g
-		} else {
-			sr.Gap[string(n)] = nil
+			sr.Gap.set(i, meas.V-pred.V)
 		}
 	}
 }

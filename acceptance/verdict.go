@@ -24,21 +24,16 @@ import (
 // invalid checks.
 func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 	r := StepResult{
-		Index:      m.Step.Index,
-		StartS:     m.Start,
-		From:       m.Step.From,
-		To:         m.Step.To,
-		Metrics:    make(map[string]metrics.Value, len(metrics.Names)),
-		Unmeasured: map[string]string{},
-		Checks:     []Check{},
-		Reasons:    []string{},
+		Index:   m.Step.Index,
+		StartS:  m.Start,
+		From:    m.Step.From,
+		To:      m.Step.To,
+		Checks:  []Check{},
+		Reasons: []string{},
 	}
 	for _, n := range metrics.Names {
 		v, _ := m.Get(n)
-		r.Metrics[string(n)] = v
-		if !v.OK {
-			r.Unmeasured[string(n)] = verdictWhy(v)
-		}
+		r.Metrics.Set(n, v)
 	}
 	var fails, invalids []string
 	for _, name := range s.LimitNames() {

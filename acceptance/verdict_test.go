@@ -157,11 +157,11 @@ func TestJudgeStep(t *testing.T) {
 			// Every metric is reported; every null one has its reason.
 			for _, n := range metrics.Names {
 				v, _ := m.Get(n)
-				got, ok := r.Metrics[string(n)]
+				got, ok := r.Metrics.Lookup(string(n))
 				if !ok || got.OK != v.OK || (v.OK && got.V != v.V) {
 					t.Errorf("Metrics[%s] = %+v, want %+v", n, got, v)
 				}
-				why, listed := r.Unmeasured[string(n)]
+				why, listed := r.Metrics.Unmeasured()[string(n)]
 				if listed == v.OK || (!v.OK && why == "") {
 					t.Errorf("Unmeasured[%s] = %q, %v for value %+v", n, why, listed, v)
 				}

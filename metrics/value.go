@@ -55,3 +55,35 @@ var Names = []Name{
 	StepSize, InitialValue, FinalValue, DeadTime, RiseTime, PeakValue,
 	PeakTime, Overshoot, SettlingTime, SteadyStateError, SteadyStateErrorPct,
 }
+
+// NumNames is the number of metrics, len(Names).
+const NumNames = 11
+
+// Index returns the position of n in Names, or -1 for an unknown name.
+func Index(n Name) int {
+	switch n {
+	case StepSize:
+		return 0
+	case InitialValue:
+		return 1
+	case FinalValue:
+		return 2
+	case DeadTime:
+		return 3
+	case RiseTime:
+		return 4
+	case PeakValue:
+		return 5
+	case PeakTime:
+		return 6
+	case Overshoot:
+		return 7
+	case SettlingTime:
+		return 8
+	case SteadyStateError:
+		return 9
+	case SteadyStateErrorPct:
+		return 10
+	}
+	return -1
+}

@@ -98,10 +98,10 @@ func unitBatch(steps int) *acceptance.Batch {
 	u := acceptance.UnitResult{Unit: "SN-1", Verdict: acceptance.Fail, Trace: tr}
 	for k := 0; k < steps; k++ {
 		s := acceptance.StepResult{Index: k + 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Fail,
-			Metrics: map[string]metrics.Value{"final_value": metrics.Known(10.1)}}
+			Metrics: acceptance.MetricsOf(map[string]metrics.Value{"final_value": metrics.Known(10.1)})}
 		if k%2 == 1 {
 			s.StartS, s.From, s.To = 3.002, 10, 0
-			s.Metrics = map[string]metrics.Value{}
+			s.Metrics = acceptance.MetricsOf(map[string]metrics.Value{})
 		}
 		u.Steps = append(u.Steps, s)
 	}

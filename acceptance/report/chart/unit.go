@@ -152,7 +152,7 @@ func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, sta
 		p.CmdT, p.Command = Downsample(t, c, PointsFew)
 	}
 	centre := s.To
-	if v, ok := s.Metrics[string(metrics.FinalValue)]; ok && v.OK {
+	if v, ok := s.Metrics.Lookup(string(metrics.FinalValue)); ok && v.OK {
 		centre = v.V
 	}
 	half := band * math.Abs(s.To-s.From)

@@ -50,12 +50,12 @@ func Compare(b *acceptance.Batch) []Comparison {
 		tol := 0.01 * math.Abs(n.To-n.From)
 		for _, m := range LimitedMetrics(b) {
 			c := Comparison{From: n.From, To: n.To, Metric: m, Kind: kind}
-			if v, ok := pred.Metrics[m]; ok {
+			if v, ok := pred.Metrics.Lookup(m); ok {
 				c.Predicted = v
 				if !v.OK && v.Why == "" {
-					c.Predicted.Why = pred.Unmeasured[m]
+					c.Predicted.Why = pred.Metrics.Reason(m)
 				}
-			} else if why, ok := pred.Unmeasured[m]; ok {
+			} else if why := pred.Metrics.Reason(m); why != "" {
 				c.Predicted = metrics.Unknown(why)
 			} else {
 				c.Predicted = metrics.Unknown("the model did not predict this metric")
@@ -70,7 +70,7 @@ func Compare(b *acceptance.Batch) []Comparison {
 						continue
 					}
 					c.Steps++
-					v, ok := s.Metrics[m]
+					v, ok := s.Metrics.Lookup(m)
 					if !ok || !v.OK {
 						continue
 					}

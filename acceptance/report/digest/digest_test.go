@@ -24,7 +24,7 @@ func compareBatch() *acceptance.Batch {
 		units = append(units, unit(string(rune('A'+i)), up, down))
 	}
 	b := batch(limits, units...)
-	pred := acceptance.Prediction{Kind: "ideal", Metrics: map[string]metrics.Value{"overshoot_pct": metrics.Known(os(0.6))}}
+	pred := acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(os(0.6))})}
 	b.Model = &acceptance.ModelSummary{Config: plantModel(25, 6, 1), Nominal: []acceptance.NominalPrediction{{From: 0, To: 10, Ideal: pred, Realised: pred}}}
 	return b
 }
@@ -109,7 +109,7 @@ func TestNew(t *testing.T) {
 		t.Errorf("bad date: %v", err)
 	}
 	b = compareBatch()
-	b.Units[1].Steps[0].Metrics["overshoot_pct"] = metrics.Known(44)
+	b.Units[1].Steps[0].Metrics.Set(metrics.Overshoot, metrics.Known(44))
 	b.Units[1].Verdict = acceptance.Fail
 	b.Summary = acceptance.Count(b.Units)
 	d, err := New(b)

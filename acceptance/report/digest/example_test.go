@@ -26,7 +26,7 @@ func ExampleNew() {
 		b.Units = append(b.Units, acceptance.UnitResult{
 			Unit: fmt.Sprintf("SN-%d", i+1), Verdict: verdict,
 			Steps: []acceptance.StepResult{{Index: 1, From: 0, To: 10, Verdict: verdict,
-				Metrics: map[string]metrics.Value{"overshoot_pct": metrics.Known(v)},
+				Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(v)}),
 				Checks:  []acceptance.Check{check}}},
 		})
 	}

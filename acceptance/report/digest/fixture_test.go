@@ -14,18 +14,17 @@ func ptr(v float64) *float64 { return &v }
 // the limits the way acceptance.Spec.JudgeStep reports them.
 func step(index int, limits map[string]acceptance.Limit, m map[string]float64, unmeasured ...string) acceptance.StepResult {
 	s := acceptance.StepResult{Index: index, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Pass,
-		Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
+		Metrics: acceptance.MetricsOf(nil)}
 	for k, v := range m {
-		s.Metrics[k] = metrics.Known(v)
+		s.Metrics.Set(metrics.Name(k), metrics.Known(v))
 	}
 	for _, k := range unmeasured {
-		s.Metrics[k] = metrics.Unknown("the record ends before the response stays in the band")
-		s.Unmeasured[k] = s.Metrics[k].Why
+		s.Metrics.Set(metrics.Name(k), metrics.Unknown("the record ends before the response stays in the band"))
 	}
 	for _, name := range LimitedMetrics(&acceptance.Batch{Limits: limits}) {
 		l := limits[name]
 		c := acceptance.Check{Metric: name, Min: l.Min, Max: l.Max, Verdict: acceptance.Pass}
-		v, ok := s.Metrics[name]
+		v, ok := s.Metrics.Lookup(name)
 		switch {
 		case !ok || !v.OK:
 			c.Verdict, c.Reason = acceptance.Invalid, name+" not measured at step"

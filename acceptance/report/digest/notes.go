@@ -118,11 +118,11 @@ func frictionNote(d *Digest) (Note, bool) {
 		hit := false
 		for k := range u.Steps {
 			s := &u.Steps[k]
-			e := s.Metrics[string(metrics.SteadyStateError)]
+			e := s.Metrics.Get(string(metrics.SteadyStateError))
 			if !e.OK || s.Predicted == nil || s.Evidence == nil {
 				continue
 			}
-			p := s.Predicted.Metrics[string(metrics.SteadyStateError)]
+			p := s.Predicted.Metrics.Get(string(metrics.SteadyStateError))
 			fd := s.Evidence.FinalDrift
 			band := d.Band * math.Abs(s.To-s.From)
 			if !p.OK || !fd.OK || band == 0 {

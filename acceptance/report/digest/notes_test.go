@@ -19,8 +19,8 @@ func notesBatch() *acceptance.Batch {
 	var units []acceptance.UnitResult
 	for i, wn := range []float64{12, 12.1, 11.9, 12} {
 		s := step(1, limits, map[string]float64{"overshoot_pct": 5, "steady_state_error": 0.01})
-		s.Predicted = &acceptance.Prediction{Kind: "realised", Metrics: map[string]metrics.Value{
-			"overshoot_pct": metrics.Known(5), "steady_state_error": metrics.Known(0.01)}}
+		s.Predicted = &acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(map[string]metrics.Value{
+			"overshoot_pct": metrics.Known(5), "steady_state_error": metrics.Known(0.01)})}
 		s.Evidence = &acceptance.StepEvidence{
 			EffortSaturatedPct: metrics.Known(10), EffortLimit: metrics.Known(100), FinalDrift: metrics.Known(0.0005)}
 		u := unit(string(rune('A'+i)), s)
@@ -54,7 +54,7 @@ func TestNotes(t *testing.T) {
 	overshoot := func(v float64) func(*acceptance.Batch) {
 		return func(b *acceptance.Batch) {
 			each(b, func(_ *acceptance.UnitResult, s *acceptance.StepResult) {
-				s.Metrics["overshoot_pct"] = metrics.Known(v)
+				s.Metrics.Set(metrics.Name("overshoot_pct"), metrics.Known(v))
 			})
 		}
 	}
@@ -68,7 +68,7 @@ func TestNotes(t *testing.T) {
 	offset := func(sse, drift float64) func(*acceptance.Batch) {
 		return func(b *acceptance.Batch) {
 			s := &b.Units[1].Steps[0]
-			s.Metrics["steady_state_error"] = metrics.Known(sse)
+			s.Metrics.Set(metrics.Name("steady_state_error"), metrics.Known(sse))
 			s.Evidence.FinalDrift = metrics.Known(drift)
 		}
 	}

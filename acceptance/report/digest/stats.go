@@ -184,7 +184,7 @@ func statistics(b *acceptance.Batch, limited []string, unit string) map[string]*
 		for k := range b.Units[i].Steps {
 			s := &b.Units[i].Steps[k]
 			for _, n := range names {
-				v, ok := s.Metrics[n]
+				v, ok := s.Metrics.Lookup(n)
 				if !ok {
 					continue
 				}
@@ -197,7 +197,7 @@ func statistics(b *acceptance.Batch, limited []string, unit string) map[string]*
 				a.sum += v.V
 				a.lo, a.hi = math.Min(a.lo, v.V), math.Max(a.hi, v.V)
 				if s.Predicted != nil {
-					if p, ok := s.Predicted.Metrics[n]; ok && p.OK && finite(p.V) {
+					if p, ok := s.Predicted.Metrics.Lookup(n); ok && p.OK && finite(p.V) {
 						a.predN++
 						a.predSum += p.V
 						a.gapSum += v.V - p.V
@@ -219,7 +219,7 @@ func statistics(b *acceptance.Batch, limited []string, unit string) map[string]*
 		for k := range b.Units[i].Steps {
 			s := &b.Units[i].Steps[k]
 			for _, n := range names {
-				v, ok := s.Metrics[n]
+				v, ok := s.Metrics.Lookup(n)
 				if !ok || !v.OK || !finite(v.V) {
 					continue
 				}

@@ -16,10 +16,9 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 	limit := 8.0
 	step := acceptance.StepResult{
 		Index: 1, From: 0, To: 25, Verdict: acceptance.Fail,
-		Reasons:    []string{"overshoot_pct 9.1 > 8 at step 1"},
-		Metrics:    map[string]metrics.Value{"overshoot_pct": metrics.Known(9.1), "settling_time_s": metrics.Unknown("record ends")},
-		Unmeasured: map[string]string{"settling_time_s": "record ends"},
-		Checks:     []acceptance.Check{{Metric: "overshoot_pct", Max: &limit, Verdict: acceptance.Fail}},
+		Reasons: []string{"overshoot_pct 9.1 > 8 at step 1"},
+		Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(9.1), "settling_time_s": metrics.Unknown("record ends")}),
+		Checks:  []acceptance.Check{{Metric: "overshoot_pct", Max: &limit, Verdict: acceptance.Fail}},
 	}
 	unit := func(id string) acceptance.UnitResult {
 		return acceptance.UnitResult{Unit: id, File: id + ".csv", Metadata: map[string]string{"station": "EOL-2", "serial": id},

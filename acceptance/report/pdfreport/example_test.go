@@ -22,7 +22,7 @@ func ExampleWrite() {
 			Unit: "SN-1", File: "SN-1.csv", SHA256: "11", Verdict: acceptance.Pass,
 			Steps: []acceptance.StepResult{{
 				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Pass,
-				Metrics: map[string]metrics.Value{"overshoot_pct": metrics.Known(9.48)},
+				Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(9.48)}),
 			}},
 		}},
 	}

@@ -155,8 +155,8 @@ func testBatch() *acceptance.Batch {
 		Config: *spec.Model, Plant: "25/(s² + 6 s)", Realised: false,
 		Nominal: []acceptance.NominalPrediction{{
 			From: 0, To: 10,
-			Ideal:      acceptance.Prediction{Kind: "ideal", Metrics: predM},
-			Realised:   acceptance.Prediction{Kind: "realised", Metrics: predM},
+			Ideal:      acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(predM)},
+			Realised:   acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(predM)},
 			IdealTrace: secondOrder(0.6, 5, 0.002, 3, []float64{0}, []float64{10}),
 		}},
 		Designs: []acceptance.GainDesign{{Target: "overshoot_pct", Value: 15, KpIdeal: ptr(1.9)}},
@@ -176,10 +176,8 @@ func testBatch() *acceptance.Batch {
 		}
 		for k, st := range []struct{ at, from, to float64 }{{0.5, 0, 10}, {3.5, 10, 0}} {
 			m := closedFormMetrics(us.zeta, us.wn, st.from, st.to)
-			unm := map[string]string{}
 			if us.unmeasured != "" && k == 1 {
 				m[us.unmeasured] = metrics.Unknown("the record ends before the response stays in the band")
-				unm[us.unmeasured] = m[us.unmeasured].Why
 			}
 			lim := map[string]acceptance.Limit{}
 			for name, l := range limits {
@@ -191,16 +189,17 @@ func testBatch() *acceptance.Batch {
 			checks, v, reasons := judge(lim, m)
 			s := acceptance.StepResult{
 				Index: k + 1, StartS: st.at, From: st.from, To: st.to, Verdict: v, Reasons: reasons,
-				Metrics: m, Unmeasured: unm, Checks: checks,
+				Metrics: acceptance.MetricsOf(m), Checks: checks,
 			}
 			if st.to == 10 {
-				s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: predM}
-				s.Gap = map[string]*float64{}
+				s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(predM)}
+				gaps := map[string]*float64{}
 				for name, pv := range predM {
 					if mv := m[name]; mv.OK && pv.OK {
-						s.Gap[name] = ptr(mv.V - pv.V)
+						gaps[name] = ptr(mv.V - pv.V)
 					}
 				}
+				s.Gap = acceptance.GapsOf(gaps)
 			}
 			u.Steps = append(u.Steps, s)
 			u.Reasons = append(u.Reasons, reasons...)

@@ -342,14 +342,14 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 	}
 	var rows [][]cell
 	for _, m := range names {
-		v, ok := s.Metrics[m]
+		v, ok := s.Metrics.Lookup(m)
 		c, limited := checks[m]
 		if !ok && !limited {
 			continue
 		}
 		note := ""
 		if !v.OK {
-			note = s.Unmeasured[m]
+			note = s.Metrics.Reason(m)
 			if note == "" {
 				note = v.Why
 			}
@@ -357,12 +357,12 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 		pred, gap := "", ""
 		if havePred {
 			pred = "—"
-			if pv, ok := s.Predicted.Metrics[m]; ok {
+			if pv, ok := s.Predicted.Metrics.Lookup(m); ok {
 				pred = value(pv)
 			}
 			gap = "—"
-			if g := s.Gap[m]; g != nil {
-				gap = gapText(*g, v, s.Predicted.Metrics[m])
+			if g := s.Gap.Get(m); g != nil {
+				gap = gapText(*g, v, s.Predicted.Metrics.Get(m))
 			}
 		}
 		row := []cell{txt(digest.MetricLabel(m)), {text: value(v), bold: limited}, txt(pred), txt(gap)}

@@ -24,10 +24,10 @@ func ExampleWrite() {
 			Reasons: []string{"overshoot_pct 44.43 above max 15"},
 			Steps: []acceptance.StepResult{{
 				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Fail,
-				Metrics: map[string]metrics.Value{
+				Metrics: acceptance.MetricsOf(map[string]metrics.Value{
 					"overshoot_pct":   metrics.Known(44.43),
 					"settling_time_s": metrics.Unknown("the record ends before the response settles"),
-				},
+				}),
 			}},
 		}},
 	}

@@ -114,7 +114,7 @@ func modelSheet(f *excelize.File, st *styles, d *digest.Digest) error {
 	for _, n := range m.Nominal {
 		for _, name := range metrics.Names {
 			k := string(name)
-			iv, rv := n.Ideal.Metrics[k], n.Realised.Metrics[k]
+			iv, rv := n.Ideal.Metrics.Get(k), n.Realised.Metrics.Get(k)
 			compared := iv
 			if m.Realised {
 				compared = rv

@@ -152,18 +152,18 @@ func units(f *excelize.File, st *styles, d *digest.Digest) error {
 				vals[6] = string(s.Verdict)
 				c := unitsFirstValue - 1
 				for _, m := range cols.metrics {
-					if v, ok := s.Metrics[m]; ok {
+					if v, ok := s.Metrics.Lookup(m); ok {
 						vals[c] = known(v)
 					}
 					c++
 				}
 				for _, m := range cols.predicted {
 					if s.Predicted != nil {
-						if v, ok := s.Predicted.Metrics[m]; ok {
+						if v, ok := s.Predicted.Metrics.Lookup(m); ok {
 							vals[c] = known(v)
 						}
 					}
-					if g := s.Gap[m]; g != nil {
+					if g := s.Gap.Get(m); g != nil {
 						vals[c+1] = *g
 					}
 					c += 2
@@ -352,9 +352,9 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest) error {
 				if mu := digest.MetricUnit(m, d.ResponseUnit); mu != "" {
 					vals[6] = Text(mu)
 				}
-				meas, pred := s.Metrics[m], s.Predicted.Metrics[m]
+				meas, pred := s.Metrics.Get(m), s.Predicted.Metrics.Get(m)
 				vals[7], vals[8] = known(meas), known(pred)
-				if g := s.Gap[m]; g != nil {
+				if g := s.Gap.Get(m); g != nil {
 					vals[9] = *g
 					if pred.OK && pred.V != 0 {
 						vals[10] = 100 * *g / pred.V
@@ -366,9 +366,9 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest) error {
 				}
 				switch {
 				case !meas.OK:
-					vals[13] = Text("not measured: " + orWhy(meas.Why, s.Unmeasured[m]))
+					vals[13] = Text("not measured: " + orWhy(meas.Why, s.Metrics.Reason(m)))
 				case !pred.OK:
-					vals[13] = Text("not predicted: " + orWhy(pred.Why, s.Predicted.Unmeasured[m]))
+					vals[13] = Text("not predicted: " + orWhy(pred.Why, s.Predicted.Metrics.Reason(m)))
 				}
 				if err := sw.SetRow(cellRef(1, row), vals); err != nil {
 					return fmt.Errorf("row %d (unit %q, step %d, %s): %w", row, u.Unit, s.Index, m, err)

@@ -97,14 +97,14 @@ func testBatch() *acceptance.Batch {
 			Config: model.Config{Plant: &model.TransferFunc{Numerator: []float64{25}, Denominator: []float64{1, 6, 0}}, Controller: model.Controller{Kp: 1}},
 			Plant:  "25/(s² + 6 s)",
 			Nominal: []acceptance.NominalPrediction{{
-				From: 0, To: 10, Ideal: acceptance.Prediction{Kind: "ideal", Metrics: pred}, Realised: acceptance.Prediction{Kind: "realised", Metrics: pred},
+				From: 0, To: 10, Ideal: acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(pred)}, Realised: acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(pred)},
 			}},
 			Designs: []acceptance.GainDesign{{Target: "overshoot_pct", Value: 15, KpIdeal: ptr(1.9)}, {Target: "damping", Value: 1, KpIdeal: ptr(0.36), Why: "realised: not designed"}},
 		},
 		TestDates: acceptance.DateRange{First: "2024-05-15", Last: "2024-05-16"},
 	}
 	mk := func(serial, file string, zeta, wn float64, unknown string, v acceptance.Verdict, reasons []string) acceptance.UnitResult {
-		m, unm := stepMetrics(zeta, wn, unknown)
+		m, _ := stepMetrics(zeta, wn, unknown)
 		gap := map[string]*float64{}
 		for k, pv := range pred {
 			if mv := m[k]; mv.OK {
@@ -115,9 +115,9 @@ func testBatch() *acceptance.Batch {
 			Unit: serial, File: file, SHA256: strings.Repeat("cd", 32), Verdict: v, Reasons: reasons, Samples: 3001,
 			Metadata: map[string]string{"operator": "B. Tech", "rig": formulaMeta},
 			Steps: []acceptance.StepResult{{
-				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: v, Reasons: reasons, Metrics: m, Unmeasured: unm,
+				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: v, Reasons: reasons, Metrics: acceptance.MetricsOf(m),
 				Checks:    judge(limits, m),
-				Predicted: &acceptance.Prediction{Kind: "ideal", Metrics: pred}, Gap: gap,
+				Predicted: &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(pred)}, Gap: acceptance.GapsOf(gap),
 			}},
 		}
 	}
