@@ -75,6 +75,12 @@ var sortedNames = func() []int {
 
 // MarshalJSON writes the set as an object: name → number or null.
 func (m MetricSet) MarshalJSON() ([]byte, error) {
+	return metricObject(func(i int) ([]byte, error) { return json.Marshal(m.v[i]) })
+}
+
+// metricObject writes a JSON object with one member per metric, keys in
+// sorted order, each value given by value(index into metrics.Names).
+func metricObject(value func(i int) ([]byte, error)) ([]byte, error) {
 	var b strings.Builder
 	b.WriteByte('{')
 	for k, i := range sortedNames {
@@ -82,7 +88,7 @@ func (m MetricSet) MarshalJSON() ([]byte, error) {
 			b.WriteByte(',')
 		}
 		fmt.Fprintf(&b, "%q:", metrics.Names[i])
-		data, err := json.Marshal(m.v[i])
+		data, err := value(i)
 		if err != nil {
 			return nil, err
 		}
@@ -138,25 +144,12 @@ func (g *GapSet) set(i int, v float64) {
 
 // MarshalJSON writes the set as an object: name → number or null.
 func (g GapSet) MarshalJSON() ([]byte, error) {
-	var b strings.Builder
-	b.WriteByte('{')
-	for k, i := range sortedNames {
-		if k > 0 {
-			b.WriteByte(',')
-		}
-		fmt.Fprintf(&b, "%q:", metrics.Names[i])
+	return metricObject(func(i int) ([]byte, error) {
 		if g.known&(1<<i) == 0 {
-			b.WriteString("null")
-			continue
+			return []byte("null"), nil
 		}
-		data, err := json.Marshal(g.v[i])
-		if err != nil {
-			return nil, err
-		}
-		b.Write(data)
-	}
-	b.WriteByte('}')
-	return []byte(b.String()), nil
+		return json.Marshal(g.v[i])
+	})
 }
 
 // MarshalJSON adds the reasons for the unknown metrics under "unmeasured".
