@@ -30,17 +30,21 @@ const (
 	KeepNoTraces               // none
 )
 
-// MaxUnitPages is the most units that get a detail page in the PDF; the
-// XLSX and results.json hold every unit.
+// MaxUnitPages is the default for RunOptions.MaxUnitPages: the most units
+// that get a detail page in the PDF. The XLSX and results.json hold every
+// unit.
 const MaxUnitPages = 200
 
 // RunOptions control a batch run.
 type RunOptions struct {
-	Workers    int         // concurrent workers; 0 means one per core
-	Traces     TracePolicy // which traces to keep
-	AllUnits   bool        // every unit, not only those that did not pass, gets a detail page
-	Tool       ToolInfo    // name and version printed in the reports
-	ReportDate string      // YYYY-MM-DD; empty means the newest test date in the logs
+	Workers  int         // concurrent workers; 0 means one per core
+	Traces   TracePolicy // which traces to keep
+	AllUnits bool        // every unit, not only those that did not pass, gets a detail page
+	// MaxUnitPages caps the units that get a detail page: 0 means
+	// MaxUnitPages, a negative number no cap.
+	MaxUnitPages int
+	Tool         ToolInfo // name and version printed in the reports
+	ReportDate   string   // YYYY-MM-DD; empty means the newest test date in the logs
 	// Progress, when set, is called after each file with the count done, the
 	// total and the bytes read so far. It is called from one goroutine at a
 	// time.
@@ -129,6 +133,7 @@ feed:
 	if b.ReportDate == "" {
 		b.ReportDate = b.TestDates.Last
 	}
+	b.MaxPages = o.MaxUnitPages
 	if o.Traces == KeepPageTraces {
 		b.loader = traceLoader(format)
 	}
@@ -214,12 +219,16 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 }
 
 // PageUnits returns the indices of the units that get a detail page: the
-// first MaxUnitPages units that did not pass (every unit with all), in
-// batch order.
+// first b.MaxPages units that did not pass (of every unit with all), in
+// batch order; b.MaxPages 0 means MaxUnitPages, negative no cap.
 func (b *Batch) PageUnits(all bool) []int {
+	limit := b.MaxPages
+	if limit == 0 {
+		limit = MaxUnitPages
+	}
 	var idx []int
 	for i := range b.Units {
-		if len(idx) == MaxUnitPages {
+		if len(idx) == limit {
 			break
 		}
 		if all || b.Units[i].Verdict != Pass {

@@ -33,6 +33,8 @@ type Batch struct {
 
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *Spec `json:"-"`
+	// MaxPages caps the units with a detail page (see PageUnits).
+	MaxPages int `json:"-"`
 
 	// loader reads a unit's record again for its detail page; nil when the
 	// batch was not made by Run.

@@ -29,6 +29,7 @@ type runFlags struct {
 	out        string
 	workers    int
 	allUnits   bool
+	maxPages   int
 	reportDate string
 	quiet      bool
 	verbose    bool
@@ -53,6 +54,7 @@ func newRunCmd() *cobra.Command {
 	fl.StringVar(&f.out, "out", "", "output directory for results.json, report.xlsx and report.pdf")
 	fl.IntVar(&f.workers, "workers", 0, "concurrent workers (0: one per core)")
 	fl.BoolVar(&f.allUnits, "all-units", false, "give every unit a page in the PDF, not only failing and invalid ones")
+	fl.IntVar(&f.maxPages, "max-unit-pages", acceptance.MaxUnitPages, "most units with a detail page in the PDF (0: no limit); the XLSX and JSON hold every unit")
 	fl.StringVar(&f.reportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD (default: SOURCE_DATE_EPOCH, else the newest test date in the logs, else the newest modification date of the log files)")
 	fl.BoolVar(&f.quiet, "quiet", false, "print nothing but errors")
 	fl.BoolVar(&f.verbose, "verbose", false, "list every unit with all its reasons, and the run's timing on stderr")
@@ -127,6 +129,9 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	if f.quiet && f.verbose {
 		return usageErr(errors.New("--quiet and --verbose exclude each other"))
 	}
+	if f.maxPages < 0 {
+		return usageErr(fmt.Errorf("--max-unit-pages %d: want 0 (no limit) or more", f.maxPages))
+	}
 	if f.workers < 0 {
 		return usageErr(fmt.Errorf("--workers %d: want 0 (one per core) or more", f.workers))
 	}
@@ -139,7 +144,13 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 		ReportDate: date,
 		Workers:    f.workers,
 		AllUnits:   f.allUnits,
-		Traces:     acceptance.KeepPageTraces,
+		MaxUnitPages: func() int {
+			if f.maxPages == 0 {
+				return -1
+			}
+			return f.maxPages
+		}(),
+		Traces: acceptance.KeepPageTraces,
 		Progress: func(done, total int, n int64) {
 			readBytes = n
 			prog.update(done, total, n)
