@@ -69,6 +69,14 @@ func (p *predictor) entry(k predKey) *predEntry {
 			for _, n := range metrics.Names {
 				e.failed.Metrics.Set(n, metrics.Unknown(err.Error()))
 			}
+			// When only the realised loop fails, the ideal prediction still
+			// stands and is reported beside the failure.
+			if p.realised {
+				if id, ierr := p.sys.Simulate(model.Ideal, k.from, k.to, k.duration, k.dt); ierr == nil {
+					e.idealTr = &id
+					e.ideal = p.measure(id, model.Ideal, k)
+				}
+			}
 			return
 		}
 		e.idealTr, e.realTr = &pr.Ideal, &pr.Realised
@@ -195,6 +203,11 @@ func (p *predictor) summary() *ModelSummary {
 			if !seen[e.err.Error()] {
 				ms.Warnings = append(ms.Warnings, "prediction failed: "+e.err.Error())
 				seen[e.err.Error()] = true
+			}
+			if e.idealTr != nil { // the realised loop alone failed
+				ms.Nominal = append(ms.Nominal, NominalPrediction{
+					From: k.from, To: k.to, Ideal: e.ideal, Realised: e.failed, IdealTrace: e.idealTr,
+				})
 			}
 			continue
 		}

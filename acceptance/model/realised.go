@@ -9,9 +9,10 @@ import (
 )
 
 // maxLiftedDelay is the largest total delay, in sample periods, for which the
-// realised loop's discrete poles are computed; beyond it only divergence of
-// the simulation reveals instability.
-const maxLiftedDelay = 150
+// realised loop's discrete poles are computed (an eigenvalue problem of about
+// that order, well under a second); beyond it only a growing error in the
+// simulation reveals instability (see growthCheck).
+const maxLiftedDelay = 600
 
 // realisation holds what the realised simulation needs: the sample period,
 // the total delay from a controller update to the plant (loop delay plus
@@ -157,9 +158,16 @@ func (s *System) realisedPoles(r realisation) (poles []complex128, ok bool, err 
 }
 
 func (s *System) checkRealisedStable(r realisation) error {
+	_, err := s.checkRealisedPoles(r)
+	return err
+}
+
+// checkRealisedPoles is checkRealisedStable that also says whether the poles
+// could be checked at all (not for a delay beyond maxLiftedDelay periods).
+func (s *System) checkRealisedPoles(r realisation) (checked bool, err error) {
 	poles, ok, err := s.realisedPoles(r)
 	if err != nil || !ok {
-		return err
+		return false, err
 	}
 	var bad []complex128
 	for _, z := range poles {
@@ -172,8 +180,35 @@ func (s *System) checkRealisedStable(r realisation) error {
 		if r.fine {
 			what = "finely sampled stand-in for the continuous"
 		}
-		return &UnstableError{Kind: Realised, Kp: s.Kp(), Poles: bad,
+		return true, &UnstableError{Kind: Realised, Kp: s.Kp(), Poles: bad,
 			Detail: fmt.Sprintf("discrete poles with |z| ≥ 1 of the linear part of the %s loop, period %ss, total delay %ss", what, fmtNum(r.ts), fmtNum(r.delay))}
+	}
+	return true, nil
+}
+
+// growthCheck is the stability evidence used when the poles cannot be
+// checked: the error from the command over the last quarter of the
+// simulated record must not exceed that over the quarter before it (by more
+// than 5 %, and 1 % of the step). A growing error means a growing
+// oscillation or a runaway, whatever the record's length.
+func (s *System) growthCheck(tr metrics.Trace, nPre int, from, to float64, r realisation) error {
+	post := tr.Response[nPre:]
+	n := len(post)
+	if n < 8 {
+		return nil
+	}
+	peak := func(y []float64) float64 {
+		m := 0.0
+		for _, v := range y {
+			m = math.Max(m, math.Abs(v-to))
+		}
+		return m
+	}
+	a, b := peak(post[n/2:3*n/4]), peak(post[3*n/4:])
+	if b > 1.05*a && b > 0.01*math.Abs(to-from) {
+		return &UnstableError{Kind: Realised, Kp: s.Kp(), Detail: fmt.Sprintf(
+			"the simulated error grows from %s to %s over the last half of the record; the delay of %ss is %s sample periods, too long for the pole check",
+			fmtNum(a), fmtNum(b), fmtNum(r.delay), fmtNum(r.delay/r.ts))}
 	}
 	return nil
 }
@@ -184,10 +219,18 @@ func (s *System) checkRealisedStable(r realisation) error {
 // events the plant input is constant, so zero-order-hold stepping over each
 // gap is exact. At one instant the controller samples before any output
 // changes the plant input, and the trace records the values after it.
-func (s *System) simulateRealised(from, to, dt float64, nPre int, tr metrics.Trace) error {
+func (s *System) simulateRealised(from, to, dt float64, nPre int, tr metrics.Trace) (err error) {
 	r := s.realisation(dt)
-	if err := s.checkRealisedStable(r); err != nil {
+	checked, err := s.checkRealisedPoles(r)
+	if err != nil {
 		return err
+	}
+	if !checked {
+		defer func() {
+			if err == nil {
+				err = s.growthCheck(tr, nPre, from, to, r)
+			}
+		}()
 	}
 	cl, err := s.closedLoop()
 	if err != nil {

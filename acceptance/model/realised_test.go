@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"slices"
+	"strings"
 	"testing"
 	"time"
 
@@ -207,6 +208,35 @@ func BenchmarkPredictRealisedOneStep(b *testing.B) {
 	for b.Loop() {
 		if _, err := s.Simulate(Realised, 0, 1, 1, 1e-3); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// A loop delay beyond the pole check's reach (here 800 sample periods) is
+// still reported when it makes the loop unstable: the simulated error grows.
+// The plant 48.4/(s(s + 19.8)) under kp = 4.5 crosses over near 9 rad/s;
+// 0.8 s of delay there is several radians of lag, far more than the loop's
+// phase margin, so it oscillates with growing amplitude (Nyquist criterion;
+// hand derivation, common practice, no source). With kp = 0.02 the crossover
+// is near 0.05 rad/s and 0.04 rad of lag leaves the loop stable.
+func TestRealisedLongDelayInstability(t *testing.T) {
+	plant := &TransferFunc{Numerator: []float64{48.4}, Denominator: []float64{1, 19.8, 0}}
+	cases := []struct {
+		kp       float64
+		unstable bool
+	}{
+		{4.5, true},
+		{0.02, false},
+	}
+	for _, c := range cases {
+		s := mustBuild(t, Config{Plant: plant, Controller: Controller{Kp: c.kp}, Loop: &Loop{SamplePeriod: 1e-3, Delay: 0.8}})
+		_, err := s.Simulate(Realised, 0, 10, 6, 1e-3)
+		var ue *UnstableError
+		if got := errors.As(err, &ue); got != c.unstable {
+			t.Errorf("kp %v: err = %v, want unstable %v", c.kp, err, c.unstable)
+		}
+		if c.unstable && ue != nil && !strings.Contains(ue.Error(), "grows") {
+			t.Errorf("kp %v: %v does not say the error grows", c.kp, ue)
 		}
 	}
 }
