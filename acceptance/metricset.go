@@ -2,9 +2,9 @@ package acceptance
 
 import (
 	"encoding/json"
-	"fmt"
+	"math"
 	"sort"
-	"strings"
+	"strconv"
 
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -75,27 +75,59 @@ var sortedNames = func() []int {
 
 // MarshalJSON writes the set as an object: name → number or null.
 func (m MetricSet) MarshalJSON() ([]byte, error) {
-	return metricObject(func(i int) ([]byte, error) { return json.Marshal(m.v[i]) })
+	return metricObject(func(b []byte, i int) []byte {
+		if !m.v[i].OK {
+			return append(b, "null"...)
+		}
+		return appendJSONFloat(b, m.v[i].V)
+	}), nil
 }
 
+// quotedNames holds each metric name as a JSON string followed by a colon.
+var quotedNames = func() [][]byte {
+	q := make([][]byte, len(metrics.Names))
+	for i, n := range metrics.Names {
+		k, _ := json.Marshal(string(n))
+		q[i] = append(k, ':')
+	}
+	return q
+}()
+
 // metricObject writes a JSON object with one member per metric, keys in
-// sorted order, each value given by value(index into metrics.Names).
-func metricObject(value func(i int) ([]byte, error)) ([]byte, error) {
-	var b strings.Builder
-	b.WriteByte('{')
+// sorted order, each value appended by value(b, index into metrics.Names).
+func metricObject(value func(b []byte, i int) []byte) []byte {
+	b := make([]byte, 0, 320)
+	b = append(b, '{')
 	for k, i := range sortedNames {
 		if k > 0 {
-			b.WriteByte(',')
+			b = append(b, ',')
 		}
-		fmt.Fprintf(&b, "%q:", metrics.Names[i])
-		data, err := value(i)
-		if err != nil {
-			return nil, err
-		}
-		b.Write(data)
+		b = append(b, quotedNames[i]...)
+		b = value(b, i)
 	}
-	b.WriteByte('}')
-	return []byte(b.String()), nil
+	return append(b, '}')
+}
+
+// appendJSONFloat appends v as encoding/json writes a float64: the shortest
+// representation that reads back exactly, in 'f' format except for
+// magnitudes below 1e-6 or from 1e21 on, which use an exponent without a
+// leading zero (e-7, not e-07). v must be finite: a Value that is known
+// always is (metrics.Known).
+func appendJSONFloat(b []byte, v float64) []byte {
+	abs := math.Abs(v)
+	format := byte('f')
+	if abs != 0 && (abs < 1e-6 || abs >= 1e21) {
+		format = 'e'
+	}
+	b = strconv.AppendFloat(b, v, format, -1, 64)
+	if format == 'e' {
+		n := len(b)
+		if n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
+			b[n-2] = b[n-1]
+			b = b[:n-1]
+		}
+	}
+	return b
 }
 
 // UnmarshalJSON reads the object MarshalJSON writes; null is unknown with no
@@ -144,12 +176,12 @@ func (g *GapSet) set(i int, v float64) {
 
 // MarshalJSON writes the set as an object: name → number or null.
 func (g GapSet) MarshalJSON() ([]byte, error) {
-	return metricObject(func(i int) ([]byte, error) {
+	return metricObject(func(b []byte, i int) []byte {
 		if g.known&(1<<i) == 0 {
-			return []byte("null"), nil
+			return append(b, "null"...)
 		}
-		return json.Marshal(g.v[i])
-	})
+		return appendJSONFloat(b, g.v[i])
+	}), nil
 }
 
 // MarshalJSON adds the reasons for the unknown metrics under "unmeasured".

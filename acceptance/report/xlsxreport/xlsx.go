@@ -90,8 +90,10 @@ func WriteDigest(w io.Writer, d *digest.Digest) error {
 	// Summary is the renamed first sheet of a new workbook and so already
 	// the active one. (SetActiveSheet would parse every streamed sheet back
 	// into memory.)
-	var buf bytes.Buffer
-	if err := f.Write(&buf); err != nil {
+	// WriteToBuffer hands over excelize's own buffer: one copy of the
+	// packed workbook in memory, not two.
+	buf, err := f.WriteToBuffer()
+	if err != nil {
 		return fmt.Errorf("xlsxreport: writing the workbook: %w", err)
 	}
 	if err := canonicalZip(w, buf.Bytes()); err != nil {
