@@ -67,13 +67,11 @@ func stateLevel(y, buf []float64) Level {
 // MADs of the median, and the MAD itself. len(y) > 0.
 func robustMean(y, buf []float64) (mean, mad float64) {
 	b := append(buf[:0], y...)
-	slices.Sort(b)
-	med := sortedMedian(b)
+	med := median(b)
 	for i, v := range y {
 		b[i] = math.Abs(v - med)
 	}
-	slices.Sort(b)
-	mad = sortedMedian(b)
+	mad = median(b)
 	lim := outlierMADs * madScale * mad
 	var sum float64
 	var k int
@@ -89,10 +87,67 @@ func robustMean(y, buf []float64) (mean, mad float64) {
 	return med + sum/float64(k), mad
 }
 
-func sortedMedian(b []float64) float64 {
+// median returns the median of b (the mean of the two middle values for an
+// even count), reordering b. It selects rather than sorts: linear time on
+// average, the same value a sort would give.
+func median(b []float64) float64 {
 	n := len(b)
+	k := n / 2
+	v := nth(b, k)
 	if n%2 == 1 {
-		return b[n/2]
+		return v
 	}
-	return (b[n/2-1] + b[n/2]) / 2
+	m := b[0] // b[:k] holds the k smallest values; the largest is the other middle
+	for _, x := range b[1:k] {
+		m = math.Max(m, x)
+	}
+	return (m + v) / 2
+}
+
+// nth reorders b so that b[k] is the value a sort would put there, with no
+// larger value before it and no smaller after it, and returns b[k]
+// (quickselect with a median-of-three pivot; after 64 rounds it sorts what
+// is left, so the worst case stays O(n log n)). b holds no NaN.
+func nth(b []float64, k int) float64 {
+	lo, hi := 0, len(b)-1
+	for round := 0; lo < hi; round++ {
+		if round == 64 {
+			slices.Sort(b[lo : hi+1])
+			break
+		}
+		mid := lo + (hi-lo)/2
+		if b[mid] < b[lo] {
+			b[mid], b[lo] = b[lo], b[mid]
+		}
+		if b[hi] < b[lo] {
+			b[hi], b[lo] = b[lo], b[hi]
+		}
+		if b[hi] < b[mid] {
+			b[hi], b[mid] = b[mid], b[hi]
+		}
+		pivot := b[mid]
+		i, j := lo, hi
+		for i <= j {
+			for b[i] < pivot {
+				i++
+			}
+			for b[j] > pivot {
+				j--
+			}
+			if i <= j {
+				b[i], b[j] = b[j], b[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return b[k]
+		}
+	}
+	return b[k]
 }

@@ -3,7 +3,6 @@ package metrics
 import (
 	"fmt"
 	"math"
-	"slices"
 	"strconv"
 	"sync"
 )
@@ -189,11 +188,14 @@ func timeGap(time []float64, s Step, buf *[]float64) string {
 	if n < 2 {
 		return ""
 	}
-	d := scratch(buf, n)
+	// The intervals are finite and positive (the trace is validated), so
+	// plain comparisons do; the median is needed only when some interval is
+	// ten times the shortest.
 	shortest := math.Inf(1)
-	for i := range d {
-		d[i] = time[lo+i+1] - time[lo+i]
-		shortest = math.Min(shortest, d[i])
+	for i := lo; i < s.End-1; i++ {
+		if g := time[i+1] - time[i]; g < shortest {
+			shortest = g
+		}
 	}
 	worst, at := 0.0, -1
 	for i := max(s.Start, lo+1); i < s.End; i++ {
@@ -205,8 +207,11 @@ func timeGap(time []float64, s Step, buf *[]float64) string {
 	if at < 0 || worst <= maxGapPeriods*shortest {
 		return ""
 	}
-	slices.Sort(d)
-	med := sortedMedian(d)
+	d := scratch(buf, n)
+	for i := range d {
+		d[i] = time[lo+i+1] - time[lo+i]
+	}
+	med := median(d)
 	if !(med > 0) || worst <= maxGapPeriods*med {
 		return ""
 	}
