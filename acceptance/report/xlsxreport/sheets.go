@@ -230,29 +230,10 @@ func CheckRows(b *acceptance.Batch) int {
 func checks(f *excelize.File, st *styles, d *digest.Digest) error {
 	const sh = SheetChecks
 	b := d.Batch
-	if _, err := f.NewSheet(sh); err != nil {
-		return err
-	}
 	header := []string{"unit", "file", "step", "metric", "value", "unit of value", "min", "max", "verdict", "reason", "unit verdict"}
-	rows := CheckRows(b)
-	if rows+1 > maxRows {
-		return fmt.Errorf("%d checks exceed the %d rows a worksheet holds; split the batch", rows, maxRows-1)
-	}
-	last := max(rows+1, 2)
-	if err := f.AutoFilter(sh, "A1:"+cellRef(len(header), last), nil); err != nil {
-		return err
-	}
-	if err := verdictColours(f, sh, fmt.Sprintf("I2:I%d", last), st); err != nil {
-		return err
-	}
-	if err := verdictColours(f, sh, fmt.Sprintf("K2:K%d", last), st); err != nil {
-		return err
-	}
-	sw, err := f.NewStreamWriter(sh)
+	sw, err := openTable(f, st, sh, header, CheckRows(b), "checks", []string{"I", "K"},
+		map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12})
 	if err != nil {
-		return err
-	}
-	if err := streamHead(sw, st, header, map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12}); err != nil {
 		return err
 	}
 	row := 2
@@ -308,27 +289,11 @@ func GapRows(b *acceptance.Batch, limited []string) int {
 func gaps(f *excelize.File, st *styles, d *digest.Digest) error {
 	const sh = SheetGaps
 	b := d.Batch
-	if _, err := f.NewSheet(sh); err != nil {
-		return err
-	}
 	header := []string{"unit", "file", "step", withUnit("from", d.ResponseUnit), withUnit("to", d.ResponseUnit), "metric", "unit of value",
 		"measured", "predicted", "gap (measured − predicted)", "gap (% of predicted)", "prediction", "check", "note"}
-	rows := GapRows(b, d.Limited)
-	if rows+1 > maxRows {
-		return fmt.Errorf("%d step metrics exceed the %d rows a worksheet holds; split the batch", rows, maxRows-1)
-	}
-	last := max(rows+1, 2)
-	if err := f.AutoFilter(sh, "A1:"+cellRef(len(header), last), nil); err != nil {
-		return err
-	}
-	if err := verdictColours(f, sh, fmt.Sprintf("M2:M%d", last), st); err != nil {
-		return err
-	}
-	sw, err := f.NewStreamWriter(sh)
+	sw, err := openTable(f, st, sh, header, GapRows(b, d.Limited), "step metrics", []string{"M"},
+		map[int]float64{1: 16, 2: 24, 3: 6, 6: 22, 8: 12, 9: 12, 10: 14, 11: 14, 12: 11, 13: 10, 14: 50})
 	if err != nil {
-		return err
-	}
-	if err := streamHead(sw, st, header, map[int]float64{1: 16, 2: 24, 3: 6, 6: 22, 8: 12, 9: 12, 10: 14, 11: 14, 12: 11, 13: 10, 14: 50}); err != nil {
 		return err
 	}
 	row := 2
@@ -388,4 +353,33 @@ func orWhy(a, b string) string {
 		return b
 	}
 	return "no reason recorded"
+}
+
+// openTable starts a streamed table sheet: the sheet, an autofilter over
+// the header and rows data rows, verdict colours on the given columns, and
+// the header row with the column widths.
+func openTable(f *excelize.File, st *styles, sh string, header []string, rows int, what string, verdictCols []string, widths map[int]float64) (*excelize.StreamWriter, error) {
+	if _, err := f.NewSheet(sh); err != nil {
+		return nil, err
+	}
+	if rows+1 > maxRows {
+		return nil, fmt.Errorf("%d %s exceed the %d rows a worksheet holds; split the batch", rows, what, maxRows-1)
+	}
+	last := max(rows+1, 2)
+	if err := f.AutoFilter(sh, "A1:"+cellRef(len(header), last), nil); err != nil {
+		return nil, err
+	}
+	for _, col := range verdictCols {
+		if err := verdictColours(f, sh, fmt.Sprintf("%s2:%s%d", col, col, last), st); err != nil {
+			return nil, err
+		}
+	}
+	sw, err := f.NewStreamWriter(sh)
+	if err != nil {
+		return nil, err
+	}
+	if err := streamHead(sw, st, header, widths); err != nil {
+		return nil, err
+	}
+	return sw, nil
 }
