@@ -2,8 +2,11 @@ package acceptance
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -128,6 +131,7 @@ feed:
 	if b.Limits == nil {
 		b.Limits = map[string]Limit{}
 	}
+	b.Notice = Notice
 	b.TestDates = testDates(results)
 	b.ReportDate = o.ReportDate
 	if b.ReportDate == "" {
@@ -177,6 +181,10 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	if err != nil {
 		u.Verdict = Invalid
 		u.Reasons = []string{"log cannot be read: " + readReason(err)}
+		if u.SHA256 == "" {
+			// The digest identifies the file even when it cannot be parsed.
+			u.SHA256 = fileDigest(path)
+		}
 		var n int64
 		if lg != nil {
 			n = lg.Size
@@ -277,6 +285,28 @@ func readReason(err error) string {
 	}
 	b.WriteString(pe.Err.Error())
 	return b.String()
+}
+
+// Notice is the statement every results.json carries.
+const Notice = "Verdicts state whether measured step responses met the spec's limits; they are no safety certification of the machine, the rig or the procedure. Follow the safety cautions in report.pdf, report.xlsx and the README, local codes, the applicable machinery-safety standards and competent, licensed practice."
+
+// fileDigest returns the hex SHA-256 of a file's bytes, or "" when the file
+// cannot be opened as a regular file or is larger than a log may be.
+func fileDigest(path string) string {
+	st, err := os.Stat(path)
+	if err != nil || !st.Mode().IsRegular() || st.Size() > rigdata.DefaultMaxBytes {
+		return ""
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return ""
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return ""
+	}
+	return hex.EncodeToString(h.Sum(nil))
 }
 
 // copyTrace returns a trace that owns its samples.

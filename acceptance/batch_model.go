@@ -27,6 +27,8 @@ type Batch struct {
 	Limits map[string]Limit `json:"limits"`
 	// ReportDate is the date the reports carry (RFC 3339 date).
 	ReportDate string `json:"report_date"`
+	// Notice says what the batch's verdicts are and are not.
+	Notice string `json:"notice"`
 	// TestDates spans the logs' started_at metadata; empty when no log
 	// carries one.
 	TestDates DateRange `json:"test_dates"`

@@ -92,6 +92,8 @@ func units(f *excelize.File, st *styles, d *digest.Digest) error {
 	for _, k := range cols.meta {
 		header = append(header, "log: "+Text(k))
 	}
+	header = append(header, "file SHA-256")
+	shaCol := len(header) - 1
 
 	rows := unitRows(b)
 	unitW, fileW, reasonW := 8, 8, 12
@@ -179,6 +181,9 @@ func units(f *excelize.File, st *styles, d *digest.Digest) error {
 				if v, ok := u.Metadata[key]; ok {
 					vals[reasonCol+1+j] = Text(v)
 				}
+			}
+			if u.SHA256 != "" {
+				vals[shaCol] = u.SHA256
 			}
 			if err := sw.SetRow(cellRef(1, row), vals); err != nil {
 				return fmt.Errorf("row %d (unit %q): %w", row, u.Unit, err)

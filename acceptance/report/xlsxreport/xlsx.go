@@ -77,6 +77,7 @@ func WriteDigest(w io.Writer, d *digest.Digest) error {
 		{SheetGaps, func() error { return gaps(f, st, d) }},
 		{SheetLimits, func() error { return limits(f, st, d) }},
 		{SheetModel, func() error { return modelSheet(f, st, d) }},
+		{SheetSafety, func() error { return safety(f, st, d) }},
 		{SheetSummary + " chart", func() error { return scatter(f, d) }},
 	}
 	for _, s := range sheets {

@@ -171,7 +171,7 @@ func ref(c, r int) string { s, _ := excelize.CoordinatesToCellName(c, r); return
 
 func TestWorkbookLayout(t *testing.T) {
 	f := open(t, writeBook(t, testBatch()))
-	if got, want := strings.Join(f.GetSheetList(), ","), "Summary,Units,Checks,Gaps,Limits,Model"; got != want {
+	if got, want := strings.Join(f.GetSheetList(), ","), "Summary,Units,Checks,Gaps,Limits,Model,Safety"; got != want {
 		t.Errorf("sheets %s, want %s", got, want)
 	}
 	rows, err := f.GetRows(SheetUnits)
@@ -183,7 +183,7 @@ func TestWorkbookLayout(t *testing.T) {
 		"step_size (mm)|initial_value (mm)|final_value (mm)|dead_time_s (s)|rise_time_s (s)|peak_value (mm)|peak_time_s (s)|" +
 		"overshoot_pct (%)|settling_time_s (s)|steady_state_error (mm)|steady_state_error_pct (%)|" +
 		"predicted final_value (mm)|gap final_value (mm)|predicted overshoot_pct (%)|gap overshoot_pct (%)|" +
-		"predicted settling_time_s (s)|gap settling_time_s (s)|step reason|unit reason|log: operator|log: rig"
+		"predicted settling_time_s (s)|gap settling_time_s (s)|step reason|unit reason|log: operator|log: rig|file SHA-256"
 	if header != want {
 		t.Errorf("Units header\n got %s\nwant %s", header, want)
 	}
@@ -387,7 +387,7 @@ func TestEmptyBatch(t *testing.T) {
 	b := testBatch()
 	b.Units, b.Summary, b.Model = nil, acceptance.Summary{}, nil
 	f := open(t, writeBook(t, b))
-	if got := strings.Join(f.GetSheetList(), ","); got != "Summary,Units,Checks,Limits" {
+	if got := strings.Join(f.GetSheetList(), ","); got != "Summary,Units,Checks,Limits,Safety" {
 		t.Errorf("sheets %s", got)
 	}
 	rows, _ := f.GetRows(SheetSummary)
@@ -674,5 +674,27 @@ func TestChart(t *testing.T) {
 	}
 	if got := strings.Join(names, "|"); got != "chart series|unit steps|settling-time limit 1.6 s|settling-time limit 1.6 s|overshoot limit 15 %|overshoot limit 15 %" {
 		t.Errorf("chart series names %s", got)
+	}
+}
+
+// The workbook carries the safety cautions like every report, and each
+// unit row its file's SHA-256, which the Summary's statement refers to.
+func TestWorkbookSafetyAndDigests(t *testing.T) {
+	b := testBatch()
+	f := open(t, writeBook(t, b))
+	rows := rowsOf(t, f, SheetSafety)
+	text := ""
+	for _, r := range rows {
+		text += strings.Join(r, " ") + "\n"
+	}
+	for _, want := range []string{"ISO 12100", "IEC 60204-1", "no safety certification", "competent, licensed practice"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("Safety sheet lacks %q", want)
+		}
+	}
+	col := colOf(t, f, "file SHA-256")
+	got, _ := f.GetCellValue(SheetUnits, ref(col, 2))
+	if got != b.Units[0].SHA256 {
+		t.Errorf("Units file SHA-256 = %q, want %q", got, b.Units[0].SHA256)
 	}
 }
