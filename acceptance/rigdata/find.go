@@ -48,6 +48,14 @@ func IsLogName(name string) bool {
 // leaving it out silently. An exclude path that does not exist excludes
 // nothing. No paths, or directories without logs, give an empty result.
 func FindLogs(paths []string, exclude []string) ([]string, error) {
+	files, _, err := FindLogsAndOthers(paths, exclude)
+	return files, err
+}
+
+// FindLogsAndOthers is FindLogs that also returns, sorted, the other files
+// the directory search met and left out because their names do not have a
+// log extension, so that a caller can say so.
+func FindLogsAndOthers(paths []string, exclude []string) (logs, others []string, err error) {
 	fl := finder{visited: map[string]bool{}}
 	for _, x := range exclude {
 		real, err := realPath(x)
@@ -59,18 +67,18 @@ func FindLogs(paths []string, exclude []string) ([]string, error) {
 			}
 		}
 		if err != nil {
-			return nil, fmt.Errorf("find logs: exclude path: %w", err)
+			return nil, nil, fmt.Errorf("find logs: exclude path: %w", err)
 		}
 		fl.exclude = append(fl.exclude, real)
 	}
 	for _, p := range paths {
 		st, err := os.Stat(p)
 		if err != nil {
-			return nil, fmt.Errorf("find logs: %w", err)
+			return nil, nil, fmt.Errorf("find logs: %w", err)
 		}
 		real, err := realPath(p)
 		if err != nil {
-			return nil, fmt.Errorf("find logs: %w", err)
+			return nil, nil, fmt.Errorf("find logs: %w", err)
 		}
 		switch {
 		case st.IsDir():
@@ -81,12 +89,12 @@ func FindLogs(paths []string, exclude []string) ([]string, error) {
 				}
 			}
 			if err := fl.walk(filepath.Clean(p), real); err != nil {
-				return nil, err
+				return nil, nil, err
 			}
 		case st.Mode().IsRegular():
 			fl.found = append(fl.found, foundLog{filepath.Clean(p), real})
 		default:
-			return nil, fmt.Errorf("find logs: %s: not a regular file or directory (%s)", p, st.Mode().Type())
+			return nil, nil, fmt.Errorf("find logs: %s: not a regular file or directory (%s)", p, st.Mode().Type())
 		}
 	}
 	out := make([]string, 0, len(fl.found))
@@ -98,7 +106,8 @@ func FindLogs(paths []string, exclude []string) ([]string, error) {
 		}
 	}
 	sort.Strings(out)
-	return out, nil
+	sort.Strings(fl.skipped)
+	return out, fl.skipped, nil
 }
 
 type foundLog struct {
@@ -111,6 +120,7 @@ type finder struct {
 	active  []string        // the exclude paths that apply to the current search
 	visited map[string]bool // real paths of directories searched
 	found   []foundLog
+	skipped []string // files met in directories that are not logs by name
 }
 
 func realPath(p string) (string, error) {
@@ -191,6 +201,7 @@ func (fl *finder) walk(dir, real string) error {
 				return err
 			}
 		case !IsLogName(e.Name()):
+			fl.skipped = append(fl.skipped, shown)
 		default:
 			// Regular files, and entries that cannot be logs (named pipes,
 			// sockets, devices), which the reader refuses with the reason.

@@ -170,3 +170,21 @@ func TestFindLogsUnreadableEntries(t *testing.T) {
 		}
 	}
 }
+
+// Files in a searched directory that are not logs by name are returned
+// apart, so that the caller can say they were not judged.
+func TestFindLogsAndOthers(t *testing.T) {
+	dir := t.TempDir()
+	for _, n := range []string{"a.csv", "b.log", "c.TXT", "notes.md"} {
+		if err := os.WriteFile(filepath.Join(dir, n), []byte("x"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	logs, others, err := FindLogsAndOthers([]string{dir}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(logs) != 2 || len(others) != 2 || filepath.Base(others[0]) != "b.log" || filepath.Base(others[1]) != "notes.md" {
+		t.Errorf("logs %v, others %v", logs, others)
+	}
+}

@@ -118,9 +118,15 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	}
 	// The output directory is skipped wherever a search meets it, so that
 	// nothing stepgate or a user left there is read as a log.
-	files, err := rigdata.FindLogs(args, []string{outAbs})
+	files, others, err := rigdata.FindLogsAndOthers(args, []string{outAbs})
 	if err != nil {
 		return usageErr(err)
+	}
+	if len(others) > 0 && !f.quiet {
+		// Files that are not logs by name are not judged; say which, so
+		// that a log saved under another extension is not missed unseen.
+		fmt.Fprintf(stderr, "stepgate: %d file(s) in the searched directories are not judged (not .csv, .tsv or .txt), e.g. %s\n",
+			len(others), oneLine(others[0], 120))
 	}
 	if len(files) == 0 {
 		return usageErr(fmt.Errorf("%s: %w", strings.Join(args, " "), acceptance.ErrNoLogs))
