@@ -171,8 +171,8 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
 		u.SHA256 = lg.SHA256
-		for k, v := range lg.Metadata {
-			u.Metadata[k] = v
+		if lg.Metadata != nil {
+			u.Metadata = lg.Metadata // a new map per file, not one of the reader's buffers
 		}
 		if s := strings.TrimSpace(lg.Metadata["serial"]); s != "" {
 			u.Unit = s
@@ -201,6 +201,7 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 		return u, lg.Size
 	}
 	steps := metrics.FindSteps(tr, spec.Steps.MinChange)
+	u.Steps = make([]StepResult, 0, len(steps))
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
 		sr := spec.JudgeStep(m)
