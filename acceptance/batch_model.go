@@ -1,6 +1,8 @@
 package acceptance
 
 import (
+	"math"
+
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -215,4 +217,21 @@ type Check struct {
 	Max     *float64 `json:"max"`
 	Verdict Verdict  `json:"verdict"`
 	Reason  string   `json:"reason,omitempty"`
+}
+
+// Compared returns the prediction of n the batch compares the line with
+// (realised when m.Realised, else ideal), its simulated record (nil when not
+// kept) and its kind, "realised" or "ideal".
+func (m *ModelSummary) Compared(n *NominalPrediction) (Prediction, *metrics.Trace, string) {
+	if m.Realised {
+		return n.Realised, n.RealisedTrace, "realised"
+	}
+	return n.Ideal, n.IdealTrace, "ideal"
+}
+
+// Matches reports whether a recorded step from → to is the nominal step n:
+// both command levels within 1 % of the nominal step size.
+func (n *NominalPrediction) Matches(from, to float64) bool {
+	tol := 0.01 * math.Abs(n.To-n.From)
+	return math.Abs(from-n.From) <= tol && math.Abs(to-n.To) <= tol
 }

@@ -391,11 +391,9 @@ func predictionSegments(b *acceptance.Batch, o *Overlay) []segment {
 		return nil
 	}
 	var out []segment
-	for _, n := range b.Model.Nominal {
-		tr, kind := n.IdealTrace, "ideal"
-		if b.Model.Realised {
-			tr, kind = n.RealisedTrace, "realised"
-		}
+	for i := range b.Model.Nominal {
+		n := &b.Model.Nominal[i]
+		_, tr, kind := b.Model.Compared(n)
 		if tr == nil || tr.Len() == 0 {
 			continue
 		}

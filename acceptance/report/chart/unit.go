@@ -184,15 +184,12 @@ func shiftedPrediction(b *acceptance.Batch, s *acceptance.StepResult, t0, at, en
 	if b.Model == nil {
 		return nil, nil
 	}
-	tol := 0.01 * math.Abs(s.To-s.From)
-	for _, n := range b.Model.Nominal {
-		if math.Abs(n.From-s.From) > tol || math.Abs(n.To-s.To) > tol {
+	for i := range b.Model.Nominal {
+		n := &b.Model.Nominal[i]
+		if !n.Matches(s.From, s.To) {
 			continue
 		}
-		tr := n.IdealTrace
-		if b.Model.Realised {
-			tr = n.RealisedTrace
-		}
+		_, tr, _ := b.Model.Compared(n)
 		if tr == nil || tr.Len() == 0 {
 			continue
 		}

@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"cmp"
 	"math"
 
 	"github.com/stepgate/stepgate/acceptance"
@@ -42,31 +43,19 @@ func Compare(b *acceptance.Batch) []Comparison {
 		return nil
 	}
 	var out []Comparison
-	for _, n := range b.Model.Nominal {
-		pred, kind := n.Ideal, "ideal"
-		if b.Model.Realised {
-			pred, kind = n.Realised, "realised"
-		}
-		tol := 0.01 * math.Abs(n.To-n.From)
+	for i := range b.Model.Nominal {
+		n := &b.Model.Nominal[i]
+		pred, _, kind := b.Model.Compared(n)
 		for _, m := range LimitedMetrics(b) {
 			c := Comparison{From: n.From, To: n.To, Metric: m, Kind: kind}
-			if v, ok := pred.Metrics.Lookup(m); ok {
-				c.Predicted = v
-				if !v.OK && v.Why == "" {
-					c.Predicted.Why = pred.Metrics.Reason(m)
-				}
-			} else if why := pred.Metrics.Reason(m); why != "" {
-				c.Predicted = metrics.Unknown(why)
-			} else {
-				c.Predicted = metrics.Unknown("the model did not predict this metric")
-			}
-			if !c.Predicted.OK && c.Predicted.Why == "" {
-				c.Predicted.Why = "not predicted"
+			c.Predicted = pred.Metrics.Get(m)
+			if !c.Predicted.OK {
+				c.Predicted = metrics.Unknown(cmp.Or(pred.Metrics.Reason(m), "the model did not predict this metric"))
 			}
 			sum, lo, hi := 0.0, math.Inf(1), math.Inf(-1)
 			for _, u := range b.Units {
 				for _, s := range u.Steps {
-					if math.Abs(s.From-n.From) > tol || math.Abs(s.To-n.To) > tol {
+					if !n.Matches(s.From, s.To) {
 						continue
 					}
 					c.Steps++

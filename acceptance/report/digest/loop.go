@@ -218,10 +218,7 @@ func (l *LoopSummary) modelFit(b *acceptance.Batch) {
 		return
 	}
 	n := b.Model.Nominal[0]
-	tr, kind := n.IdealTrace, "ideal"
-	if b.Model.Realised {
-		tr, kind = n.RealisedTrace, "realised"
-	}
+	_, tr, kind := b.Model.Compared(&n)
 	l.FitKind = kind
 	if tr == nil || tr.Len() == 0 {
 		set("the " + kind + " prediction's record was not kept")
