@@ -202,10 +202,14 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	}
 	steps := metrics.FindSteps(tr, spec.Steps.MinChange)
 	u.Steps = make([]StepResult, 0, len(steps))
+	limit := metrics.Unknown("the log has no effort column")
+	if tr.Effort != nil {
+		limit = effortLimit(tr, spec)
+	}
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
 		sr := spec.JudgeStep(m)
-		sr.Evidence = stepEvidence(tr, m, spec)
+		sr.Evidence = stepEvidence(tr, m, opts, limit)
 		if pred != nil {
 			pred.attach(&sr, m, tr)
 		}

@@ -20,17 +20,17 @@ const (
 // stepEvidence observes, in the record of one step, what the metrics do not
 // say: whether the drive effort sat at its limit during the rise, and how
 // much the response still drifted in the final window. It never judges: the
-// report turns the evidence into worded indications.
-func stepEvidence(tr metrics.Trace, m metrics.StepMetrics, spec *Spec) *StepEvidence {
+// report turns the evidence into worded indications. limit is the record's
+// effort limit (see effortLimit), found once per record.
+func stepEvidence(tr metrics.Trace, m metrics.StepMetrics, o metrics.Options, limit metrics.Value) *StepEvidence {
 	ev := &StepEvidence{}
 	st := m.Step
-	ev.FinalDrift = finalDrift(tr, st, spec.Options().FinalWindow)
+	ev.FinalDrift = finalDrift(tr, st, o.FinalWindow)
 	if tr.Effort == nil {
 		why := "the log has no effort column"
 		ev.EffortLimit, ev.EffortSaturatedPct = metrics.Unknown(why), metrics.Unknown(why)
 		return ev
 	}
-	limit := effortLimit(tr, spec)
 	ev.EffortLimit = limit
 	if !limit.OK {
 		ev.EffortSaturatedPct = metrics.Unknown(limit.Why)
@@ -41,7 +41,6 @@ func stepEvidence(tr metrics.Trace, m metrics.StepMetrics, spec *Spec) *StepEvid
 		return ev
 	}
 	// The rise runs from the step instant to the upper rise-level crossing.
-	o := spec.Options()
 	a, b := m.InitialValue.V, m.FinalValue.V
 	t, y := tr.Time[st.Start:st.End], tr.Response[st.Start:st.End]
 	up := metrics.CrossingTime(t, y, a+o.RiseHigh*(b-a), b > a)

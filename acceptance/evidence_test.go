@@ -43,7 +43,7 @@ func TestStepEvidenceSaturation(t *testing.T) {
 	for _, c := range cases {
 		steps := metrics.FindSteps(tr, 0.5)
 		m := metrics.MeasureStep(tr, steps[0], c.spec.Options())
-		ev := stepEvidence(tr, m, c.spec)
+		ev := stepEvidence(tr, m, c.spec.Options(), effortLimit(tr, c.spec))
 		if ev.EffortSaturatedPct.OK != c.wantOK || math.Abs(ev.EffortSaturatedPct.V-c.want) > 0.5 {
 			t.Errorf("%s: saturated %+v, want %v %%", c.name, ev.EffortSaturatedPct, c.want)
 		}
@@ -53,7 +53,7 @@ func TestStepEvidenceSaturation(t *testing.T) {
 	}
 	tr.Effort = nil
 	steps := metrics.FindSteps(tr, 0.5)
-	ev := stepEvidence(tr, metrics.MeasureStep(tr, steps[0], spec.Options()), spec)
+	ev := stepEvidence(tr, metrics.MeasureStep(tr, steps[0], spec.Options()), spec.Options(), metrics.Unknown("the log has no effort column"))
 	if ev.EffortSaturatedPct.OK || ev.EffortSaturatedPct.Why == "" {
 		t.Errorf("no effort column: got %+v, want unknown with a reason", ev.EffortSaturatedPct)
 	}

@@ -225,8 +225,9 @@ func medianPeriod(tr metrics.Trace, st metrics.Step) float64 {
 	if hi-lo < 2 {
 		return math.NaN()
 	}
-	n := min(hi-lo-1, 201)
-	d := make([]float64, n)
+	var buf [201]float64 // on the stack: this runs for every step
+	n := min(hi-lo-1, len(buf))
+	d := buf[:n]
 	for i := 0; i < n; i++ {
 		d[i] = tr.Time[lo+i+1] - tr.Time[lo+i]
 	}
