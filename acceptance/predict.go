@@ -74,30 +74,38 @@ func (p *predictor) entry(k predKey) *predEntry {
 			if p.realised {
 				if id, ierr := p.sys.Simulate(model.Ideal, k.from, k.to, k.duration, k.dt); ierr == nil {
 					e.idealTr = &id
-					e.ideal = p.measure(id, model.Ideal, k)
+					e.ideal = p.measure(id, model.Ideal)
 				}
 			}
 			return
 		}
 		e.idealTr, e.realTr = &pr.Ideal, &pr.Realised
-		e.ideal = p.measure(pr.Ideal, model.Ideal, k)
-		e.realised = p.measure(pr.Realised, model.Realised, k)
+		e.ideal = p.measure(pr.Ideal, model.Ideal)
+		e.realised = p.measure(pr.Realised, model.Realised)
 	})
 	return e
 }
 
 // measure runs the metrics package over a simulated trace: the very code
 // that measured the logs.
-func (p *predictor) measure(tr metrics.Trace, kind model.Kind, k predKey) Prediction {
-	out := Prediction{Kind: kind.String()}
-	steps := metrics.FindSteps(tr, p.spec.Steps.MinChange)
+func (p *predictor) measure(tr metrics.Trace, kind model.Kind) Prediction {
+	return MeasurePrediction(tr, kind.String(), p.spec.Steps.MinChange, p.opts)
+}
+
+// MeasurePrediction measures the first step of a simulated trace with the
+// metrics package, the code that measures the logs; kind names the
+// prediction ("ideal" or "realised"). Without a step every metric is
+// unknown with the reason.
+func MeasurePrediction(tr metrics.Trace, kind string, minChange float64, o metrics.Options) Prediction {
+	out := Prediction{Kind: kind}
+	steps := metrics.FindSteps(tr, minChange)
 	if len(steps) == 0 {
 		for _, n := range metrics.Names {
 			out.Metrics.Set(n, metrics.Unknown("the simulated command has no step"))
 		}
 		return out
 	}
-	m := metrics.MeasureStep(tr, steps[0], p.opts)
+	m := metrics.MeasureStep(tr, steps[0], o)
 	for _, n := range metrics.Names {
 		v, _ := m.Get(n)
 		out.Metrics.Set(n, v)

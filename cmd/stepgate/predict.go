@@ -26,15 +26,10 @@ type predictOutput struct {
 		SampleS    float64 `json:"sample_period_s"`
 		Realisable bool    `json:"realised_differs"`
 	} `json:"step"`
-	Ideal    predictedMetrics `json:"ideal"`
-	Realised predictedMetrics `json:"realised"`
-	Design   *designOutput    `json:"design,omitempty"`
-	Caution  string           `json:"caution"`
-}
-
-type predictedMetrics struct {
-	Metrics    map[string]metrics.Value `json:"metrics"`
-	Unmeasured map[string]string        `json:"unmeasured,omitempty"`
+	Ideal    acceptance.Prediction `json:"ideal"`
+	Realised acceptance.Prediction `json:"realised"`
+	Design   *designOutput         `json:"design,omitempty"`
+	Caution  string                `json:"caution"`
 }
 
 type designOutput struct {
@@ -111,8 +106,8 @@ for the ideal and, when the spec has a loop section, the realised loop.
 			if d := to - from; minChange > abs(d) {
 				minChange = abs(d) / 2
 			}
-			out.Ideal = measurePrediction(pr.Ideal, minChange, opts)
-			out.Realised = measurePrediction(pr.Realised, minChange, opts)
+			out.Ideal = acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, opts)
+			out.Realised = acceptance.MeasurePrediction(pr.Realised, "realised", minChange, opts)
 			if fl.Changed("for-damping") || fl.Changed("for-overshoot") {
 				d := &designOutput{}
 				var target model.Target
@@ -169,30 +164,13 @@ func abs(x float64) float64 {
 	return x
 }
 
-// measurePrediction measures a simulated trace with the metrics package.
-func measurePrediction(tr metrics.Trace, minChange float64, o metrics.Options) predictedMetrics {
-	p := predictedMetrics{Metrics: map[string]metrics.Value{}, Unmeasured: map[string]string{}}
-	ms := metrics.Measure(tr, minChange, o)
-	for _, n := range metrics.Names {
-		v := metrics.Unknown("the simulated command has no step")
-		if len(ms) > 0 {
-			v, _ = ms[0].Get(n)
-		}
-		p.Metrics[string(n)] = v
-		if !v.OK {
-			p.Unmeasured[string(n)] = v.Why
-		}
-	}
-	return p
-}
-
 func printPrediction(w io.Writer, spec *acceptance.Spec, out predictOutput) {
 	c := out.Controller
 	fmt.Fprintf(w, "%s rev %s model\n  plant: %s\n  controller: kp %g, ki %g, kd %g\n", spec.SpecID, spec.Revision, out.Plant, c.Kp, c.Ki, c.Kd)
 	fmt.Fprintf(w, "  step %g → %g, %.4g s after the step, sampled every %g s\n\n", out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS)
 	fmt.Fprintf(w, "%-24s %14s %14s\n", "metric", "ideal", "realised")
 	for _, n := range metrics.Names {
-		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.Metrics[string(n)]), fmtValue(out.Realised.Metrics[string(n)]))
+		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.Metrics.Get(string(n))), fmtValue(out.Realised.Metrics.Get(string(n))))
 	}
 	if !out.Step.Realisable {
 		fmt.Fprintln(w, "(the spec has no loop or actuator section: the realised loop equals the ideal one)")
