@@ -225,7 +225,7 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 		u.Fit = pred.fit(tr, steps[0])
 	}
 	if policy == KeepAllTraces {
-		t := copyTrace(tr)
+		t := tr.Clone()
 		u.Trace = &t
 	}
 	return u, lg.Size
@@ -312,17 +312,6 @@ func fileDigest(path string) string {
 		return ""
 	}
 	return hex.EncodeToString(h.Sum(nil))
-}
-
-// copyTrace returns a trace that owns its samples.
-func copyTrace(tr metrics.Trace) metrics.Trace {
-	c := func(v []float64) []float64 {
-		if v == nil {
-			return nil
-		}
-		return append([]float64(nil), v...)
-	}
-	return metrics.Trace{Time: c(tr.Time), Command: c(tr.Command), Response: c(tr.Response), Effort: c(tr.Effort)}
 }
 
 // unitFromPath is the file name without its extension.

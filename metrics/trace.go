@@ -28,3 +28,15 @@ type Step struct {
 
 // Size is the command change To − From (negative for a down-step).
 func (s Step) Size() float64 { return s.To - s.From }
+
+// Clone returns a trace that owns copies of t's samples (nil slices stay
+// nil).
+func (t Trace) Clone() Trace {
+	c := func(v []float64) []float64 {
+		if v == nil {
+			return nil
+		}
+		return append([]float64(nil), v...)
+	}
+	return Trace{Time: c(t.Time), Command: c(t.Command), Response: c(t.Response), Effort: c(t.Effort)}
+}

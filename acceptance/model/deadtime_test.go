@@ -104,7 +104,7 @@ func TestIdealDeadTimeMargin(t *testing.T) {
 // follow k samples later. The samples shifted in from before the step are
 // the rest values tr holds at negative times (k must not exceed them).
 func delayTrace(tr metrics.Trace, k int) metrics.Trace {
-	d := copyTrace(tr)
+	d := tr.Clone()
 	for i := k; i < len(tr.Time); i++ {
 		d.Response[i] = tr.Response[i-k]
 		d.Effort[i] = tr.Effort[i-k]

@@ -151,11 +151,11 @@ func TestIdentifyRecoversKnownLoop(t *testing.T) {
 
 func TestIdentifyRefuses(t *testing.T) {
 	good, st := synthLog(3, 1e-3, 0.2, 1.0, 0, 10, 1, 0.45, 22, 0.004, 0.01, 0.01)
-	flat := copyTrace(good)
+	flat := good.Clone()
 	for i := range flat.Response {
 		flat.Response[i] = 0.01 * math.Round(0.003*math.Sin(float64(i))/0.01)
 	}
-	ramp := copyTrace(good)
+	ramp := good.Clone()
 	for i, tm := range ramp.Time {
 		ramp.Response[i] = math.Max(0, 10*tm)
 	}
@@ -164,9 +164,9 @@ func TestIdentifyRefuses(t *testing.T) {
 	// periods, so its halves agree, yet the envelope e^(−σt) is still 22 %
 	// at 0.8 s.
 	ringing, rst := synthLog(3, 1e-3, 0.2, 1.0, 0, 10, 1, 0.03, 20*math.Pi/math.Sqrt(1-0.03*0.03), 0.004, 0.01, 0.01)
-	backwards := copyTrace(good)
+	backwards := good.Clone()
 	backwards.Time[st.Start+40] = backwards.Time[st.Start+39]
-	wobble := copyTrace(good)
+	wobble := good.Clone()
 	for i, tm := range wobble.Time {
 		if tm >= 0 {
 			wobble.Response[i] += 3 * math.Sin(2*math.Pi*50*tm)

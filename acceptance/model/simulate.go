@@ -124,23 +124,13 @@ func (s *System) Predict(from, to, duration, dt float64) (Prediction, error) {
 	}
 	p := Prediction{Ideal: id, RealisedDiffers: s.Realised()}
 	if !p.RealisedDiffers {
-		p.Realised = copyTrace(id)
+		p.Realised = id.Clone()
 		return p, nil
 	}
 	if p.Realised, err = s.Simulate(Realised, from, to, duration, dt); err != nil {
 		return Prediction{}, err
 	}
 	return p, nil
-}
-
-func copyTrace(t metrics.Trace) metrics.Trace {
-	c := func(v []float64) []float64 {
-		if v == nil {
-			return nil
-		}
-		return append([]float64(nil), v...)
-	}
-	return metrics.Trace{Time: c(t.Time), Command: c(t.Command), Response: c(t.Response), Effort: c(t.Effort)}
 }
 
 // stepScale is the magnitude a response is compared with to detect
