@@ -62,26 +62,34 @@ func (p *predictor) entry(k predKey) *predEntry {
 	}
 	p.mu.Unlock()
 	e.once.Do(func() {
-		pr, err := p.sys.Predict(k.from, k.to, k.duration, k.dt)
-		if err != nil {
+		fail := func(err error) {
 			e.err = err
 			e.failed = Prediction{Kind: p.kind().String()}
 			for _, n := range metrics.Names {
 				e.failed.Metrics.Set(n, metrics.Unknown(err.Error()))
 			}
-			// When only the realised loop fails, the ideal prediction still
-			// stands and is reported beside the failure.
-			if p.realised {
-				if id, ierr := p.sys.Simulate(model.Ideal, k.from, k.to, k.duration, k.dt); ierr == nil {
-					e.idealTr = &id
-					e.ideal = p.measure(id, model.Ideal)
-				}
-			}
+		}
+		id, err := p.sys.Simulate(model.Ideal, k.from, k.to, k.duration, k.dt)
+		if err != nil {
+			fail(err)
 			return
 		}
-		e.idealTr, e.realTr = &pr.Ideal, &pr.Realised
-		e.ideal = p.measure(pr.Ideal, model.Ideal)
-		e.realised = p.measure(pr.Realised, model.Realised)
+		e.idealTr, e.ideal = &id, p.measure(id, model.Ideal)
+		if !p.realised {
+			// Without a loop or actuator section the realised loop is the
+			// ideal one: the same record and metrics.
+			e.realTr, e.realised = e.idealTr, e.ideal
+			e.realised.Kind = model.Realised.String()
+			return
+		}
+		re, err := p.sys.Simulate(model.Realised, k.from, k.to, k.duration, k.dt)
+		if err != nil {
+			// The realised loop alone failed: the ideal prediction still
+			// stands and is reported beside the failure.
+			fail(err)
+			return
+		}
+		e.realTr, e.realised = &re, p.measure(re, model.Realised)
 	})
 	return e
 }
