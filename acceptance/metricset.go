@@ -41,6 +41,9 @@ func (m *MetricSet) Get(name string) metrics.Value {
 	return v
 }
 
+// At returns the value of metric i of metrics.Names.
+func (m *MetricSet) At(i int) metrics.Value { return m.v[i] }
+
 // Reason returns why the named metric is unknown ("" when it is known or not
 // a metric).
 func (m *MetricSet) Reason(name string) string {
@@ -166,6 +169,15 @@ func (g *GapSet) Get(name string) *float64 {
 	}
 	v := g.v[i]
 	return &v
+}
+
+// At returns the gap of metric i of metrics.Names; ok is false where it is
+// unknown. A nil set has no gaps.
+func (g *GapSet) At(i int) (gap float64, ok bool) {
+	if g == nil || g.known&(1<<i) == 0 {
+		return 0, false
+	}
+	return g.v[i], true
 }
 
 // set stores the gap of metric i.

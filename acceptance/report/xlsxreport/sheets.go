@@ -73,7 +73,7 @@ func unitRows(b *acceptance.Batch) int {
 	return rows
 }
 
-func units(f *excelize.File, st *styles, d *digest.Digest) error {
+func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sheetBody) error {
 	const sh = SheetUnits
 	b := d.Batch
 	if _, err := f.NewSheet(sh); err != nil {
@@ -93,7 +93,7 @@ func units(f *excelize.File, st *styles, d *digest.Digest) error {
 		header = append(header, "log: "+Text(k))
 	}
 	header = append(header, "file SHA-256")
-	shaCol := len(header) - 1
+	shaCol := len(header)
 
 	rows := unitRows(b)
 	unitW, fileW, reasonW := 8, 8, 12
@@ -125,73 +125,89 @@ func units(f *excelize.File, st *styles, d *digest.Digest) error {
 	for i := unitsFirstValue; i <= len(header); i++ {
 		w[i] = clampW(utf8.RuneCountInString(header[i-1]))
 	}
+	// 1-based column of the step reason; the unit reason follows it.
 	reasonCol := unitsFirstValue + len(cols.metrics) + 2*len(cols.predicted)
 	w[reasonCol], w[reasonCol+1] = clampW(reasonW), clampW(reasonW)
 	if err := streamHead(sw, st, header, w); err != nil {
 		return err
 	}
-	row := 2
-	vals := make([]interface{}, len(header))
-	for i := range b.Units {
-		u := &b.Units[i]
-		unitReason := ""
-		if len(u.Reasons) > 0 {
-			unitReason = u.Reasons[0]
-		}
-		steps := u.Steps
-		if len(steps) == 0 {
-			steps = []acceptance.StepResult{{}}
-		}
-		for k := range steps {
-			s := &steps[k]
-			for j := range vals {
-				vals[j] = nil
-			}
-			vals[0], vals[1] = Text(u.Unit), Text(u.File)
-			vals[7] = string(u.Verdict)
-			if len(u.Steps) > 0 {
-				vals[2], vals[3], vals[4], vals[5] = s.Index, s.StartS, s.From, s.To
-				vals[6] = string(s.Verdict)
-				c := unitsFirstValue - 1
-				for _, m := range cols.metrics {
-					if v, ok := s.Metrics.Lookup(m); ok {
-						vals[c] = known(v)
-					}
-					c++
-				}
-				for _, m := range cols.predicted {
-					if s.Predicted != nil {
-						if v, ok := s.Predicted.Metrics.Lookup(m); ok {
-							vals[c] = known(v)
-						}
-					}
-					if g := s.Gap.Get(m); g != nil {
-						vals[c+1] = *g
-					}
-					c += 2
-				}
-				if len(s.Reasons) > 0 {
-					vals[reasonCol-1] = Text(s.Reasons[0])
-				}
-			}
-			if unitReason != "" {
-				vals[reasonCol] = Text(unitReason)
-			}
-			for j, key := range cols.meta {
-				if v, ok := u.Metadata[key]; ok {
-					vals[reasonCol+1+j] = Text(v)
-				}
-			}
-			if u.SHA256 != "" {
-				vals[shaCol] = u.SHA256
-			}
-			if err := sw.SetRow(cellRef(1, row), vals); err != nil {
-				return fmt.Errorf("row %d (unit %q): %w", row, u.Unit, err)
-			}
-			row++
-		}
+	if err := sw.Flush(); err != nil {
+		return err
 	}
-	return sw.Flush()
+	metricIdx := make([]int, len(cols.metrics))
+	for i, m := range cols.metrics {
+		metricIdx[i] = metricIndex(m)
+	}
+	predIdx := make([]int, len(cols.predicted))
+	for i, m := range cols.predicted {
+		predIdx[i] = metricIndex(m)
+	}
+	bodies[sh] = &sheetBody{rows: rows, cols: len(header), write: func(rw *rowWriter) error {
+		for i := range b.Units {
+			u := &b.Units[i]
+			unitReason := ""
+			if len(u.Reasons) > 0 {
+				unitReason = Text(u.Reasons[0])
+			}
+			unitText, fileText := Text(u.Unit), Text(u.File)
+			meta := make([]string, len(cols.meta))
+			for j, key := range cols.meta {
+				meta[j] = Text(u.Metadata[key])
+			}
+			n := max(len(u.Steps), 1)
+			for k := 0; k < n; k++ {
+				rw.start()
+				rw.str(1, unitText)
+				rw.str(2, fileText)
+				if len(u.Steps) > 0 {
+					s := &u.Steps[k]
+					rw.int(3, s.Index)
+					rw.num(4, s.StartS)
+					rw.num(5, s.From)
+					rw.num(6, s.To)
+					rw.str(7, string(s.Verdict))
+					rw.str(8, string(u.Verdict))
+					c := unitsFirstValue
+					for _, mi := range metricIdx {
+						if mi >= 0 {
+							if v := s.Metrics.At(mi); v.OK {
+								rw.num(c, v.V)
+							}
+						}
+						c++
+					}
+					for _, mi := range predIdx {
+						if mi >= 0 {
+							if s.Predicted != nil {
+								if v := s.Predicted.Metrics.At(mi); v.OK {
+									rw.num(c, v.V)
+								}
+							}
+							if g, ok := s.Gap.At(mi); ok {
+								rw.num(c+1, g)
+							}
+						}
+						c += 2
+					}
+					if len(s.Reasons) > 0 {
+						rw.str(reasonCol, Text(s.Reasons[0]))
+					}
+				} else {
+					rw.str(8, string(u.Verdict))
+				}
+				rw.str(reasonCol+1, unitReason)
+				for j := range meta {
+					rw.str(reasonCol+2+j, meta[j])
+				}
+				rw.str(shaCol, u.SHA256)
+				if err := rw.end(); err != nil {
+					return fmt.Errorf("row %d (unit %q): %w", rw.row, u.Unit, err)
+				}
+			}
+		}
+		return nil
+	}}
+	return nil
 }
 
 // streamHead sets a streamed sheet's column widths, frozen header row and
@@ -232,46 +248,49 @@ func CheckRows(b *acceptance.Batch) int {
 }
 
 // checks writes one row per limit check.
-func checks(f *excelize.File, st *styles, d *digest.Digest) error {
+func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sheetBody) error {
 	const sh = SheetChecks
 	b := d.Batch
 	header := []string{"unit", "file", "step", "metric", "value", "unit of value", "min", "max", "verdict", "reason", "unit verdict"}
-	sw, err := openTable(f, st, sh, header, CheckRows(b), "checks", []string{"I", "K"},
-		map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12})
-	if err != nil {
+	rows := CheckRows(b)
+	if err := openTable(f, st, sh, header, rows, "checks", []string{"I", "K"},
+		map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12}); err != nil {
 		return err
 	}
-	row := 2
-	vals := make([]interface{}, len(header))
-	for i := range b.Units {
-		u := &b.Units[i]
-		for k := range u.Steps {
-			s := &u.Steps[k]
-			for _, c := range s.Checks {
-				for j := range vals {
-					vals[j] = nil
+	units := map[string]string{}
+	bodies[sh] = &sheetBody{rows: rows, cols: len(header), write: func(rw *rowWriter) error {
+		for i := range b.Units {
+			u := &b.Units[i]
+			unitText, fileText := Text(u.Unit), Text(u.File)
+			for k := range u.Steps {
+				s := &u.Steps[k]
+				for _, c := range s.Checks {
+					rw.start()
+					rw.str(1, unitText)
+					rw.str(2, fileText)
+					rw.int(3, s.Index)
+					rw.str(4, Text(c.Metric))
+					rw.numPtr(5, c.Value)
+					mu, ok := units[c.Metric]
+					if !ok {
+						mu = Text(digest.MetricUnit(c.Metric, d.ResponseUnit))
+						units[c.Metric] = mu
+					}
+					rw.str(6, mu)
+					rw.numPtr(7, c.Min)
+					rw.numPtr(8, c.Max)
+					rw.str(9, string(c.Verdict))
+					rw.str(10, Text(c.Reason))
+					rw.str(11, string(u.Verdict))
+					if err := rw.end(); err != nil {
+						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.row, u.Unit, s.Index, c.Metric, err)
+					}
 				}
-				vals[0], vals[1], vals[2], vals[3] = Text(u.Unit), Text(u.File), s.Index, Text(c.Metric)
-				if c.Value != nil {
-					vals[4] = *c.Value
-				}
-				if mu := digest.MetricUnit(c.Metric, d.ResponseUnit); mu != "" {
-					vals[5] = Text(mu)
-				}
-				vals[6], vals[7] = bound(c.Min), bound(c.Max)
-				vals[8] = string(c.Verdict)
-				if c.Reason != "" {
-					vals[9] = Text(c.Reason)
-				}
-				vals[10] = string(u.Verdict)
-				if err := sw.SetRow(cellRef(1, row), vals); err != nil {
-					return fmt.Errorf("row %d (unit %q, step %d, %s): %w", row, u.Unit, s.Index, c.Metric, err)
-				}
-				row++
 			}
 		}
-	}
-	return sw.Flush()
+		return nil
+	}}
+	return nil
 }
 
 // GapRows counts the rows of the Gaps sheet: one per limited metric of
@@ -291,63 +310,82 @@ func GapRows(b *acceptance.Batch, limited []string) int {
 // gaps writes, for every step with a prediction and every limited metric,
 // the measured and predicted value and their gap: a long table a test
 // engineer filters by metric and sorts by gap.
-func gaps(f *excelize.File, st *styles, d *digest.Digest) error {
+func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sheetBody) error {
 	const sh = SheetGaps
 	b := d.Batch
 	header := []string{"unit", "file", "step", withUnit("from", d.ResponseUnit), withUnit("to", d.ResponseUnit), "metric", "unit of value",
 		"measured", "predicted", "gap (measured − predicted)", "gap (% of predicted)", "prediction", "check", "note"}
-	sw, err := openTable(f, st, sh, header, GapRows(b, d.Limited), "step metrics", []string{"M"},
-		map[int]float64{1: 16, 2: 24, 3: 6, 6: 22, 8: 12, 9: 12, 10: 14, 11: 14, 12: 11, 13: 10, 14: 50})
-	if err != nil {
+	rows := GapRows(b, d.Limited)
+	if err := openTable(f, st, sh, header, rows, "step metrics", []string{"M"},
+		map[int]float64{1: 16, 2: 24, 3: 6, 6: 22, 8: 12, 9: 12, 10: 14, 11: 14, 12: 11, 13: 10, 14: 50}); err != nil {
 		return err
 	}
-	row := 2
-	vals := make([]interface{}, len(header))
-	for i := range b.Units {
-		u := &b.Units[i]
-		for k := range u.Steps {
-			s := &u.Steps[k]
-			if s.Predicted == nil {
-				continue
-			}
-			verdicts := map[string]acceptance.Verdict{}
-			for _, c := range s.Checks {
-				verdicts[c.Metric] = c.Verdict
-			}
-			for _, m := range d.Limited {
-				for j := range vals {
-					vals[j] = nil
+	type column struct {
+		name, text, unit string
+		idx              int
+	}
+	limited := make([]column, 0, len(d.Limited))
+	for _, m := range d.Limited {
+		i := metricIndex(m)
+		if i < 0 {
+			return fmt.Errorf("limited metric %q is not a metric", m)
+		}
+		limited = append(limited, column{name: m, text: Text(m), unit: Text(digest.MetricUnit(m, d.ResponseUnit)), idx: i})
+	}
+	bodies[sh] = &sheetBody{rows: rows, cols: len(header), write: func(rw *rowWriter) error {
+		for i := range b.Units {
+			u := &b.Units[i]
+			unitText, fileText := Text(u.Unit), Text(u.File)
+			for k := range u.Steps {
+				s := &u.Steps[k]
+				if s.Predicted == nil {
+					continue
 				}
-				vals[0], vals[1], vals[2], vals[3], vals[4], vals[5] = Text(u.Unit), Text(u.File), s.Index, s.From, s.To, Text(m)
-				if mu := digest.MetricUnit(m, d.ResponseUnit); mu != "" {
-					vals[6] = Text(mu)
-				}
-				meas, pred := s.Metrics.Get(m), s.Predicted.Metrics.Get(m)
-				vals[7], vals[8] = known(meas), known(pred)
-				if g := s.Gap.Get(m); g != nil {
-					vals[9] = *g
-					if pred.OK && pred.V != 0 {
-						vals[10] = 100 * *g / pred.V
+				kind := Text(s.Predicted.Kind)
+				for _, m := range limited {
+					rw.start()
+					rw.str(1, unitText)
+					rw.str(2, fileText)
+					rw.int(3, s.Index)
+					rw.num(4, s.From)
+					rw.num(5, s.To)
+					rw.str(6, m.text)
+					rw.str(7, m.unit)
+					meas, pred := s.Metrics.At(m.idx), s.Predicted.Metrics.At(m.idx)
+					if meas.OK {
+						rw.num(8, meas.V)
+					}
+					if pred.OK {
+						rw.num(9, pred.V)
+					}
+					if g, ok := s.Gap.At(m.idx); ok {
+						rw.num(10, g)
+						if pred.OK && pred.V != 0 {
+							rw.num(11, 100*g/pred.V)
+						}
+					}
+					rw.str(12, kind)
+					for _, c := range s.Checks {
+						if c.Metric == m.name {
+							rw.str(13, string(c.Verdict))
+							break
+						}
+					}
+					switch {
+					case !meas.OK:
+						rw.str(14, Text("not measured: "+orWhy(meas.Why, s.Metrics.Reason(m.name))))
+					case !pred.OK:
+						rw.str(14, Text("not predicted: "+orWhy(pred.Why, s.Predicted.Metrics.Reason(m.name))))
+					}
+					if err := rw.end(); err != nil {
+						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.row, u.Unit, s.Index, m.name, err)
 					}
 				}
-				vals[11] = Text(s.Predicted.Kind)
-				if v, ok := verdicts[m]; ok {
-					vals[12] = string(v)
-				}
-				switch {
-				case !meas.OK:
-					vals[13] = Text("not measured: " + orWhy(meas.Why, s.Metrics.Reason(m)))
-				case !pred.OK:
-					vals[13] = Text("not predicted: " + orWhy(pred.Why, s.Predicted.Metrics.Reason(m)))
-				}
-				if err := sw.SetRow(cellRef(1, row), vals); err != nil {
-					return fmt.Errorf("row %d (unit %q, step %d, %s): %w", row, u.Unit, s.Index, m, err)
-				}
-				row++
 			}
 		}
-	}
-	return sw.Flush()
+		return nil
+	}}
+	return nil
 }
 
 func orWhy(a, b string) string {
@@ -360,31 +398,35 @@ func orWhy(a, b string) string {
 	return "no reason recorded"
 }
 
-// openTable starts a streamed table sheet: the sheet, an autofilter over
-// the header and rows data rows, verdict colours on the given columns, and
-// the header row with the column widths.
-func openTable(f *excelize.File, st *styles, sh string, header []string, rows int, what string, verdictCols []string, widths map[int]float64) (*excelize.StreamWriter, error) {
+// metricIndex returns the position of metric m in metrics.Names.
+func metricIndex(m string) int { return metrics.Index(metrics.Name(m)) }
+
+// openTable starts a long table sheet: the sheet, an autofilter over the
+// header and rows data rows, verdict colours on the given columns, and the
+// header row with the column widths. Its data rows are written later, as a
+// sheetBody.
+func openTable(f *excelize.File, st *styles, sh string, header []string, rows int, what string, verdictCols []string, widths map[int]float64) error {
 	if _, err := f.NewSheet(sh); err != nil {
-		return nil, err
+		return err
 	}
 	if rows+1 > maxRows {
-		return nil, fmt.Errorf("%d %s exceed the %d rows a worksheet holds; split the batch", rows, what, maxRows-1)
+		return fmt.Errorf("%d %s exceed the %d rows a worksheet holds; split the batch", rows, what, maxRows-1)
 	}
 	last := max(rows+1, 2)
 	if err := f.AutoFilter(sh, "A1:"+cellRef(len(header), last), nil); err != nil {
-		return nil, err
+		return err
 	}
 	for _, col := range verdictCols {
 		if err := verdictColours(f, sh, fmt.Sprintf("%s2:%s%d", col, col, last), st); err != nil {
-			return nil, err
+			return err
 		}
 	}
 	sw, err := f.NewStreamWriter(sh)
 	if err != nil {
-		return nil, err
+		return err
 	}
 	if err := streamHead(sw, st, header, widths); err != nil {
-		return nil, err
+		return err
 	}
-	return sw, nil
+	return sw.Flush()
 }

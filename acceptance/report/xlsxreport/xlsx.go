@@ -3,6 +3,7 @@ package xlsxreport
 import (
 	"archive/zip"
 	"bytes"
+	"compress/flate"
 	"encoding/xml"
 	"fmt"
 	"io"
@@ -67,14 +68,16 @@ func WriteDigest(w io.Writer, d *digest.Digest) error {
 	if err := f.SetSheetName("Sheet1", SheetSummary); err != nil {
 		return fmt.Errorf("xlsxreport: %w", err)
 	}
+	// The long sheets' rows are written when the package is assembled.
+	bodies := map[string]*sheetBody{}
 	sheets := []struct {
 		name  string
 		write func() error
 	}{
 		{SheetSummary, func() error { return summary(f, st, d) }},
-		{SheetUnits, func() error { return units(f, st, d) }},
-		{SheetChecks, func() error { return checks(f, st, d) }},
-		{SheetGaps, func() error { return gaps(f, st, d) }},
+		{SheetUnits, func() error { return units(f, st, d, bodies) }},
+		{SheetChecks, func() error { return checks(f, st, d, bodies) }},
+		{SheetGaps, func() error { return gaps(f, st, d, bodies) }},
 		{SheetLimits, func() error { return limits(f, st, d) }},
 		{SheetModel, func() error { return modelSheet(f, st, d) }},
 		{SheetSafety, func() error { return safety(f, st, d) }},
@@ -97,21 +100,34 @@ func WriteDigest(w io.Writer, d *digest.Digest) error {
 	if err != nil {
 		return fmt.Errorf("xlsxreport: writing the workbook: %w", err)
 	}
-	if err := canonicalZip(w, buf.Bytes()); err != nil {
+	if err := canonicalZip(w, buf.Bytes(), bodies); err != nil {
 		return fmt.Errorf("xlsxreport: writing the workbook: %w", err)
 	}
 	return nil
 }
 
 // canonicalZip copies the workbook's zip entries to w sorted by name, with
-// their compressed data untouched. excelize writes streamed sheets in map
-// order; sorting makes the same workbook the same bytes. The order of the
-// parts of an Open Packaging Conventions package carries no meaning
-// (ECMA-376 Part 2).
-func canonicalZip(w io.Writer, data []byte) error {
+// their compressed data untouched, except that the sheets named in bodies
+// get their data rows. excelize writes streamed sheets in map order;
+// sorting makes the same workbook the same bytes. The order of the parts of
+// an Open Packaging Conventions package carries no meaning (ECMA-376
+// Part 2).
+func canonicalZip(w io.Writer, data []byte, bodies map[string]*sheetBody) error {
 	zr, err := zip.NewReader(bytes.NewReader(data), int64(len(data)))
 	if err != nil {
 		return err
+	}
+	parts, err := sheetParts(zr)
+	if err != nil {
+		return err
+	}
+	fill := map[string]*sheetBody{}
+	for name, body := range bodies {
+		part, ok := parts[name]
+		if !ok {
+			return fmt.Errorf("sheet %s is not in the workbook", name)
+		}
+		fill[part] = body
 	}
 	files := append([]*zip.File(nil), zr.File...)
 	sort.SliceStable(files, func(i, j int) bool {
@@ -123,9 +139,20 @@ func canonicalZip(w io.Writer, data []byte) error {
 		return a < b
 	})
 	zw := zip.NewWriter(w)
+	// The long sheets are most of the package: deflate's fastest level
+	// packs their repetitive XML nearly as small in a fraction of the time.
+	zw.RegisterCompressor(zip.Deflate, func(w io.Writer) (io.WriteCloser, error) {
+		return flate.NewWriter(w, flate.BestSpeed)
+	})
 	for _, zf := range files {
 		if zf.Name == "[Content_Types].xml" {
 			if err := canonicalTypes(zw, zf); err != nil {
+				return fmt.Errorf("%s: %w", zf.Name, err)
+			}
+			continue
+		}
+		if body := fill[zf.Name]; body != nil {
+			if err := spliceSheet(zw, zf, body); err != nil {
 				return fmt.Errorf("%s: %w", zf.Name, err)
 			}
 			continue

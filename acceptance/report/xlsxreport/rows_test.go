@@ -1,0 +1,141 @@
+package xlsxreport
+
+import (
+	"math"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// TestRowWriterRoundTrip writes the awkward texts and numbers a log can
+// carry through the long sheets' row writer and reads them back with
+// excelize, an independent SpreadsheetML reader.
+func TestRowWriterRoundTrip(t *testing.T) {
+	texts := []string{
+		"SN-1001",
+		"a & b < c > d",
+		`quote " and apostrophe '`,
+		"line\nbreak", "carriage\rreturn", "tab\there",
+		" leading space", "trailing space ",
+		// ST_Xstring (ECMA-376 Part 1, §22.9.2.19): a literal _xHHHH_ is
+		// not a character escape.
+		"_x0041_", "pre_x00e9_post", "_x005F_", "_x12_", "__x0041__",
+		"ünïcödé 温度 🙂",
+	}
+	long := strings.Repeat("é", maxCellChars+10)
+	nums := []float64{0, -0.0, 1, -2.5, 0.1 + 0.2, 1.5e-05, 6.02214076e23, -1e-300, 123456789.123456789, math.MaxFloat64}
+	// Exercise the writer directly on a sheet frame made by excelize.
+	f := excelize.NewFile()
+	defer f.Close()
+	sw, err := f.NewStreamWriter("Sheet1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := sw.SetRow("A1", []interface{}{"text", "number"}); err != nil {
+		t.Fatal(err)
+	}
+	if err := sw.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	rows := len(texts) + len(nums) + 1
+	buf, err := f.WriteToBuffer()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out strings.Builder
+	body := &sheetBody{rows: rows, cols: 2, write: func(rw *rowWriter) error {
+		for i, s := range texts {
+			rw.start()
+			rw.str(1, s)
+			rw.int(2, i)
+			if err := rw.end(); err != nil {
+				return err
+			}
+		}
+		for _, v := range nums {
+			rw.start()
+			rw.str(1, "n")
+			rw.num(2, v)
+			if err := rw.end(); err != nil {
+				return err
+			}
+		}
+		rw.start()
+		rw.str(1, long)
+		return rw.end()
+	}}
+	if err := canonicalZip(&out, buf.Bytes(), map[string]*sheetBody{"Sheet1": body}); err != nil {
+		t.Fatal(err)
+	}
+	g, err := excelize.OpenReader(strings.NewReader(out.String()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	got, err := g.GetRows("Sheet1", excelize.Options{RawCellValue: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != rows+1 {
+		t.Fatalf("read %d rows, wrote %d", len(got), rows+1)
+	}
+	for i, s := range texts {
+		if got[i+1][0] != s {
+			t.Errorf("text %d: read %q, wrote %q", i, got[i+1][0], s)
+		}
+		if got[i+1][1] != strconv.Itoa(i) {
+			t.Errorf("text %d: number read %q", i, got[i+1][1])
+		}
+	}
+	for i, v := range nums {
+		r := got[len(texts)+1+i]
+		x, err := strconv.ParseFloat(r[1], 64)
+		if err != nil {
+			t.Errorf("number %g: read %q: %v", v, r[1], err)
+			continue
+		}
+		// 15 significant digits, as a spreadsheet keeps them.
+		if d := math.Abs(x - v); d > 5e-15*math.Abs(v) {
+			t.Errorf("number %g: read %q (off by %g)", v, r[1], d)
+		}
+	}
+	last := got[rows][0]
+	if n := len([]rune(last)); n != maxCellChars || !strings.HasPrefix(long, last) {
+		t.Errorf("long text read back as %d characters, want it cut to %d", n, maxCellChars)
+	}
+	dim, err := g.GetSheetDimension("Sheet1")
+	if err != nil || dim != "A1:B"+strconv.Itoa(rows+1) {
+		t.Errorf("dimension %q (%v), want A1:B%d", dim, err, rows+1)
+	}
+}
+
+func TestAppendCellText(t *testing.T) {
+	tests := []struct{ in, want string }{
+		{"plain", "plain"},
+		{"a&b<c>d", "a&amp;b&lt;c&gt;d"},
+		{"x\ry", "x&#xD;y"},
+		{"_x0041_", "_x005F_x0041_"},
+		{"_x004g_", "_x004g_"},
+		{"_x0041", "_x0041"},
+		{"", ""},
+	}
+	for _, tc := range tests {
+		if got := string(appendCellText(nil, tc.in)); got != tc.want {
+			t.Errorf("appendCellText(%q) = %q, want %q", tc.in, got, tc.want)
+		}
+	}
+}
+
+func TestRowWriterColumnOrder(t *testing.T) {
+	defer func() {
+		if recover() == nil {
+			t.Error("writing column 1 after column 2 did not panic")
+		}
+	}()
+	rw := newRowWriter(&strings.Builder{}, 3)
+	rw.start()
+	rw.int(2, 1)
+	rw.int(1, 1)
+}
