@@ -17,8 +17,9 @@ import (
 // Write encodes b as indented JSON followed by a newline: the same bytes as
 // json.MarshalIndent(b, "", "  ") plus "\n", but streamed unit by unit, so
 // that a batch of many thousand units is never held in memory as one text.
-// Map keys are sorted by encoding/json, so the same batch always gives the
-// same bytes.
+// Units are encoded without reflection (see unitEncoder); the other fields
+// go through encoding/json. Map keys are sorted, as encoding/json sorts them,
+// so the same batch always gives the same bytes.
 func Write(w io.Writer, b *acceptance.Batch) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
 	if err := write(bw, b); err != nil {
@@ -78,6 +79,9 @@ func write(w *bufio.Writer, b *acceptance.Batch) error {
 }
 
 // writeUnits writes the units array as MarshalIndent would at depth one.
+// Each unit is encoded by a unitEncoder into one reused buffer; a unit it
+// cannot encode (a number that is not finite) goes through encoding/json,
+// which reports the error.
 func writeUnits(w *bufio.Writer, units []acceptance.UnitResult) error {
 	if units == nil {
 		w.WriteString("null")
@@ -88,16 +92,23 @@ func writeUnits(w *bufio.Writer, units []acceptance.UnitResult) error {
 		return nil
 	}
 	w.WriteString("[")
+	e := unitEncoder{b: make([]byte, 0, 16<<10)}
 	for i := range units {
+		e.b = e.b[:0]
+		e.unit(&units[i])
+		if e.bad {
+			data, err := json.MarshalIndent(&units[i], "    ", "  ")
+			if err != nil {
+				return fmt.Errorf("encoding unit %q (%s): %w", units[i].Unit, units[i].File, err)
+			}
+			e.b = append(e.b[:0], data...)
+			e.bad = false
+		}
 		if i > 0 {
 			w.WriteString(",")
 		}
-		data, err := json.MarshalIndent(&units[i], "    ", "  ")
-		if err != nil {
-			return fmt.Errorf("encoding unit %q (%s): %w", units[i].Unit, units[i].File, err)
-		}
 		w.WriteString("\n    ")
-		w.Write(data)
+		w.Write(e.b)
 	}
 	w.WriteString("\n  ]")
 	return nil
