@@ -99,7 +99,9 @@ func median(b []float64) float64 {
 	}
 	m := b[0] // b[:k] holds the k smallest values; the largest is the other middle
 	for _, x := range b[1:k] {
-		m = math.Max(m, x)
+		if x > m { // b holds no NaN, so a comparison does
+			m = x
+		}
 	}
 	return (m + v) / 2
 }
