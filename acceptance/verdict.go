@@ -28,7 +28,6 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 		StartS:  m.Start,
 		From:    m.Step.From,
 		To:      m.Step.To,
-		Checks:  []Check{},
 		Reasons: []string{},
 	}
 	for _, n := range metrics.Names {
@@ -36,14 +35,31 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 		r.Metrics.Set(n, v)
 	}
 	var fails, invalids []string
-	for _, name := range s.LimitNames() {
-		c := s.judgeCheck(name, m)
+	// The checks' values live in one array per step rather than one
+	// allocation per check.
+	r.Checks = make([]Check, 0, len(s.Limits))
+	values := make([]float64, len(s.Limits))
+	judge := func(name string) {
+		c := s.judgeCheck(name, m, &values[len(r.Checks)])
 		r.Checks = append(r.Checks, c)
 		switch c.Verdict {
 		case Fail:
 			fails = append(fails, c.Reason)
 		case Invalid:
 			invalids = append(invalids, c.Reason)
+		}
+	}
+	// In LimitNames order, without building the list for every step: the
+	// metrics in report order, then any other name (which the spec loader
+	// refuses, but a spec built in code may hold) in sorted order.
+	for _, n := range metrics.Names {
+		if _, ok := s.Limits[string(n)]; ok {
+			judge(string(n))
+		}
+	}
+	if len(r.Checks) < len(s.Limits) {
+		for _, name := range s.LimitNames()[len(r.Checks):] {
+			judge(name)
 		}
 	}
 	switch {
@@ -58,8 +74,9 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 	return r
 }
 
-// judgeCheck applies one limit to one step.
-func (s *Spec) judgeCheck(name string, m metrics.StepMetrics) Check {
+// judgeCheck applies one limit to one step; a known value is stored in
+// *slot, which the check's Value then points to.
+func (s *Spec) judgeCheck(name string, m metrics.StepMetrics, slot *float64) Check {
 	lim := s.Limits[name]
 	// The bounds are the spec's own, shared by every check of the batch and
 	// never written through.
@@ -82,7 +99,8 @@ func (s *Spec) judgeCheck(name string, m metrics.StepMetrics) Check {
 		c.Reason = fmt.Sprintf("%s not measured at step %d: %s", name, step, verdictWhy(v))
 		return c
 	}
-	c.Value = verdictCopy(&v.V)
+	*slot = v.V
+	c.Value = slot
 	switch {
 	case lim.Min != nil && v.V < *lim.Min:
 		c.Verdict = Fail
@@ -149,14 +167,6 @@ func verdictWhy(v metrics.Value) string {
 		return "no reason recorded"
 	}
 	return v.Why
-}
-
-func verdictCopy(p *float64) *float64 {
-	if p == nil {
-		return nil
-	}
-	v := *p
-	return &v
 }
 
 // verdictNumber writes a measured value with up to 4 significant digits,
