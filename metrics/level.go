@@ -45,7 +45,10 @@ func StateLevel(y []float64) (l Level, ok bool) {
 	if len(y) == 0 {
 		return Level{}, false
 	}
-	return stateLevel(y, make([]float64, len(y))), true
+	bp := scratchPool.Get().(*[]float64)
+	l = stateLevel(y, scratch(bp, len(y)))
+	scratchPool.Put(bp)
+	return l, true
 }
 
 // stateLevel is StateLevel with a caller-owned scratch buffer at least
