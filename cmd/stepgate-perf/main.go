@@ -11,6 +11,10 @@
 //   - the full run: `stepgate run` as a separate process, reports included,
 //     its peak resident memory taken from the kernel's rusage.
 //
+// The page cache is warmed first; then floor and full run alternate
+// -repeat times (3 by default) and the medians are reported, with the
+// worst peak memory, since a shared machine's timings vary from run to run.
+//
 // It prints throughput (MB/s, units/s), the full run's share of the floor's
 // throughput, the peak memory, and the growth of run time from the middle to
 // the largest batch against the growth in samples.
@@ -27,6 +31,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"runtime"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -43,8 +48,13 @@ func main() {
 	dir := flag.String("dir", filepath.Join(os.TempDir(), "stepgate-perf"), "working directory for generated logs and reports")
 	duration := flag.Float64("duration-s", 6, "seconds logged per unit")
 	keep := flag.Bool("keep", false, "keep the generated logs")
+	repeat := flag.Int("repeat", 3, "measurements of the floor and the full run per size, alternated; the median is reported")
 	flag.Parse()
-	if err := run(*sizes, *dir, *duration, *keep); err != nil {
+	if *repeat < 1 {
+		fmt.Fprintln(os.Stderr, "stepgate-perf: -repeat must be at least 1")
+		os.Exit(2)
+	}
+	if err := run(*sizes, *dir, *duration, *keep, *repeat); err != nil {
 		fmt.Fprintln(os.Stderr, "stepgate-perf:", err)
 		os.Exit(1)
 	}
@@ -61,7 +71,7 @@ type result struct {
 	fullUnitsPerSecond float64
 }
 
-func run(sizesFlag, dir string, duration float64, keep bool) error {
+func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 	var sizes []int
 	for _, s := range strings.Split(sizesFlag, ",") {
 		n, err := strconv.Atoi(strings.TrimSpace(s))
@@ -95,39 +105,51 @@ func run(sizesFlag, dir string, duration float64, keep bool) error {
 		if err != nil {
 			return err
 		}
-		// Warm the page cache once so both measurements read from memory.
+		// Warm the page cache once so both measurements read from memory;
+		// then alternate floor and full run, so that whatever else the
+		// machine does (page-cache reclaim, another process) falls on both,
+		// and report the median of each.
 		if _, _, err := floor(files, specPath); err != nil {
 			return err
 		}
-		t0 = time.Now()
-		r.bytes, r.rows, err = floor(files, specPath)
-		if err != nil {
-			return err
-		}
-		r.floor = time.Since(t0)
-
+		var floors, fulls []time.Duration
+		var peaks []int64
 		out := filepath.Join(work, "report")
-		cmd := exec.Command(bin, "run", "--quiet", "--spec", specPath, "--out", out, "--report-date", "2026-12-01", logDir)
-		cmd.Stderr = os.Stderr
-		t0 = time.Now()
-		err = cmd.Run()
-		r.full = time.Since(t0)
-		if cmd.ProcessState == nil {
-			return fmt.Errorf("stepgate run: %w", err)
+		for k := 0; k < repeat; k++ {
+			t0 = time.Now()
+			r.bytes, r.rows, err = floor(files, specPath)
+			if err != nil {
+				return err
+			}
+			floors = append(floors, time.Since(t0))
+
+			cmd := exec.Command(bin, "run", "--quiet", "--spec", specPath, "--out", out, "--report-date", "2026-12-01", logDir)
+			cmd.Stderr = os.Stderr
+			t0 = time.Now()
+			err = cmd.Run()
+			fulls = append(fulls, time.Since(t0))
+			if cmd.ProcessState == nil {
+				return fmt.Errorf("stepgate run: %w", err)
+			}
+			r.exitCode = cmd.ProcessState.ExitCode()
+			if r.exitCode != 0 && r.exitCode != 1 {
+				return fmt.Errorf("stepgate run exited %d", r.exitCode)
+			}
+			if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+				peaks = append(peaks, ru.Maxrss*1024) // kilobytes on Linux
+			}
 		}
-		r.exitCode = cmd.ProcessState.ExitCode()
-		if r.exitCode != 0 && r.exitCode != 1 {
-			return fmt.Errorf("stepgate run exited %d", r.exitCode)
+		r.floor, r.full = median(floors), median(fulls)
+		for _, p := range peaks {
+			r.peakRSS = max(r.peakRSS, p) // the worst peak, not the median
 		}
-		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-			r.peakRSS = ru.Maxrss * 1024 // kilobytes on Linux
-		}
+		fmt.Printf("  floor runs %s; full runs %s\n", seconds(floors), seconds(fulls))
 		mb := float64(r.bytes) / 1e6
 		r.floorMBs = mb / r.floor.Seconds()
 		r.fullMBs = mb / r.full.Seconds()
 		r.fullUnitsPerSecond = float64(n) / r.full.Seconds()
 		results = append(results, r)
-		fmt.Printf("%d units: %.0f MB, %d rows; floor %.2f s, full run %.2f s, peak %.0f MB\n",
+		fmt.Printf("%d units: %.0f MB, %d rows; floor %.2f s, full run %.2f s (medians), peak %.0f MB (worst)\n",
 			n, mb, r.rows, r.floor.Seconds(), r.full.Seconds(), float64(r.peakRSS)/1e6)
 		if !keep {
 			os.RemoveAll(filepath.Join(work, "logs"))
@@ -146,6 +168,21 @@ func run(sizesFlag, dir string, duration float64, keep bool) error {
 			a.units, b.units, float64(b.rows)/float64(a.rows), b.full.Seconds()/a.full.Seconds(), float64(b.peakRSS)/float64(a.peakRSS))
 	}
 	return nil
+}
+
+// median returns the median of d (the lower middle for an even count).
+func median(d []time.Duration) time.Duration {
+	s := append([]time.Duration(nil), d...)
+	sort.Slice(s, func(i, j int) bool { return s[i] < s[j] })
+	return s[(len(s)-1)/2]
+}
+
+func seconds(d []time.Duration) string {
+	var parts []string
+	for _, x := range d {
+		parts = append(parts, fmt.Sprintf("%.2f", x.Seconds()))
+	}
+	return strings.Join(parts, ", ") + " s"
 }
 
 // floor reads and parses every file with one worker per core and returns the
