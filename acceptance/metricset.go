@@ -10,17 +10,37 @@ import (
 )
 
 // MetricSet holds one value, measured or unknown, per metric of
-// metrics.Names: a fixed array rather than a map, so that a batch of many
-// thousand steps stays small. In JSON it is an object keyed by metric name,
-// each value a number or null, keys in sorted order (as a map encodes).
+// metrics.Names: fixed arrays rather than a map, so that a batch of many
+// thousand steps stays small. The reasons of unknown metrics are held
+// apart, since most sets have none. In JSON it is an object keyed by metric
+// name, each value a number or null, keys in sorted order (as a map
+// encodes).
 type MetricSet struct {
-	v [metrics.NumNames]metrics.Value
+	v     [metrics.NumNames]float64
+	known uint16                    // bit i: metric i is known
+	why   *[metrics.NumNames]string // reasons of unknown metrics; nil when none has one
 }
 
 // Set stores the value of metric n; an unknown name is ignored.
 func (m *MetricSet) Set(n metrics.Name, v metrics.Value) {
-	if i := metrics.Index(n); i >= 0 {
-		m.v[i] = v
+	i := metrics.Index(n)
+	if i < 0 {
+		return
+	}
+	m.v[i] = v.V
+	if v.OK {
+		m.known |= 1 << i
+	} else {
+		m.known &^= 1 << i
+	}
+	switch {
+	case v.Why != "":
+		if m.why == nil {
+			m.why = new([metrics.NumNames]string)
+		}
+		m.why[i] = v.Why
+	case m.why != nil:
+		m.why[i] = ""
 	}
 }
 
@@ -31,7 +51,7 @@ func (m *MetricSet) Lookup(name string) (v metrics.Value, ok bool) {
 	if i < 0 {
 		return metrics.Value{}, false
 	}
-	return m.v[i], true
+	return m.At(i), true
 }
 
 // Get returns the value of the named metric, unknown for a name that is not
@@ -42,7 +62,13 @@ func (m *MetricSet) Get(name string) metrics.Value {
 }
 
 // At returns the value of metric i of metrics.Names.
-func (m *MetricSet) At(i int) metrics.Value { return m.v[i] }
+func (m *MetricSet) At(i int) metrics.Value {
+	v := metrics.Value{V: m.v[i], OK: m.known&(1<<i) != 0}
+	if m.why != nil {
+		v.Why = m.why[i]
+	}
+	return v
+}
 
 // Reason returns why the named metric is unknown ("" when it is known or not
 // a metric).
@@ -58,8 +84,8 @@ func (m *MetricSet) Reason(name string) string {
 func (m *MetricSet) Unmeasured() map[string]string {
 	out := map[string]string{}
 	for i, n := range metrics.Names {
-		if !m.v[i].OK {
-			out[string(n)] = verdictWhy(m.v[i])
+		if v := m.At(i); !v.OK {
+			out[string(n)] = verdictWhy(v)
 		}
 	}
 	return out
@@ -79,10 +105,10 @@ var sortedNames = func() []int {
 // MarshalJSON writes the set as an object: name → number or null.
 func (m MetricSet) MarshalJSON() ([]byte, error) {
 	return metricObject(func(b []byte, i int) []byte {
-		if !m.v[i].OK {
+		if m.known&(1<<i) == 0 {
 			return append(b, "null"...)
 		}
-		return appendJSONFloat(b, m.v[i].V)
+		return appendJSONFloat(b, m.v[i])
 	}), nil
 }
 
@@ -222,8 +248,8 @@ func (p Prediction) MarshalJSON() ([]byte, error) {
 // names; other keys are ignored). Metrics missing from m are unknown.
 func MetricsOf(m map[string]metrics.Value) MetricSet {
 	var s MetricSet
-	for i := range s.v {
-		s.v[i] = metrics.Unknown("not measured")
+	for _, n := range metrics.Names {
+		s.Set(n, metrics.Unknown("not measured"))
 	}
 	for k, v := range m {
 		s.Set(metrics.Name(k), v)
