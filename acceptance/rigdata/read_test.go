@@ -397,6 +397,18 @@ func TestReadStreams(t *testing.T) {
 				t.Errorf("%s, %s: result differs from a plain read", name, rname)
 			}
 		}
+		// Without the digest the log is the same but for its SHA256.
+		bare, err := NewReader(f).WithoutDigest().Read(bytes.NewReader(data), "x.csv")
+		if err != nil {
+			t.Fatalf("%s, without digest: %v", name, err)
+		}
+		if bare.SHA256 != "" {
+			t.Errorf("%s, without digest: SHA256 %q, want none", name, bare.SHA256)
+		}
+		bare.SHA256 = want.SHA256
+		if !reflect.DeepEqual(bare, want) {
+			t.Errorf("%s, without digest: result differs from a plain read", name)
+		}
 	}
 	// A failing reader's error is passed on, wrapped with the file name.
 	boom := errors.New("device unplugged")

@@ -7,7 +7,7 @@
 //
 //   - the floor: a bare read-and-parse of the same files with the same
 //     reader and one worker per core, every numeric field parsed and nothing
-//     else done;
+//     else done (not even the SHA-256 of each file that the run records);
 //   - the full run: `stepgate run` as a separate process, reports included,
 //     its peak resident memory taken from the kernel's rusage.
 //
@@ -196,7 +196,9 @@ func floor(files []string, specPath string) (bytes, rows int64, err error) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			rd := rigdata.NewReader(f).Shared() // per-worker reusable buffers, as the batch uses
+			// Per-worker reusable buffers, as the batch uses; no SHA-256,
+			// which is the batch's work, not the parse's.
+			rd := rigdata.NewReader(f).Shared().WithoutDigest()
 			for p := range jobs {
 				lg, err := rd.ReadFile(p)
 				if lg != nil {
