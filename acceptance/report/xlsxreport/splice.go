@@ -2,10 +2,15 @@ package xlsxreport
 
 import (
 	"archive/zip"
+	"bufio"
 	"bytes"
+	"compress/flate"
 	"encoding/xml"
 	"fmt"
+	"hash"
+	"hash/crc32"
 	"io"
+	"os"
 	"path"
 	"regexp"
 	"strconv"
@@ -78,45 +83,130 @@ func sheetParts(zr *zip.Reader) (map[string]string, error) {
 // streamed sheet, which covers the header only.
 var dimensionRef = regexp.MustCompile(`<dimension ref="[^"]*"\s*(/>|></dimension>)`)
 
-// spliceSheet writes the sheet part zf to zw with body's rows inserted
-// after the header row that excelize wrote, and its dimension set to the
-// full table.
-func spliceSheet(zw *zip.Writer, zf *zip.File, body *sheetBody) error {
+// packedSheet is a long sheet's part, frame and rows, deflated into a
+// temporary file ready to be copied into the package as it is.
+type packedSheet struct {
+	file         *os.File
+	crc          uint32
+	size, packed int64 // uncompressed and compressed bytes
+}
+
+// close closes and removes the temporary file.
+func (p *packedSheet) close() {
+	if p != nil && p.file != nil {
+		p.file.Close()
+		os.Remove(p.file.Name())
+	}
+}
+
+// packSheet deflates the sheet part zf with body's rows inserted after the
+// header row that excelize wrote, and its dimension set to the full table.
+// The long sheets are packed concurrently, one per goroutine, since they
+// are most of the workbook's work; each goes to a temporary file so that
+// none is held in memory.
+func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
 	rc, err := zf.Open()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	frame, err := io.ReadAll(rc)
 	rc.Close()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	at := bytes.LastIndex(frame, []byte("</sheetData>"))
 	if at < 0 {
-		return fmt.Errorf("no sheetData element to fill")
+		return nil, fmt.Errorf("no sheetData element to fill")
 	}
 	head, tail := frame[:at], frame[at:]
 	dim := []byte(`<dimension ref="A1:` + colName(max(body.cols, 1)) + strconv.Itoa(body.rows+1) + `"/>`)
 	if loc := dimensionRef.FindIndex(head); loc != nil {
 		head = append(append(append([]byte(nil), head[:loc[0]]...), dim...), head[loc[1]:]...)
 	}
-	w, err := zw.CreateHeader(&zip.FileHeader{Name: zf.Name, Method: zip.Deflate})
+
+	f, err := os.CreateTemp("", "stepgate-sheet-*.deflate")
+	if err != nil {
+		return nil, fmt.Errorf("temporary file for the packed sheet: %w", err)
+	}
+	p := &packedSheet{file: f}
+	defer func() {
+		if err != nil {
+			p.close()
+		}
+	}()
+	out := &countingWriter{w: bufio.NewWriterSize(f, 1<<16)}
+	fw, err := flate.NewWriter(out, flate.BestSpeed)
+	if err != nil {
+		return nil, err
+	}
+	sum := &summingWriter{w: fw, crc: crc32.NewIEEE()}
+	if _, err := sum.Write(head); err != nil {
+		return nil, err
+	}
+	rw := newRowWriter(sum, body.cols)
+	if err := body.write(rw); err != nil {
+		return nil, err
+	}
+	if err := rw.flush(); err != nil {
+		return nil, err
+	}
+	if rw.row != body.rows+1 {
+		return nil, fmt.Errorf("wrote %d data rows, expected %d", rw.row-1, body.rows)
+	}
+	if _, err := sum.Write(tail); err != nil {
+		return nil, err
+	}
+	if err := fw.Close(); err != nil {
+		return nil, err
+	}
+	if err := out.w.Flush(); err != nil {
+		return nil, err
+	}
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		return nil, err
+	}
+	p.crc, p.size, p.packed = sum.crc.Sum32(), sum.n, out.n
+	return p, nil
+}
+
+// copyPacked writes a packed sheet into the package as entry name.
+func copyPacked(zw *zip.Writer, name string, p *packedSheet) error {
+	w, err := zw.CreateRaw(&zip.FileHeader{
+		Name: name, Method: zip.Deflate, CRC32: p.crc,
+		CompressedSize64: uint64(p.packed), UncompressedSize64: uint64(p.size),
+	})
 	if err != nil {
 		return err
 	}
-	if _, err := w.Write(head); err != nil {
-		return err
+	n, err := io.Copy(w, p.file)
+	if err == nil && n != p.packed {
+		err = fmt.Errorf("copied %d of %d packed bytes", n, p.packed)
 	}
-	rw := newRowWriter(w, body.cols)
-	if err := body.write(rw); err != nil {
-		return err
-	}
-	if err := rw.flush(); err != nil {
-		return err
-	}
-	if rw.row != body.rows+1 {
-		return fmt.Errorf("wrote %d data rows, expected %d", rw.row-1, body.rows)
-	}
-	_, err = w.Write(tail)
 	return err
+}
+
+// countingWriter counts the bytes written through it.
+type countingWriter struct {
+	w *bufio.Writer
+	n int64
+}
+
+func (c *countingWriter) Write(b []byte) (int, error) {
+	n, err := c.w.Write(b)
+	c.n += int64(n)
+	return n, err
+}
+
+// summingWriter keeps the CRC-32 and count of what it passes on.
+type summingWriter struct {
+	w   io.Writer
+	crc hash.Hash32
+	n   int64
+}
+
+func (s *summingWriter) Write(b []byte) (int, error) {
+	n, err := s.w.Write(b)
+	s.crc.Write(b[:n])
+	s.n += int64(n)
+	return n, err
 }

@@ -9,6 +9,7 @@ import (
 	"io"
 	"sort"
 	"strings"
+	"sync"
 	"unicode/utf8"
 
 	"github.com/xuri/excelize/v2"
@@ -121,14 +122,45 @@ func canonicalZip(w io.Writer, data []byte, bodies map[string]*sheetBody) error 
 	if err != nil {
 		return err
 	}
-	fill := map[string]*sheetBody{}
+	byPart := map[string]*zip.File{}
+	for _, zf := range zr.File {
+		byPart[zf.Name] = zf
+	}
+	// Pack the long sheets concurrently while the rest is copied; every
+	// packing is waited for, and its temporary file removed, before
+	// canonicalZip returns.
+	type packing struct {
+		p   *packedSheet
+		err error
+	}
+	fill := map[string]chan packing{}
+	var wg sync.WaitGroup
+	defer wg.Wait()
 	for name, body := range bodies {
 		part, ok := parts[name]
-		if !ok {
+		if !ok || byPart[part] == nil {
 			return fmt.Errorf("sheet %s is not in the workbook", name)
 		}
-		fill[part] = body
+		ch := make(chan packing, 1)
+		fill[part] = ch
+		wg.Add(1)
+		go func(zf *zip.File, body *sheetBody) {
+			defer wg.Done()
+			p, err := packSheet(zf, body)
+			ch <- packing{p, err}
+		}(byPart[part], body)
 	}
+	defer func() {
+		// Free whatever was packed but not taken (after an error).
+		wg.Wait()
+		for _, ch := range fill {
+			select {
+			case r := <-ch:
+				r.p.close()
+			default:
+			}
+		}
+	}()
 	files := append([]*zip.File(nil), zr.File...)
 	sort.SliceStable(files, func(i, j int) bool {
 		// [Content_Types].xml first, as writers conventionally put it.
@@ -151,8 +183,14 @@ func canonicalZip(w io.Writer, data []byte, bodies map[string]*sheetBody) error 
 			}
 			continue
 		}
-		if body := fill[zf.Name]; body != nil {
-			if err := spliceSheet(zw, zf, body); err != nil {
+		if ch := fill[zf.Name]; ch != nil {
+			r := <-ch
+			if r.err != nil {
+				return fmt.Errorf("%s: %w", zf.Name, r.err)
+			}
+			err := copyPacked(zw, zf.Name, r.p)
+			r.p.close()
+			if err != nil {
 				return fmt.Errorf("%s: %w", zf.Name, err)
 			}
 			continue
