@@ -1,7 +1,10 @@
 package xlsxreport
 
 import (
+	"bytes"
+	"errors"
 	"math"
+	"os"
 	"strconv"
 	"strings"
 	"testing"
@@ -138,4 +141,50 @@ func TestRowWriterColumnOrder(t *testing.T) {
 	rw.start()
 	rw.int(2, 1)
 	rw.int(1, 1)
+}
+
+// failAfter accepts n bytes and then fails, as a full disk does.
+type failAfter struct{ n int }
+
+func (f *failAfter) Write(b []byte) (int, error) {
+	if len(b) > f.n {
+		n := f.n
+		f.n = 0
+		return n, errors.New("no space left on device")
+	}
+	f.n -= len(b)
+	return len(b), nil
+}
+
+// TestPackedSheetsCleanedUp checks that the long sheets' temporary files
+// are gone after a workbook is written, and after a write that fails.
+func TestPackedSheetsCleanedUp(t *testing.T) {
+	tmp := t.TempDir()
+	t.Setenv("TMPDIR", tmp)
+	left := func() []string {
+		ents, err := os.ReadDir(tmp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var names []string
+		for _, e := range ents {
+			names = append(names, e.Name())
+		}
+		return names
+	}
+	var full bytes.Buffer
+	if err := Write(&full, testBatch()); err != nil {
+		t.Fatal(err)
+	}
+	if l := left(); len(l) != 0 {
+		t.Errorf("after a write: %v left in the temporary directory", l)
+	}
+	for _, n := range []int{0, 100, full.Len() / 2, full.Len() - 10} {
+		if err := Write(&failAfter{n: n}, testBatch()); err == nil || !strings.Contains(err.Error(), "no space left") {
+			t.Errorf("writer failing after %d bytes: error %v", n, err)
+		}
+		if l := left(); len(l) != 0 {
+			t.Errorf("after a write failing at byte %d: %v left in the temporary directory", n, l)
+		}
+	}
 }
