@@ -10,8 +10,12 @@
 //     limited metric with its limits and predicted value (Histogram), from
 //     package digest.
 //
-// Curves are reduced to a few hundred points without losing their peaks,
-// and a figure holds a bounded number of curves whatever the batch size.
+// The overlay's curves are reduced to a few hundred points without losing
+// their peaks (Downsample); a unit figure keeps every sample of its
+// windows, and Panel.Reduced thins them to what the plot's size on paper
+// shows (Envelope, then only the samples a line needs to pass within
+// TolMM of every other). A figure holds a bounded number of curves
+// whatever the batch size.
 // The package draws nothing itself: a report writer renders the returned
 // plot on its own canvas (vector graphics in the PDF report). It never
 // re-measures a metric; it only reshapes the samples that the batch kept.

@@ -63,20 +63,16 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 	p.Add(band)
 
 	counts := map[Kind]int{}
-	first := map[Kind]*plotter.Line{}
+	first := map[Kind]line{}
 	for _, c := range o.Curves {
-		xys := make(plotter.XYs, len(c.T))
-		for i := range c.T {
-			xys[i] = plotter.XY{X: c.T[i], Y: c.Y[i]}
-		}
-		l, err := plotter.NewLine(xys)
+		l, err := newLine(c.T, c.Y)
 		if err != nil {
 			return nil, fmt.Errorf("chart: curve %s: %w", c.Label, err)
 		}
-		styleLine(l, c.Kind)
+		styleLine(l.Line, c.Kind)
 		p.Add(l)
 		counts[c.Kind]++
-		if first[c.Kind] == nil {
+		if _, ok := first[c.Kind]; !ok {
 			first[c.Kind] = l
 		}
 	}
@@ -92,7 +88,7 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 		{Prediction, "prediction (" + o.PredictionKind + ")"},
 	}
 	for _, n := range names {
-		if l := first[n.k]; l != nil {
+		if l, ok := first[n.k]; ok {
 			label := n.name
 			if n.k != Prediction {
 				label += " (" + strconv.Itoa(counts[n.k]) + ")"
@@ -127,6 +123,7 @@ func styleLine(l *plotter.Line, k Kind) {
 }
 
 func setFonts(p *plot.Plot) {
+	useChartText(p)
 	p.Title.TextStyle.Font = font.From(Font, 11)
 	for _, a := range []*plot.Axis{&p.X, &p.Y} {
 		a.Label.TextStyle.Font = font.From(Font, 9)

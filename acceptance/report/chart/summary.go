@@ -75,6 +75,7 @@ func Pareto(causes []digest.Cause, units int) (*plot.Plot, error) {
 		return nil, fmt.Errorf("chart: bar labels: %w", err)
 	}
 	for i := range l.TextStyle {
+		l.TextStyle[i].Handler = chartText
 		l.TextStyle[i].Font = fontOf(7.5)
 		l.TextStyle[i].YAlign = -0.5
 		l.Offset = vg.Point{X: vg.Points(3)}

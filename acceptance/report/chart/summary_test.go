@@ -1,6 +1,7 @@
 package chart
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -155,8 +156,32 @@ func TestForUnitSteps(t *testing.T) {
 			t.Fatalf("prediction at %v s is %v, want %v: not shifted to the step instant", tt, p.PredY[i], want)
 		}
 	}
-	if len(p.T) > PointsFew || len(p.T) != len(p.Response) || len(p.CmdT) != len(p.Command) || len(p.Command) == 0 {
-		t.Errorf("points: %d response, %d command", len(p.T), len(p.Command))
+	// The panel holds every sample from 10 % of the window before the
+	// step instant (0.26 s) to the end of the window (2.9 s), 2 ms apart.
+	if len(p.T) != 1321 || len(p.T) != len(p.Response) || len(p.CmdT) != len(p.Command) || len(p.Command) != len(p.T) ||
+		math.Abs(p.T[0]-0.26) > 1e-9 || math.Abs(p.T[len(p.T)-1]-2.9) > 1e-9 {
+		t.Errorf("points: %d response from %v to %v, %d command", len(p.T), p.T[0], p.T[len(p.T)-1], len(p.Command))
+	}
+	// Reduced for a panel 87 × 68 mm on paper: at most four samples per
+	// half millimetre, the extremes kept, the command a single step.
+	r := p.Reduced(87, 68)
+	if n := len(r.T); n > 4*Buckets(87) || n < 10 || n != len(r.Response) {
+		t.Errorf("reduced response: %d times, %d values", n, len(r.Response))
+	}
+	if lo, hi := extremes(r.Response); lo != minOf(p.Response) || hi != maxOf(p.Response) {
+		t.Errorf("reduced response spans %v … %v, the record %v … %v", lo, hi, minOf(p.Response), maxOf(p.Response))
+	}
+	if len(r.PredT) > 4*Buckets(87) || r.PredT[0] != p.PredT[0] || r.PredT[len(r.PredT)-1] != p.PredT[len(p.PredT)-1] {
+		t.Errorf("reduced prediction: %d points", len(r.PredT))
+	}
+	if fmt.Sprint(r.CmdT, r.Command) != fmt.Sprint([]float64{p.T[0], 0.5, p.T[len(p.T)-1]}, []float64{0, 10, 10}) {
+		t.Errorf("reduced command %v %v, want the step 0 → 10 at 0.5 s", r.CmdT, r.Command)
+	}
+	if len(p.T) != 1321 {
+		t.Errorf("Reduced changed the panel")
+	}
+	if rmin, rmax := r.valueRange(); fmt.Sprint(rmin, rmax) != fmt.Sprint(p.valueRange()) {
+		t.Errorf("reduced value axis %v … %v", rmin, rmax)
 	}
 	// The down-step has no matching prediction and its band centres on the
 	// command, its final value being unknown.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"sort"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -51,11 +52,11 @@ type Panel struct {
 	Verdict  acceptance.Verdict
 	Start    float64 // step instant, seconds on the record's clock
 	From, To float64
-	// T and Response, CmdT and Command are the record over the panel's
-	// window, each thinned to at most PointsFew points.
+	// T and Response, CmdT and Command are every sample of the record
+	// over the panel's window; Reduced thins them for drawing.
 	T, Response, CmdT, Command []float64
-	// PredT, PredY are the prediction shifted to the step instant; empty
-	// without one.
+	// PredT, PredY are the prediction shifted to the step instant, every
+	// simulated sample over the window; empty without one.
 	PredT, PredY []float64
 	// BandLo and BandHi bound the settling band, from the step instant to
 	// the end of the window.
@@ -136,20 +137,15 @@ func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, sta
 	}
 	p.End = p.Start + window
 	t0 := math.Max(tr.Time[lo], p.Start-0.1*window)
-	var t, y, c []float64
-	for k := lo; k < end && tr.Time[k] <= p.End; k++ {
-		if tr.Time[k] < t0 {
-			continue
-		}
-		t = append(t, tr.Time[k])
-		y = append(y, tr.Response[k])
-		if k < len(tr.Command) {
-			c = append(c, tr.Command[k])
-		}
+	first := lo + sort.SearchFloat64s(tr.Time[lo:end], t0)
+	stop := first
+	for stop < end && tr.Time[stop] <= p.End {
+		stop++
 	}
-	p.T, p.Response = Downsample(t, y, PointsFew)
-	if len(c) == len(t) {
-		p.CmdT, p.Command = Downsample(t, c, PointsFew)
+	p.T = append([]float64(nil), tr.Time[first:stop]...)
+	p.Response = append([]float64(nil), tr.Response[first:stop]...)
+	if stop <= len(tr.Command) {
+		p.CmdT, p.Command = p.T, append([]float64(nil), tr.Command[first:stop]...)
 	}
 	centre := s.To
 	if v, ok := s.Metrics.Lookup(string(metrics.FinalValue)); ok && v.OK {
@@ -210,9 +206,54 @@ func shiftedPrediction(b *acceptance.Batch, s *acceptance.StepResult, t0, at, en
 			pt = append(pt, tt)
 			py = append(py, tr.Response[k])
 		}
-		return Downsample(pt, py, PointsFew)
+		return pt, py
 	}
 	return nil, nil
+}
+
+// Reduced returns a copy of the panel with its series reduced for a plot
+// w × h millimetres on paper, to what that plot can show: the response and
+// the prediction keep the envelope of each of Buckets(w) time buckets (see
+// Envelope) and of that the samples a line needs to pass within TolMM of
+// every other, the lowest and the highest; the command, drawn as steps,
+// keeps the samples at which it changes. The panel itself is not changed,
+// and its plot has the same axes.
+func (pn *Panel) Reduced(w, h float64) Panel {
+	r := *pn
+	buckets := Buckets(w)
+	tol := 0.0
+	if ymin, ymax := pn.valueRange(); h > 0 {
+		// The data area is smaller than the plot, so this tolerance is
+		// less than TolMM on paper.
+		tol = TolMM * (ymax - ymin) / h
+	}
+	reduce := func(t, y []float64) ([]float64, []float64) {
+		t, y = Envelope(t, y, buckets)
+		return simplify(t, y, tol)
+	}
+	r.T, r.Response = reduce(pn.T, pn.Response)
+	r.PredT, r.PredY = reduce(pn.PredT, pn.PredY)
+	if len(pn.Command) > 0 {
+		t, c := levelChanges(pn.CmdT, pn.Command)
+		r.CmdT, r.Command = Envelope(t, c, buckets)
+	}
+	return r
+}
+
+// valueRange is the value axis of the panel's plot: the settling band, the
+// step's levels, the response and the prediction, with a margin.
+func (pn *Panel) valueRange() (ymin, ymax float64) {
+	ymin, ymax = math.Min(pn.BandLo, math.Min(pn.From, pn.To)), math.Max(pn.BandHi, math.Max(pn.From, pn.To))
+	for _, ys := range [][]float64{pn.Response, pn.PredY} {
+		for _, v := range ys {
+			ymin, ymax = math.Min(ymin, v), math.Max(ymax, v)
+		}
+	}
+	pad := 0.06 * (ymax - ymin)
+	if pad == 0 {
+		pad = 1
+	}
+	return ymin - pad, ymax + pad
 }
 
 // Plot lays the panel out: the settling band, the command, the prediction,
@@ -251,15 +292,8 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	p.Add(band)
 	p.Legend.Add("settling band", band)
 
-	line := func(t, y []float64) (*plotter.Line, error) {
-		xys := make(plotter.XYs, len(t))
-		for i := range t {
-			xys[i] = plotter.XY{X: t[i], Y: y[i]}
-		}
-		return plotter.NewLine(xys)
-	}
 	if len(pn.Command) > 0 {
-		l, err := line(pn.CmdT, pn.Command)
+		l, err := newLine(pn.CmdT, pn.Command)
 		if err != nil {
 			return nil, fmt.Errorf("chart: step %d command: %w", pn.Step, err)
 		}
@@ -269,7 +303,7 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 		p.Legend.Add("command", l)
 	}
 	if len(pn.PredT) > 0 {
-		l, err := line(pn.PredT, pn.PredY)
+		l, err := newLine(pn.PredT, pn.PredY)
 		if err != nil {
 			return nil, fmt.Errorf("chart: step %d prediction: %w", pn.Step, err)
 		}
@@ -278,28 +312,18 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 		p.Legend.Add("prediction ("+predictionKind+")", l)
 	}
 	if len(pn.T) > 0 {
-		l, err := line(pn.T, pn.Response)
+		l, err := newLine(pn.T, pn.Response)
 		if err != nil {
 			return nil, fmt.Errorf("chart: step %d response: %w", pn.Step, err)
 		}
-		styleLine(l, kindOf(pn.Verdict))
+		styleLine(l.Line, kindOf(pn.Verdict))
 		l.Width = vg.Points(1)
 		p.Add(l)
 		p.Legend.Add("response ("+strings.ToLower(string(pn.Verdict))+")", l)
 	}
-	ymin, ymax := math.Min(pn.BandLo, math.Min(pn.From, pn.To)), math.Max(pn.BandHi, math.Max(pn.From, pn.To))
-	for _, ys := range [][]float64{pn.Response, pn.PredY} {
-		for _, v := range ys {
-			ymin, ymax = math.Min(ymin, v), math.Max(ymax, v)
-		}
-	}
-	pad := 0.06 * (ymax - ymin)
-	if pad == 0 {
-		pad = 1
-	}
-	ymin, ymax = ymin-pad, ymax+pad
+	ymin, ymax := pn.valueRange()
 	for _, m := range pn.Marks {
-		l, err := plotter.NewLine(plotter.XYs{{X: m.At, Y: ymin}, {X: m.At, Y: ymax}})
+		l, err := newLine([]float64{m.At, m.At}, []float64{ymin, ymax})
 		if err != nil {
 			return nil, fmt.Errorf("chart: step %d mark: %w", pn.Step, err)
 		}

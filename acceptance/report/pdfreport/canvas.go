@@ -8,6 +8,7 @@ import (
 	"image/color"
 	"image/png"
 	"math"
+	"strconv"
 
 	"github.com/jung-kurt/gofpdf"
 	stdfont "golang.org/x/image/font"
@@ -28,10 +29,19 @@ const mmPerPoint = 25.4 / 72
 // Transforms (Translate, Rotate, Scale) are kept as a matrix on the Go side
 // and applied to every point, so the page's own coordinate system is never
 // changed and Push/Pop need no PDF graphics-state operators.
+//
+// Paths are written as the same operators, with the same number formats,
+// as gofpdf's MoveTo, LineTo, CurveBezierCubicTo, ClosePath and DrawPath
+// write, but assembled in one buffer and handed to the page at once; a
+// path therefore leaves the document's current position where it was.
+// Line width, dash pattern, colours and font are sent only when they
+// differ from what the canvas last sent.
 type Canvas struct {
 	pdf        *gofpdf.Fpdf
 	x, y, w, h float64 // placement on the page, mm
 	family     string  // gofpdf family of the embedded font
+	k          float64 // points per millimetre, as gofpdf scales
+	pageH      float64 // page height, mm
 
 	st    canvasState
 	stack []canvasState
@@ -39,8 +49,33 @@ type Canvas struct {
 	// The last values sent to gofpdf, so that unchanged ones are not
 	// written again.
 	sentWidth float64
-	sentDash  string
+	dashSent  bool      // sentDash and sentPhase hold what was sent
+	sentDash  []float64 // in millimetres; empty for a solid line
+	sentPhase float64
 	sentAlpha float64
+	stroke    sentColour
+	fill      sentColour
+	text      sentColour
+	fontSent  bool
+	fontStyle string
+	fontSize  float64
+
+	ops []byte // the path being assembled
+}
+
+// sentColour is a colour last sent to gofpdf.
+type sentColour struct {
+	ok      bool
+	r, g, b int
+}
+
+// same reports whether r, g, b is the colour last sent, and records it.
+func (s *sentColour) same(r, g, b int) bool {
+	if s.ok && s.r == r && s.g == g && s.b == b {
+		return true
+	}
+	*s = sentColour{ok: true, r: r, g: g, b: b}
+	return false
 }
 
 type canvasState struct {
@@ -77,7 +112,9 @@ func (m affine) apply(p vg.Point) (float64, float64) {
 // on the current page of pdf, drawing text in the given font family, which
 // must have been added to pdf with regular and bold styles.
 func NewCanvas(pdf *gofpdf.Fpdf, x, y, w, h float64, family string) *Canvas {
-	c := &Canvas{pdf: pdf, x: x, y: y, w: w, h: h, family: family, sentWidth: -1, sentDash: "-", sentAlpha: 1}
+	c := &Canvas{pdf: pdf, x: x, y: y, w: w, h: h, family: family, sentWidth: -1, sentAlpha: 1}
+	c.k = pdf.GetConversionRatio()
+	_, c.pageH = pdf.GetPageSize()
 	c.st = canvasState{m: identity(), width: vg.Points(1), colour: color.Black}
 	return c
 }
@@ -162,7 +199,7 @@ func (c *Canvas) Stroke(p vg.Path) {
 	}
 	c.useDash()
 	if c.trace(p) {
-		c.pdf.DrawPath("D")
+		c.paint('S')
 	}
 	c.endAlpha()
 }
@@ -173,39 +210,37 @@ func (c *Canvas) Fill(p vg.Path) {
 		return
 	}
 	if c.trace(p) {
-		c.pdf.DrawPath("F")
+		c.paint('f')
 	}
 	c.endAlpha()
 }
 
-// trace emits the path operators; it reports whether anything was emitted.
+// trace assembles the path operators in c.ops; it reports whether anything
+// was assembled.
 func (c *Canvas) trace(p vg.Path) bool {
+	c.ops = c.ops[:0]
 	open := false
-	emitted := false
 	var cur vg.Point
 	for _, comp := range p {
 		switch comp.Type {
 		case vg.MoveComp:
-			x, y := c.page(comp.Pos)
-			c.pdf.MoveTo(x, y)
-			cur, open, emitted = comp.Pos, true, true
+			c.point(comp.Pos, 'm')
+			cur, open = comp.Pos, true
 		case vg.LineComp:
-			x, y := c.page(comp.Pos)
 			if !open {
-				c.pdf.MoveTo(x, y)
-				open, emitted = true, true
+				c.point(comp.Pos, 'm')
+				open = true
 			} else {
-				c.pdf.LineTo(x, y)
+				c.point(comp.Pos, 'l')
 			}
 			cur = comp.Pos
 		case vg.ArcComp:
 			cur = c.arc(comp, open)
-			open, emitted = true, true
+			open = true
 		case vg.CurveComp:
 			if !open {
-				x, y := c.page(cur)
-				c.pdf.MoveTo(x, y)
-				open, emitted = true, true
+				c.point(cur, 'm')
+				open = true
 			}
 			var c1, c2 vg.Point
 			switch len(comp.Control) {
@@ -216,23 +251,58 @@ func (c *Canvas) trace(p vg.Path) bool {
 			case 2:
 				c1, c2 = comp.Control[0], comp.Control[1]
 			default:
-				x, y := c.page(comp.Pos)
-				c.pdf.LineTo(x, y)
+				c.point(comp.Pos, 'l')
 				cur = comp.Pos
 				continue
 			}
-			x1, y1 := c.page(c1)
-			x2, y2 := c.page(c2)
-			x, y := c.page(comp.Pos)
-			c.pdf.CurveBezierCubicTo(x1, y1, x2, y2, x, y)
+			c.curve(c1, c2, comp.Pos)
 			cur = comp.Pos
 		case vg.CloseComp:
 			if open {
-				c.pdf.ClosePath()
+				c.ops = append(c.ops, 'h', '\n')
 			}
 		}
 	}
-	return emitted
+	return len(c.ops) > 0
+}
+
+// paint ends the assembled path with the painting operator op ('S' to
+// stroke, 'f' to fill) and writes it to the page, one operator a line as
+// gofpdf writes them.
+func (c *Canvas) paint(op byte) {
+	c.ops = append(c.ops, op)
+	c.pdf.RawWriteStr(string(c.ops))
+}
+
+// point appends "x y op" for a vg point, in PDF points with two decimals
+// (gofpdf's MoveTo and LineTo format).
+func (c *Canvas) point(p vg.Point, op byte) {
+	x, y := c.page(p)
+	c.ops = appendNum(c.ops, x*c.k, 2)
+	c.ops = append(c.ops, ' ')
+	c.ops = appendNum(c.ops, (c.pageH-y)*c.k, 2)
+	c.ops = append(c.ops, ' ', op, '\n')
+}
+
+// curve appends a cubic Bézier segment "x1 y1 x2 y2 x y c" with five
+// decimals (gofpdf's CurveBezierCubicTo format).
+func (c *Canvas) curve(c1, c2, to vg.Point) {
+	for _, p := range [3]vg.Point{c1, c2, to} {
+		x, y := c.page(p)
+		c.ops = appendNum(c.ops, x*c.k, 5)
+		c.ops = append(c.ops, ' ')
+		c.ops = appendNum(c.ops, (c.pageH-y)*c.k, 5)
+		c.ops = append(c.ops, ' ')
+	}
+	c.ops = append(c.ops, 'c', '\n')
+}
+
+// appendNum appends v with prec decimals as fmt's %.Nf prints it.
+func appendNum(b []byte, v float64, prec int) []byte {
+	if math.IsInf(v, 1) {
+		return append(b, "Inf"...) // fmt drops the plus sign
+	}
+	return strconv.AppendFloat(b, v, 'f', prec, 64)
 }
 
 // arc approximates an arc by straight segments of at most 5 degrees, fine
@@ -250,11 +320,10 @@ func (c *Canvas) arc(comp vg.PathComp, open bool) vg.Point {
 			X: comp.Pos.X + comp.Radius*vg.Length(math.Cos(a)),
 			Y: comp.Pos.Y + comp.Radius*vg.Length(math.Sin(a)),
 		}
-		x, y := c.page(pt)
 		if i == 0 && !open {
-			c.pdf.MoveTo(x, y)
+			c.point(pt, 'm')
 		} else {
-			c.pdf.LineTo(x, y)
+			c.point(pt, 'l')
 		}
 		last = pt
 	}
@@ -273,8 +342,10 @@ func (c *Canvas) useColour(fill bool) bool {
 		R: uint8(r * 0xFFFF / a >> 8), G: uint8(g * 0xFFFF / a >> 8), B: uint8(b * 0xFFFF / a >> 8), A: 0xFF,
 	}
 	if fill {
-		c.pdf.SetFillColor(int(rgb.R), int(rgb.G), int(rgb.B))
-	} else {
+		if !c.fill.same(int(rgb.R), int(rgb.G), int(rgb.B)) {
+			c.pdf.SetFillColor(int(rgb.R), int(rgb.G), int(rgb.B))
+		}
+	} else if !c.stroke.same(int(rgb.R), int(rgb.G), int(rgb.B)) {
 		c.pdf.SetDrawColor(int(rgb.R), int(rgb.G), int(rgb.B))
 	}
 	alpha := float64(a) / 0xFFFF
@@ -292,32 +363,45 @@ func (c *Canvas) endAlpha() {
 	}
 }
 
+// useDash sends the current dash pattern, scaled to millimetres, unless it
+// is the one last sent. A pattern without a positive dash is solid.
 func (c *Canvas) useDash() {
 	k := mmPerPoint * c.scale()
-	var pattern []float64
 	solid := true
 	for _, d := range c.st.dashes {
-		pattern = append(pattern, float64(d)*k)
 		if d > 0 {
 			solid = false
+			break
 		}
 	}
-	if solid {
-		pattern = nil
-	}
-	key := ""
+	phase := 0.0
+	n := 0
 	if !solid {
-		key = formatFloats(pattern) + "@" + formatFloats([]float64{float64(c.st.offset) * k})
+		phase = float64(c.st.offset) * k
+		n = len(c.st.dashes)
 	}
-	if key == c.sentDash {
-		return
+	if c.dashSent && len(c.sentDash) == n && (solid || phase == c.sentPhase) {
+		same := true
+		for i := 0; i < n; i++ {
+			if c.sentDash[i] != float64(c.st.dashes[i])*k {
+				same = false
+				break
+			}
+		}
+		if same {
+			return
+		}
 	}
+	c.sentDash = c.sentDash[:0]
+	for i := 0; i < n; i++ {
+		c.sentDash = append(c.sentDash, float64(c.st.dashes[i])*k)
+	}
+	c.sentPhase, c.dashSent = phase, true
 	if solid {
 		c.pdf.SetDashPattern([]float64{}, 0)
 	} else {
-		c.pdf.SetDashPattern(pattern, float64(c.st.offset)*k)
+		c.pdf.SetDashPattern(c.sentDash, phase)
 	}
-	c.sentDash = key
 }
 
 // FillString sets text with its baseline starting at pt, in the embedded
@@ -332,9 +416,14 @@ func (c *Canvas) FillString(f font.Face, pt vg.Point, text string) {
 	if f.Font.Weight >= stdfont.WeightSemiBold {
 		style = "B"
 	}
-	c.pdf.SetFont(c.family, style, size)
+	if !c.fontSent || style != c.fontStyle || size != c.fontSize {
+		c.pdf.SetFont(c.family, style, size)
+		c.fontSent, c.fontStyle, c.fontSize = true, style, size
+	}
 	r, g, b, _ := c.st.colour.RGBA()
-	c.pdf.SetTextColor(int(r>>8), int(g>>8), int(b>>8))
+	if !c.text.same(int(r>>8), int(g>>8), int(b>>8)) {
+		c.pdf.SetTextColor(int(r>>8), int(g>>8), int(b>>8))
+	}
 	x, y := c.page(pt)
 	m := c.st.m
 	angle := math.Atan2(m.b, m.a) * 180 / math.Pi

@@ -61,17 +61,67 @@ func verdictWord(v acceptance.Verdict) string {
 }
 
 // layout wraps the document with the drawing primitives the report uses.
+//
+// A font, colour or line width equal to the one in force is not set again,
+// so that a table does not write a font selection for every cell. gofpdf
+// tells the colours and the line width in force; the font it does not, so
+// the layout remembers the one it last selected (see keepFont and
+// forgetFont for what else changes it).
 type layout struct {
 	pdf *gofpdf.Fpdf
+
+	fontKnown bool // fontStyle and fontSize are the font in force
+	fontStyle string
+	fontSize  float64
 }
 
-func (l *layout) font(style string, size float64) { l.pdf.SetFont(fontFamily, style, size) }
+func (l *layout) font(style string, size float64) {
+	if l.fontKnown && style == l.fontStyle && size == l.fontSize {
+		return
+	}
+	l.pdf.SetFont(fontFamily, style, size)
+	l.fontKnown, l.fontStyle, l.fontSize = true, style, size
+}
 
-func (l *layout) textColour(c rgb) { l.pdf.SetTextColor(c.r, c.g, c.b) }
+// keepFont returns a function that restores what the layout knows of the
+// font in force. The page header and footer run inside gofpdf's page break,
+// which selects the font of before the break again once they are done.
+func (l *layout) keepFont() func() {
+	known, style, size := l.fontKnown, l.fontStyle, l.fontSize
+	return func() { l.fontKnown, l.fontStyle, l.fontSize = known, style, size }
+}
 
-func (l *layout) fillColour(c rgb) { l.pdf.SetFillColor(c.r, c.g, c.b) }
+// forgetFont is called after something other than font selected a font.
+func (l *layout) forgetFont() { l.fontKnown = false }
 
-func (l *layout) drawColour(c rgb) { l.pdf.SetDrawColor(c.r, c.g, c.b) }
+func (l *layout) textColour(c rgb) {
+	if r, g, b := l.pdf.GetTextColor(); r == c.r && g == c.g && b == c.b {
+		return
+	}
+	l.pdf.SetTextColor(c.r, c.g, c.b)
+}
+
+func (l *layout) fillColour(c rgb) {
+	if r, g, b := l.pdf.GetFillColor(); r == c.r && g == c.g && b == c.b {
+		return
+	}
+	l.pdf.SetFillColor(c.r, c.g, c.b)
+}
+
+func (l *layout) drawColour(c rgb) {
+	if r, g, b := l.pdf.GetDrawColor(); r == c.r && g == c.g && b == c.b {
+		return
+	}
+	l.pdf.SetDrawColor(c.r, c.g, c.b)
+}
+
+// lineWidth sets the width of ruled lines, in millimetres.
+func (l *layout) lineWidth(w float64) {
+	if l.pdf.GetLineWidth() == w {
+		return
+	}
+	l.pdf.SetLineWidth(w)
+}
 
 // fit cleans s and shortens it with an ellipsis so that it fits in a cell
 // of width w in the current font.
@@ -282,13 +332,18 @@ func (l *layout) table(cols []column, rows [][]cell) {
 			}
 			l.textColour(ink)
 			for k, line := range lines[i] {
+				if line == "" {
+					// An empty cell without border or fill draws nothing;
+					// the row has room, so it cannot break the page.
+					continue
+				}
 				l.pdf.SetXY(x, y+0.6+float64(k)*lineH)
 				l.pdf.CellFormat(c.width, lineH, line, "", 0, c.align, false, 0, "")
 			}
 			x += c.width
 		}
 		l.drawColour(ruleGrey)
-		l.pdf.SetLineWidth(0.15)
+		l.lineWidth(0.15)
 		l.pdf.Line(marginL, y+h, marginL+contentW, y+h)
 		l.pdf.SetXY(marginL, y+h)
 	}

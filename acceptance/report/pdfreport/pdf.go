@@ -1,6 +1,7 @@
 package pdfreport
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -50,12 +51,36 @@ func Write(w io.Writer, b *acceptance.Batch, o Options) error {
 // WriteDigest writes the PDF report of a digested batch to w, so that a
 // caller writing several reports digests the batch once.
 func WriteDigest(w io.Writer, d *digest.Digest, o Options) error {
+	// gofpdf writes the pages uncompressed; writeCompressed compresses
+	// them as gofpdf would, at less cost.
+	pdf, err := layOut(d, o, false)
+	if err != nil {
+		return err
+	}
+	var doc bytes.Buffer
+	if err := pdf.Output(&doc); err != nil {
+		return fmt.Errorf("pdfreport: writing the report: %w", err)
+	}
+	if o.Uncompressed {
+		_, err = w.Write(doc.Bytes())
+	} else {
+		err = writeCompressed(w, doc.Bytes())
+	}
+	if err != nil {
+		return fmt.Errorf("pdfreport: writing the report: %w", err)
+	}
+	return nil
+}
+
+// layOut lays the report out in a new document, to be written by its
+// Output method; gofpdf compresses the pages when compress is set.
+func layOut(d *digest.Digest, o Options, compress bool) (*gofpdf.Fpdf, error) {
 	if d == nil || d.Batch == nil {
-		return fmt.Errorf("pdfreport: no batch to report")
+		return nil, fmt.Errorf("pdfreport: no batch to report")
 	}
 	b := d.Batch
 	pdf := gofpdf.New("P", "mm", "A4", "")
-	pdf.SetCompression(!o.Uncompressed)
+	pdf.SetCompression(compress)
 	pdf.SetCatalogSort(true)
 	pdf.SetCreationDate(d.Date)
 	pdf.SetModificationDate(d.Date)
@@ -65,7 +90,7 @@ func WriteDigest(w io.Writer, d *digest.Digest, o Options) error {
 	pdf.AddUTF8FontFromBytes(fontFamily, "", liberationsansregular.TTF)
 	pdf.AddUTF8FontFromBytes(fontFamily, "B", liberationsansbold.TTF)
 	if err := pdf.Error(); err != nil {
-		return fmt.Errorf("pdfreport: embedding the font: %w", err)
+		return nil, fmt.Errorf("pdfreport: embedding the font: %w", err)
 	}
 
 	r := &report{layout: layout{pdf: pdf}, b: b, d: d, o: o, id: d.ID, unit: d.ResponseUnit}
@@ -85,7 +110,7 @@ func WriteDigest(w io.Writer, d *digest.Digest, o Options) error {
 	pdf.SetFooterFunc(r.footer)
 
 	if err := r.logo(); err != nil {
-		return fmt.Errorf("pdfreport: %w", err)
+		return nil, fmt.Errorf("pdfreport: %w", err)
 	}
 	// The one-minute summary first, then the method and the sign-off, then
 	// the detail.
@@ -102,22 +127,19 @@ func WriteDigest(w io.Writer, d *digest.Digest, o Options) error {
 	}
 	for _, s := range steps {
 		if err := s.run(); err != nil {
-			return fmt.Errorf("pdfreport: %s: %w", s.what, err)
+			return nil, fmt.Errorf("pdfreport: %s: %w", s.what, err)
 		}
 	}
 	for _, i := range b.PageUnits(o.AllUnits) {
 		if err := r.unitPage(i); err != nil {
-			return fmt.Errorf("pdfreport: unit %q: %w", b.Units[i].Unit, err)
+			return nil, fmt.Errorf("pdfreport: unit %q: %w", b.Units[i].Unit, err)
 		}
 	}
 	r.cautions()
 	if err := pdf.Error(); err != nil {
-		return fmt.Errorf("pdfreport: laying out the report: %w", err)
+		return nil, fmt.Errorf("pdfreport: laying out the report: %w", err)
 	}
-	if err := pdf.Output(w); err != nil {
-		return fmt.Errorf("pdfreport: writing the report: %w", err)
-	}
-	return nil
+	return pdf, nil
 }
 
 // report holds what every page needs.
@@ -134,6 +156,7 @@ type report struct {
 }
 
 func (r *report) header() {
+	defer r.keepFont()()
 	p := r.pdf
 	p.SetXY(marginL, 8)
 	r.font("B", 9)
@@ -164,6 +187,7 @@ func (r *report) header() {
 }
 
 func (r *report) footer() {
+	defer r.keepFont()()
 	p := r.pdf
 	r.drawColour(ruleGrey)
 	p.SetLineWidth(0.3)
@@ -205,6 +229,7 @@ func (r *report) logo() error {
 func (r *report) drawPlot(pl *plot.Plot, x, y, w, h float64) {
 	c := NewCanvas(r.pdf, x, y, w, h, fontFamily)
 	pl.Draw(draw.New(c))
+	r.forgetFont()
 	r.pdf.SetDashPattern([]float64{}, 0)
 	r.pdf.SetLineWidth(0.2)
 	r.pdf.SetAlpha(1, "Normal")

@@ -1,7 +1,6 @@
 package pdfreport
 
 import (
-	"strconv"
 	"strings"
 	"sync"
 	"unicode"
@@ -82,13 +81,4 @@ func Clean(s string) string {
 		}
 	}
 	return b.String()
-}
-
-// formatFloats joins numbers for a cache key.
-func formatFloats(v []float64) string {
-	parts := make([]string, len(v))
-	for i, x := range v {
-		parts[i] = strconv.FormatFloat(x, 'g', -1, 64)
-	}
-	return strings.Join(parts, ",")
 }

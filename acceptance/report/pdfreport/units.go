@@ -270,7 +270,9 @@ func (r *report) unitFigure(i int) error {
 				y = p.GetY()
 			}
 		}
-		pl, err := f.Panels[k].Plot(f.ResponseUnit, f.PredictionKind)
+		// Each series is reduced to what the panel shows on paper.
+		pn := f.Panels[k].Reduced(w, panelH)
+		pl, err := pn.Plot(f.ResponseUnit, f.PredictionKind)
 		if err != nil {
 			return err
 		}

@@ -1,0 +1,57 @@
+package pdfreport
+
+import (
+	"context"
+	"io"
+	"testing"
+
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/demo"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/rigdata"
+)
+
+// benchDigest judges n demo units of 6 s (three steps at 1 kHz) the way the
+// command line does: no record is kept, so every unit page reads its log
+// again.
+func benchDigest(b *testing.B, n int) *digest.Digest {
+	b.Helper()
+	specPath, logDir, err := demo.Write(b.TempDir(), demo.Options{Units: n, Duration: 6})
+	if err != nil {
+		b.Fatal(err)
+	}
+	spec, err := acceptance.LoadSpec(specPath)
+	if err != nil {
+		b.Fatal(err)
+	}
+	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	batch, err := acceptance.Run(context.Background(), spec, files,
+		acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepPageTraces})
+	if err != nil {
+		b.Fatal(err)
+	}
+	d, err := digest.New(batch)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return d
+}
+
+// BenchmarkWritePDF writes the report of 800 demo units: a unit table of
+// 800 rows and the detail pages of the 200 first units that did not pass.
+func BenchmarkWritePDF(b *testing.B) {
+	d := benchDigest(b, 800)
+	if n := len(d.Batch.PageUnits(false)); n < 150 {
+		b.Fatalf("%d unit pages, want the batch to fill about 200", n)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if err := WriteDigest(io.Discard, d, Options{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
