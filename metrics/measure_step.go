@@ -127,14 +127,18 @@ func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 		m.LastOutside = Unknown("command does not change, so there is no settling band")
 		return m
 	}
-	m.LastOutside = MeasureLastOutside(t, y, s.To, halfWidth)
+	// Without a final value the band is taken about the command; with one,
+	// about the final value (at the end).
+	aboutCommand := func() Value { return MeasureLastOutside(t, y, s.To, halfWidth) }
 	if len(y) < o.MinSamples {
 		m.setAll(fmt.Sprintf("step has only %s (%s s); %d are needed to measure it",
 			samples(len(y)), num(m.Duration), o.MinSamples))
+		m.LastOutside = aboutCommand()
 		return m
 	}
 	if why := timeGap(tr.Time, s, buf); why != "" {
 		m.setAll(why)
+		m.LastOutside = aboutCommand()
 		return m
 	}
 	tol := steadyFraction * halfWidth
@@ -160,11 +164,15 @@ func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 		why := "final value unknown: " + m.FinalValue.Why
 		m.SettlingTime = Unknown(why)
 		m.SteadyStateError, m.SteadyStateErrorPct = Unknown(why), Unknown(why)
+		m.LastOutside = aboutCommand()
 		return m
 	}
-	m.SettlingTime = MeasureSettlingTime(t, y, m.FinalValue.V, halfWidth)
+	// One backward scan gives both the settling time and the last sample
+	// outside the band.
+	last := lastOutside(y, m.FinalValue.V, halfWidth)
+	m.SettlingTime = settlingTime(t, y, m.FinalValue.V, halfWidth, last)
 	m.SteadyStateError, m.SteadyStateErrorPct = MeasureSteadyStateError(s.To, m.FinalValue.V, size)
-	m.LastOutside = MeasureLastOutside(t, y, m.FinalValue.V, halfWidth)
+	m.LastOutside = lastOutsideTime(t, last)
 	return m
 }
 
@@ -191,15 +199,22 @@ func timeGap(time []float64, s Step, buf *[]float64) string {
 	// The intervals are finite and positive (the trace is validated), so
 	// plain comparisons do; the median is needed only when some interval is
 	// ten times the shortest.
+	// One pass: the shortest interval over the whole span, the longest
+	// from the step instant on.
 	shortest := math.Inf(1)
-	for i := lo; i < s.End-1; i++ {
-		if g := time[i+1] - time[i]; g < shortest {
+	first := max(s.Start, lo+1)
+	for i := lo + 1; i < first; i++ {
+		if g := time[i] - time[i-1]; g < shortest {
 			shortest = g
 		}
 	}
 	worst, at := 0.0, -1
-	for i := max(s.Start, lo+1); i < s.End; i++ {
-		if g := time[i] - time[i-1]; g > worst {
+	for i := first; i < s.End; i++ {
+		g := time[i] - time[i-1]
+		if g < shortest {
+			shortest = g
+		}
+		if g > worst {
 			worst, at = g, i
 		}
 	}

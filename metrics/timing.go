@@ -138,7 +138,12 @@ func MeasureOvershoot(peak, initial, final float64) Value {
 // from memory). It is 0 when no sample is outside the band, and unknown when
 // the last sample is still outside.
 func MeasureSettlingTime(t, y []float64, final, halfWidth float64) Value {
-	i := lastOutside(y, final, halfWidth)
+	return settlingTime(t, y, final, halfWidth, lastOutside(y, final, halfWidth))
+}
+
+// settlingTime is MeasureSettlingTime given i, the last sample outside the
+// band (lastOutside).
+func settlingTime(t, y []float64, final, halfWidth float64, i int) Value {
 	switch {
 	case len(y) == 0:
 		return Unknown("step has no samples")
@@ -162,7 +167,12 @@ func MeasureLastOutside(t, y []float64, centre, halfWidth float64) Value {
 	if len(y) == 0 {
 		return Unknown("step has no samples")
 	}
-	i := lastOutside(y, centre, halfWidth)
+	return lastOutsideTime(t, lastOutside(y, centre, halfWidth))
+}
+
+// lastOutsideTime is MeasureLastOutside given i, the last sample outside
+// the band (lastOutside); t is not empty.
+func lastOutsideTime(t []float64, i int) Value {
 	if i < 0 {
 		return Known(0)
 	}
