@@ -130,8 +130,11 @@ func layOut(d *digest.Digest, o Options, compress bool) (*gofpdf.Fpdf, error) {
 			return nil, fmt.Errorf("pdfreport: %s: %w", s.what, err)
 		}
 	}
-	for _, i := range b.PageUnits(o.AllUnits) {
-		if err := r.unitPage(i); err != nil {
+	pages := b.PageUnits(o.AllUnits)
+	next, stop := figures(b, pages)
+	defer stop()
+	for _, i := range pages {
+		if err := r.unitPage(i, next()); err != nil {
 			return nil, fmt.Errorf("pdfreport: unit %q: %w", b.Units[i].Unit, err)
 		}
 	}

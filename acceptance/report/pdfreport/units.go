@@ -7,6 +7,9 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
+
+	"gonum.org/v1/plot"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/chart"
@@ -147,7 +150,7 @@ func (r *report) unitTable() {
 // maxTableRows is the most rows a unit table lists; the XLSX lists all.
 const maxTableRows = 1000
 
-func (r *report) unitPage(i int) error {
+func (r *report) unitPage(i int, fig *unitFig) error {
 	p, u := r.pdf, &r.b.Units[i]
 	p.AddPage()
 	r.font("B", 13)
@@ -192,7 +195,7 @@ func (r *report) unitPage(i int) error {
 			r.bullet(s, 9, 4.6)
 		}
 	}
-	if err := r.unitFigure(i); err != nil {
+	if err := r.unitFigure(i, fig); err != nil {
 		return err
 	}
 	for k := range u.Steps {
@@ -237,9 +240,71 @@ const (
 )
 
 // unitFigure draws the unit's steps, or says plainly why there is no chart.
-func (r *report) unitFigure(i int) error {
+// unitFig is a unit page's figure made ready away from the document: the
+// record read again, its panels laid out and thinned, their plots built.
+type unitFig struct {
+	f     *chart.UnitFigure
+	plots []*plot.Plot
+	w     float64 // panel width, mm
+	cols  int
+	err   error
+}
+
+// prepareFigure builds the figure of unit i. It reads the batch only, so
+// the figures of the next pages are prepared while one page is laid out.
+func prepareFigure(b *acceptance.Batch, i int) *unitFig {
+	f := chart.ForUnitSteps(b, i)
+	fig := &unitFig{f: f, cols: 1}
+	if len(f.Panels) == 0 {
+		return fig
+	}
+	if len(f.Panels) > 1 {
+		fig.cols = 2
+	}
+	fig.w = (contentW - panelGap*float64(fig.cols-1)) / float64(fig.cols)
+	for k := range f.Panels {
+		// Each series is reduced to what the panel shows on paper.
+		pn := f.Panels[k].Reduced(fig.w, panelH)
+		pl, err := pn.Plot(f.ResponseUnit, f.PredictionKind)
+		if err != nil {
+			fig.err = err
+			return fig
+		}
+		fig.plots = append(fig.plots, pl)
+	}
+	return fig
+}
+
+// figures prepares the figures of the given units in order, a few pages
+// ahead of the caller, on one goroutine; stop ends it early.
+func figures(b *acceptance.Batch, units []int) (next func() *unitFig, stop func()) {
+	const ahead = 2 // records held at once beyond the page being laid out
+	ch := make(chan *unitFig, ahead)
+	done := make(chan struct{})
+	go func() {
+		defer close(ch)
+		for _, i := range units {
+			select {
+			case ch <- prepareFigure(b, i):
+			case <-done:
+				return
+			}
+		}
+	}()
+	var once sync.Once
+	return func() *unitFig { return <-ch }, func() {
+		once.Do(func() { close(done) })
+		for range ch { // let the goroutine finish
+		}
+	}
+}
+
+func (r *report) unitFigure(i int, fig *unitFig) error {
 	p, u := r.pdf, &r.b.Units[i]
-	f := chart.ForUnitSteps(r.b, i)
+	f := fig.f
+	if fig.err != nil {
+		return fig.err
+	}
 	if len(f.Panels) == 0 {
 		r.subheading("Record", 8)
 		msg := "No chart: the record of this unit was not kept for the report."
@@ -254,11 +319,7 @@ func (r *report) unitFigure(i int) error {
 		r.para(msg, 9, 4.6, invalidText)
 		return nil
 	}
-	cols := 1
-	if len(f.Panels) > 1 {
-		cols = 2
-	}
-	w := (contentW - panelGap*float64(cols-1)) / float64(cols)
+	cols, w := fig.cols, fig.w
 	r.subheading("Response, command and prediction", panelH+2)
 	y := p.GetY()
 	for k := range f.Panels {
@@ -270,13 +331,7 @@ func (r *report) unitFigure(i int) error {
 				y = p.GetY()
 			}
 		}
-		// Each series is reduced to what the panel shows on paper.
-		pn := f.Panels[k].Reduced(w, panelH)
-		pl, err := pn.Plot(f.ResponseUnit, f.PredictionKind)
-		if err != nil {
-			return err
-		}
-		r.drawPlot(pl, marginL+float64(col)*(w+panelGap), y, w, panelH)
+		r.drawPlot(fig.plots[k], marginL+float64(col)*(w+panelGap), y, w, panelH)
 	}
 	p.SetY(y)
 	p.SetXY(marginL, p.GetY()+panelH+1)
