@@ -304,3 +304,21 @@ func TestIdentifyJSONContract(t *testing.T) {
 		t.Errorf("no-step log: exit %d, %q", code, stderr)
 	}
 }
+
+func TestMemoryLimit(t *testing.T) {
+	const MiB = 1 << 20
+	tests := []struct {
+		files int
+		want  int64
+	}{
+		{0, 256 * MiB},
+		{1000, 256 * MiB},
+		{20000, 256 * MiB}, // 117 MiB of summaries + 128 MiB fits under the floor
+		{50000, 50000*6<<10 + 128*MiB},
+	}
+	for _, tc := range tests {
+		if got := memoryLimit(tc.files); got != tc.want {
+			t.Errorf("memoryLimit(%d) = %d MiB, want %d MiB", tc.files, got/MiB, tc.want/MiB)
+		}
+	}
+}

@@ -141,7 +141,7 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	if f.workers < 0 {
 		return usageErr(fmt.Errorf("--workers %d: want 0 (one per core) or more", f.workers))
 	}
-	tuneGC()
+	tuneGC(len(files))
 	started := time.Now()
 	prog := newProgress(stderr, f.quiet)
 	var readBytes int64
@@ -345,14 +345,22 @@ func oneLine(s string, n int) string {
 
 // tuneGC trades a little memory for less collection work: a batch allocates
 // fast but keeps little (one summary per unit). Unless the user set GOGC or
-// GOMEMLIMIT, the collector runs at half its default frequency, with a
-// soft memory limit of 300 MiB that makes it run more often only when the
-// heap approaches the limit.
-func tuneGC() {
+// GOMEMLIMIT, the collector runs at a third of its default frequency, with a
+// soft memory limit that makes it run more often only when the heap
+// approaches the limit: 256 MiB, or the summaries the batch is expected to
+// keep (about 6 KiB per unit) plus 128 MiB for the work in hand when that
+// is more, so that a very large batch is not collected without end.
+func tuneGC(files int) {
 	if os.Getenv("GOGC") == "" {
 		debug.SetGCPercent(200)
 	}
 	if os.Getenv("GOMEMLIMIT") == "" {
-		debug.SetMemoryLimit(300 << 20)
+		debug.SetMemoryLimit(memoryLimit(files))
 	}
+}
+
+// memoryLimit is the soft memory limit tuneGC sets for a batch of files.
+func memoryLimit(files int) int64 {
+	const perUnit, working, floor = 6 << 10, 128 << 20, 256 << 20
+	return max(floor, int64(files)*perUnit+working)
 }
