@@ -2,10 +2,9 @@ package acceptance
 
 import (
 	"encoding/json"
-	"math"
 	"sort"
-	"strconv"
 
+	"github.com/stepgate/stepgate/acceptance/internal/jsonfmt"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -108,7 +107,7 @@ func (m MetricSet) MarshalJSON() ([]byte, error) {
 		if m.known&(1<<i) == 0 {
 			return append(b, "null"...)
 		}
-		return appendJSONFloat(b, m.v[i])
+		return jsonfmt.AppendFloat(b, m.v[i])
 	}), nil
 }
 
@@ -135,28 +134,6 @@ func metricObject(value func(b []byte, i int) []byte) []byte {
 		b = value(b, i)
 	}
 	return append(b, '}')
-}
-
-// appendJSONFloat appends v as encoding/json writes a float64: the shortest
-// representation that reads back exactly, in 'f' format except for
-// magnitudes below 1e-6 or from 1e21 on, which use an exponent without a
-// leading zero (e-7, not e-07). v must be finite: a Value that is known
-// always is (metrics.Known).
-func appendJSONFloat(b []byte, v float64) []byte {
-	abs := math.Abs(v)
-	format := byte('f')
-	if abs != 0 && (abs < 1e-6 || abs >= 1e21) {
-		format = 'e'
-	}
-	b = strconv.AppendFloat(b, v, format, -1, 64)
-	if format == 'e' {
-		n := len(b)
-		if n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
-			b[n-2] = b[n-1]
-			b = b[:n-1]
-		}
-	}
-	return b
 }
 
 // UnmarshalJSON reads the object MarshalJSON writes; null is unknown with no
@@ -218,7 +195,7 @@ func (g GapSet) MarshalJSON() ([]byte, error) {
 		if g.known&(1<<i) == 0 {
 			return append(b, "null"...)
 		}
-		return appendJSONFloat(b, g.v[i])
+		return jsonfmt.AppendFloat(b, g.v[i])
 	}), nil
 }
 

@@ -7,6 +7,7 @@ import (
 	"unicode/utf8"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/internal/jsonfmt"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -78,22 +79,7 @@ func (e *unitEncoder) unit(u *acceptance.UnitResult) {
 	e.member(d, `"reasons": `)
 	e.strings(d, u.Reasons)
 	e.member(d, `"steps": `)
-	switch {
-	case u.Steps == nil:
-		e.b = append(e.b, "null"...)
-	case len(u.Steps) == 0:
-		e.b = append(e.b, "[]"...)
-	default:
-		e.b = append(e.b, '[')
-		for i := range u.Steps {
-			if i > 0 {
-				e.b = append(e.b, ',')
-			}
-			e.nl(d + 1)
-			e.step(d+1, &u.Steps[i])
-		}
-		e.close(d, ']')
-	}
+	e.array(d, u.Steps == nil, len(u.Steps), func(i int) { e.step(d+1, &u.Steps[i]) })
 	e.member(d, `"samples": `)
 	e.int(u.Samples)
 	if u.Fit != nil {
@@ -123,22 +109,7 @@ func (e *unitEncoder) step(d int, s *acceptance.StepResult) {
 	e.member(m, `"metrics": `)
 	e.metricSet(m, &s.Metrics)
 	e.member(m, `"checks": `)
-	switch {
-	case s.Checks == nil:
-		e.b = append(e.b, "null"...)
-	case len(s.Checks) == 0:
-		e.b = append(e.b, "[]"...)
-	default:
-		e.b = append(e.b, '[')
-		for i := range s.Checks {
-			if i > 0 {
-				e.b = append(e.b, ',')
-			}
-			e.nl(m + 1)
-			e.check(m+1, &s.Checks[i])
-		}
-		e.close(m, ']')
-	}
+	e.array(m, s.Checks == nil, len(s.Checks), func(i int) { e.check(m+1, &s.Checks[i]) })
 	if s.Predicted != nil {
 		e.member(m, `"predicted": `)
 		e.prediction(m, s.Predicted)
@@ -316,19 +287,26 @@ func (e *unitEncoder) stringMap(d int, m map[string]string) {
 
 // strings appends s as an array of strings; null when nil.
 func (e *unitEncoder) strings(d int, s []string) {
+	e.array(d, s == nil, len(s), func(i int) { e.str(s[i]) })
+}
+
+// array appends a slice of n elements as encoding/json indents it at depth
+// d: null for a nil slice, [] for an empty one, else one element per line,
+// each appended by elem(i).
+func (e *unitEncoder) array(d int, isNil bool, n int, elem func(i int)) {
 	switch {
-	case s == nil:
+	case isNil:
 		e.b = append(e.b, "null"...)
-	case len(s) == 0:
+	case n == 0:
 		e.b = append(e.b, "[]"...)
 	default:
 		e.b = append(e.b, '[')
-		for i, v := range s {
+		for i := 0; i < n; i++ {
 			if i > 0 {
 				e.b = append(e.b, ',')
 			}
 			e.nl(d + 1)
-			e.str(v)
+			elem(i)
 		}
 		e.close(d, ']')
 	}
@@ -398,32 +376,11 @@ func (e *unitEncoder) float(v float64) {
 		e.b = append(e.b, "null"...)
 		return
 	}
-	e.b = appendFloat(e.b, v)
+	e.b = jsonfmt.AppendFloat(e.b, v)
 }
 
 func (e *unitEncoder) str(s string) {
 	e.b = appendString(e.b, s)
-}
-
-// appendFloat appends the finite v as encoding/json writes a float64: the
-// shortest representation that reads back exactly, in 'f' format except for
-// magnitudes below 1e-6 or from 1e21 on, which use an exponent without a
-// leading zero (1e-7, not 1e-07).
-func appendFloat(b []byte, v float64) []byte {
-	abs := math.Abs(v)
-	format := byte('f')
-	if abs != 0 && (abs < 1e-6 || abs >= 1e21) {
-		format = 'e'
-	}
-	b = strconv.AppendFloat(b, v, format, -1, 64)
-	if format == 'e' {
-		n := len(b)
-		if n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
-			b[n-2] = b[n-1]
-			b = b[:n-1]
-		}
-	}
-	return b
 }
 
 const hexDigits = "0123456789abcdef"

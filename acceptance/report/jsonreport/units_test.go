@@ -489,37 +489,6 @@ func FuzzAppendString(f *testing.F) {
 	})
 }
 
-// appendFloat formats as encoding/json does: the extremes, powers of ten
-// around the format switches and random bit patterns.
-func TestAppendFloat(t *testing.T) {
-	check := func(v float64) {
-		t.Helper()
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return
-		}
-		want, err := json.Marshal(v)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if got := appendFloat(nil, v); !bytes.Equal(got, want) {
-			t.Fatalf("appendFloat(%v) = %s, want %s", v, got, want)
-		}
-	}
-	for _, v := range extremes {
-		check(v)
-	}
-	for e := -330; e <= 310; e++ {
-		p := math.Pow(10, float64(e))
-		for _, v := range []float64{p, math.Nextafter(p, 0), math.Nextafter(p, math.Inf(1)), -p, 1.5 * p} {
-			check(v)
-		}
-	}
-	rng := rand.New(rand.NewPCG(3, 4))
-	for range 20000 {
-		check(math.Float64frombits(rng.Uint64()))
-	}
-}
-
 // writeUnitsMarshalIndent is the former writeUnits, one json.MarshalIndent
 // per unit, kept as the benchmark's baseline.
 func writeUnitsMarshalIndent(w *bufio.Writer, units []acceptance.UnitResult) error {
