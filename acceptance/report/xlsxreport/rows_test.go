@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
@@ -186,5 +187,22 @@ func TestPackedSheetsCleanedUp(t *testing.T) {
 		if l := left(); len(l) != 0 {
 			t.Errorf("after a write failing at byte %d: %v left in the temporary directory", n, l)
 		}
+	}
+}
+
+// TestPackedSheetsWithoutTemporaryDirectory writes a workbook when the
+// temporary directory cannot be used: the same bytes, from memory.
+func TestPackedSheetsWithoutTemporaryDirectory(t *testing.T) {
+	var want bytes.Buffer
+	if err := Write(&want, testBatch()); err != nil {
+		t.Fatal(err)
+	}
+	t.Setenv("TMPDIR", filepath.Join(t.TempDir(), "missing"))
+	var got bytes.Buffer
+	if err := Write(&got, testBatch()); err != nil {
+		t.Fatalf("no temporary directory: %v", err)
+	}
+	if !bytes.Equal(got.Bytes(), want.Bytes()) {
+		t.Errorf("workbook written from memory differs from the one written through temporary files")
 	}
 }

@@ -86,7 +86,8 @@ var dimensionRef = regexp.MustCompile(`<dimension ref="[^"]*"\s*(/>|></dimension
 // packedSheet is a long sheet's part, frame and rows, deflated into a
 // temporary file ready to be copied into the package as it is.
 type packedSheet struct {
-	file         *os.File
+	file         *os.File      // the temporary file, or nil when mem holds the data
+	mem          *bytes.Buffer // when no temporary file could be made
 	crc          uint32
 	size, packed int64 // uncompressed and compressed bytes
 }
@@ -99,11 +100,19 @@ func (p *packedSheet) close() {
 	}
 }
 
+// data is what the packed bytes are read from.
+func (p *packedSheet) data() io.Reader {
+	if p.file != nil {
+		return p.file
+	}
+	return p.mem
+}
+
 // packSheet deflates the sheet part zf with body's rows inserted after the
 // header row that excelize wrote, and its dimension set to the full table.
 // The long sheets are packed concurrently, one per goroutine, since they
 // are most of the workbook's work; each goes to a temporary file so that
-// none is held in memory.
+// none is held in memory, unless no temporary file can be made.
 func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
 	rc, err := zf.Open()
 	if err != nil {
@@ -124,17 +133,22 @@ func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
 		head = append(append(append([]byte(nil), head[:loc[0]]...), dim...), head[loc[1]:]...)
 	}
 
-	f, err := os.CreateTemp("", "stepgate-sheet-*.deflate")
-	if err != nil {
-		return nil, fmt.Errorf("temporary file for the packed sheet: %w", err)
+	// A temporary directory that cannot be written to (full, or read-only)
+	// costs memory, not the report: the packed sheet is then held in memory.
+	p := &packedSheet{}
+	var sink io.Writer
+	if f, ferr := os.CreateTemp("", "stepgate-sheet-*.deflate"); ferr == nil {
+		p.file, sink = f, f
+	} else {
+		p.mem = new(bytes.Buffer)
+		sink = p.mem
 	}
-	p := &packedSheet{file: f}
 	defer func() {
 		if err != nil {
 			p.close()
 		}
 	}()
-	out := &countingWriter{w: bufio.NewWriterSize(f, 1<<16)}
+	out := &countingWriter{w: bufio.NewWriterSize(sink, 1<<16)}
 	fw, err := flate.NewWriter(out, flate.BestSpeed)
 	if err != nil {
 		return nil, err
@@ -162,8 +176,10 @@ func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
 	if err := out.w.Flush(); err != nil {
 		return nil, err
 	}
-	if _, err := f.Seek(0, io.SeekStart); err != nil {
-		return nil, err
+	if p.file != nil {
+		if _, err := p.file.Seek(0, io.SeekStart); err != nil {
+			return nil, err
+		}
 	}
 	p.crc, p.size, p.packed = sum.crc.Sum32(), sum.n, out.n
 	return p, nil
@@ -178,7 +194,7 @@ func copyPacked(zw *zip.Writer, name string, p *packedSheet) error {
 	if err != nil {
 		return err
 	}
-	n, err := io.Copy(w, p.file)
+	n, err := io.Copy(w, p.data())
 	if err == nil && n != p.packed {
 		err = fmt.Errorf("copied %d of %d packed bytes", n, p.packed)
 	}
