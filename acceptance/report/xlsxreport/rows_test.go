@@ -1,8 +1,10 @@
 package xlsxreport
 
 import (
+	"archive/zip"
 	"bytes"
 	"errors"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -204,5 +206,86 @@ func TestPackedSheetsWithoutTemporaryDirectory(t *testing.T) {
 	}
 	if !bytes.Equal(got.Bytes(), want.Bytes()) {
 		t.Errorf("workbook written from memory differs from the one written through temporary files")
+	}
+}
+
+// frame returns a workbook made by excelize with a header row on Sheet1,
+// as the long sheets' frames are.
+func frame(t *testing.T) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	sw, err := f.NewStreamWriter("Sheet1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := sw.SetRow("A1", []interface{}{"a", "b"}); err != nil {
+		t.Fatal(err)
+	}
+	if err := sw.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	buf, err := f.WriteToBuffer()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+// TestPackingFailuresCleanUp: a sheet body that breaks (here by writing
+// its columns out of order, a programming error that panics) fails the
+// workbook with an error rather than ending the program, and a body for a
+// sheet the workbook lacks is refused; neither leaves a temporary file.
+func TestPackingFailuresCleanUp(t *testing.T) {
+	tmp := t.TempDir()
+	t.Setenv("TMPDIR", tmp)
+	good := &sheetBody{rows: 1, cols: 2, write: func(rw *rowWriter) error {
+		rw.start()
+		rw.int(1, 1)
+		return rw.end()
+	}}
+	backwards := &sheetBody{rows: 1, cols: 2, write: func(rw *rowWriter) error {
+		rw.start()
+		rw.int(2, 1)
+		rw.int(1, 1)
+		return rw.end()
+	}}
+	tests := []struct {
+		name   string
+		bodies map[string]*sheetBody
+		want   string
+	}{
+		{"columns out of order", map[string]*sheetBody{"Sheet1": backwards}, "internal error packing the sheet"},
+		{"sheet not in the workbook", map[string]*sheetBody{"Sheet1": good, "Missing": good}, "sheet Missing is not in the workbook"},
+	}
+	for _, tc := range tests {
+		for range 5 { // map order varies: the missing sheet may come first or last
+			err := canonicalZip(io.Discard, frame(t), tc.bodies)
+			if err == nil || !strings.Contains(err.Error(), tc.want) {
+				t.Errorf("%s: error %v, want %q", tc.name, err, tc.want)
+			}
+		}
+		if ents, _ := os.ReadDir(tmp); len(ents) != 0 {
+			t.Errorf("%s: %d files left in the temporary directory", tc.name, len(ents))
+		}
+	}
+}
+
+// TestZipVersions: every entry of the package says it needs version 2.0
+// to extract, the least for deflate (PKWARE APPNOTE.TXT 4.4.3), the packed
+// sheets included.
+func TestZipVersions(t *testing.T) {
+	var buf bytes.Buffer
+	if err := Write(&buf, testBatch()); err != nil {
+		t.Fatal(err)
+	}
+	zr, err := zip.NewReader(bytes.NewReader(buf.Bytes()), int64(buf.Len()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, zf := range zr.File {
+		if zf.Method == zip.Deflate && (zf.ReaderVersion < 20 || zf.CreatorVersion&0xff < 20) {
+			t.Errorf("%s: versions needed %d, made by %d; want at least 20", zf.Name, zf.ReaderVersion, zf.CreatorVersion&0xff)
+		}
 	}
 }

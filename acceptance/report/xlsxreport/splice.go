@@ -113,7 +113,7 @@ func (p *packedSheet) data() io.Reader {
 // The long sheets are packed concurrently, one per goroutine, since they
 // are most of the workbook's work; each goes to a temporary file so that
 // none is held in memory, unless no temporary file can be made.
-func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
+func packSheet(zf *zip.File, body *sheetBody) (*packedSheet, error) {
 	rc, err := zf.Open()
 	if err != nil {
 		return nil, err
@@ -143,8 +143,9 @@ func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
 		p.mem = new(bytes.Buffer)
 		sink = p.mem
 	}
+	done := false
 	defer func() {
-		if err != nil {
+		if !done { // an error or a panic
 			p.close()
 		}
 	}()
@@ -182,14 +183,18 @@ func packSheet(zf *zip.File, body *sheetBody) (_ *packedSheet, err error) {
 		}
 	}
 	p.crc, p.size, p.packed = sum.crc.Sum32(), sum.n, out.n
+	done = true
 	return p, nil
 }
 
 // copyPacked writes a packed sheet into the package as entry name.
 func copyPacked(zw *zip.Writer, name string, p *packedSheet) error {
+	// CreateRaw writes the header as given: the versions are those
+	// CreateHeader sets, 2.0, the least that deflate needs (APPNOTE 4.4.3).
 	w, err := zw.CreateRaw(&zip.FileHeader{
 		Name: name, Method: zip.Deflate, CRC32: p.crc,
 		CompressedSize64: uint64(p.packed), UncompressedSize64: uint64(p.size),
+		CreatorVersion: 20, ReaderVersion: 20,
 	})
 	if err != nil {
 		return err

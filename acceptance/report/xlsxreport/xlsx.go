@@ -133,23 +133,16 @@ func canonicalZip(w io.Writer, data []byte, bodies map[string]*sheetBody) error 
 		p   *packedSheet
 		err error
 	}
-	fill := map[string]chan packing{}
-	var wg sync.WaitGroup
-	defer wg.Wait()
+	targets := map[string]*sheetBody{}
 	for name, body := range bodies {
 		part, ok := parts[name]
 		if !ok || byPart[part] == nil {
 			return fmt.Errorf("sheet %s is not in the workbook", name)
 		}
-		ch := make(chan packing, 1)
-		fill[part] = ch
-		wg.Add(1)
-		go func(zf *zip.File, body *sheetBody) {
-			defer wg.Done()
-			p, err := packSheet(zf, body)
-			ch <- packing{p, err}
-		}(byPart[part], body)
+		targets[part] = body
 	}
+	fill := map[string]chan packing{}
+	var wg sync.WaitGroup
 	defer func() {
 		// Free whatever was packed but not taken (after an error).
 		wg.Wait()
@@ -161,6 +154,23 @@ func canonicalZip(w io.Writer, data []byte, bodies map[string]*sheetBody) error 
 			}
 		}
 	}()
+	for part, body := range targets {
+		ch := make(chan packing, 1)
+		fill[part] = ch
+		wg.Add(1)
+		go func(zf *zip.File, body *sheetBody) {
+			defer wg.Done()
+			defer func() {
+				// A panic here would end the program past the report
+				// writer's own recovery; it fails this workbook instead.
+				if r := recover(); r != nil {
+					ch <- packing{err: fmt.Errorf("internal error packing the sheet: %v", r)}
+				}
+			}()
+			p, err := packSheet(zf, body)
+			ch <- packing{p, err}
+		}(byPart[part], body)
+	}
 	files := append([]*zip.File(nil), zr.File...)
 	sort.SliceStable(files, func(i, j int) bool {
 		// [Content_Types].xml first, as writers conventionally put it.
