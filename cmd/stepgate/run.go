@@ -345,7 +345,7 @@ func oneLine(s string, n int) string {
 
 // tuneGC trades a little memory for less collection work: a batch allocates
 // fast but keeps little (one summary per unit). Unless the user set GOGC or
-// GOMEMLIMIT, the collector runs at a third of its default frequency, with a
+// GOMEMLIMIT, the collector runs at half its default frequency, with a
 // soft memory limit that makes it run more often only when the heap
 // approaches the limit: 256 MiB, or the summaries the batch is expected to
 // keep (about 6 KiB per unit) plus 128 MiB for the work in hand when that

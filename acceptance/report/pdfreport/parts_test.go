@@ -192,3 +192,19 @@ func TestWrap(t *testing.T) {
 		t.Errorf("two lines at most: %q", cut)
 	}
 }
+
+// TestFigurePanicIsAnError: a figure that cannot be prepared (here a unit
+// index past the batch) gives an error for its page, not a crash of the
+// goroutine that prepares figures ahead of the layout.
+func TestFigurePanicIsAnError(t *testing.T) {
+	b := testBatch()
+	next, stop := figures(b, []int{0, len(b.Units) + 5})
+	defer stop()
+	if fig := next(); fig == nil || fig.err != nil {
+		t.Fatalf("unit 0: %+v", fig)
+	}
+	fig := next()
+	if fig == nil || fig.err == nil || !strings.Contains(fig.err.Error(), "internal error preparing the figure") {
+		t.Fatalf("unit past the batch: figure %+v, want an internal error", fig)
+	}
+}

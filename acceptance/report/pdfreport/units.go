@@ -275,17 +275,29 @@ func prepareFigure(b *acceptance.Batch, i int) *unitFig {
 	return fig
 }
 
-// figures prepares the figures of the given units in order, a few pages
-// ahead of the caller, on one goroutine; stop ends it early.
+// safeFigure is prepareFigure with a panic turned into the figure's error,
+// since it runs past the report writer's own recovery.
+func safeFigure(b *acceptance.Batch, i int) (fig *unitFig) {
+	defer func() {
+		if r := recover(); r != nil {
+			fig = &unitFig{err: fmt.Errorf("internal error preparing the figure: %v", r)}
+		}
+	}()
+	return prepareFigure(b, i)
+}
+
+// figures prepares the figures of the given units in order, ahead of the
+// caller, on one goroutine; stop ends it early. At most three records are
+// held at once: two prepared figures waiting and one being prepared.
 func figures(b *acceptance.Batch, units []int) (next func() *unitFig, stop func()) {
-	const ahead = 2 // records held at once beyond the page being laid out
+	const ahead = 2 // prepared figures waiting for their page
 	ch := make(chan *unitFig, ahead)
 	done := make(chan struct{})
 	go func() {
 		defer close(ch)
 		for _, i := range units {
 			select {
-			case ch <- prepareFigure(b, i):
+			case ch <- safeFigure(b, i):
 			case <-done:
 				return
 			}
