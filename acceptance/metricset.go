@@ -17,7 +17,7 @@ import (
 type MetricSet struct {
 	v     [metrics.NumNames]float64
 	known uint16                    // bit i: metric i is known
-	why   *[metrics.NumNames]string // reasons of unknown metrics; nil when none has one
+	why   *[metrics.NumNames]string // reasons of unknown metrics; nil when none has one; shared by copies, never written through
 }
 
 // Set stores the value of metric n; an unknown name is ignored.
@@ -32,15 +32,17 @@ func (m *MetricSet) Set(n metrics.Name, v metrics.Value) {
 	} else {
 		m.known &^= 1 << i
 	}
-	switch {
-	case v.Why != "":
-		if m.why == nil {
-			m.why = new([metrics.NumNames]string)
-		}
-		m.why[i] = v.Why
-	case m.why != nil:
-		m.why[i] = ""
+	if m.why == nil && v.Why == "" || m.why != nil && m.why[i] == v.Why {
+		return
 	}
+	// Copies of a set share its reasons, so a change writes a new array
+	// rather than through the shared one.
+	why := new([metrics.NumNames]string)
+	if m.why != nil {
+		*why = *m.why
+	}
+	why[i] = v.Why
+	m.why = why
 }
 
 // Lookup returns the value of the named metric; ok is false for a name that
