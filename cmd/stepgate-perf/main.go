@@ -11,9 +11,10 @@
 //   - the full run: `stepgate run` as a separate process, reports included,
 //     its peak resident memory taken from the kernel's rusage.
 //
-// The page cache is warmed first; then floor and full run alternate
-// -repeat times (3 by default) and the medians are reported, with the
-// worst peak memory, since a shared machine's timings vary from run to run.
+// The page cache is warmed first, until the floor's time is steady; then
+// floor and full run alternate -repeat times (3 by default) and the medians
+// are reported, with the worst peak memory, since a shared machine's
+// timings vary from run to run.
 //
 // It prints throughput (MB/s, units/s), the full run's share of the floor's
 // throughput, the peak memory, and the growth of run time from the middle to
@@ -105,12 +106,24 @@ func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 		if err != nil {
 			return err
 		}
-		// Warm the page cache once so both measurements read from memory;
-		// then alternate floor and full run, so that whatever else the
-		// machine does (page-cache reclaim, another process) falls on both,
-		// and report the median of each.
-		if _, _, err := floor(files, specPath); err != nil {
-			return err
+		// Warm the page cache until a floor pass takes as long as the one
+		// before (within 5 %, at most five passes): freshly written logs
+		// are not all in memory at once, and a first pass over 20,000 of
+		// them can take twice as long as the next. Then alternate floor and
+		// full run, so that whatever else the machine does (page-cache
+		// reclaim, another process) falls on both, and report the median of
+		// each.
+		var last time.Duration
+		for k := 0; k < 5; k++ {
+			t0 = time.Now()
+			if _, _, err := floor(files, specPath); err != nil {
+				return err
+			}
+			d := time.Since(t0)
+			if k > 0 && d > last*95/100 && d < last*105/100 {
+				break
+			}
+			last = d
 		}
 		var floors, fulls []time.Duration
 		var peaks []int64
