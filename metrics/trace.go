@@ -8,6 +8,36 @@ type Trace struct {
 	Command  []float64 // commanded position, response units
 	Response []float64 // measured position, response units
 	Effort   []float64 // drive effort, optional (nil when absent)
+
+	// checked records the slices a successful Validate saw, so that the
+	// measurement functions need not check the same samples again. A trace
+	// whose slices are replaced or resized no longer matches it and is
+	// checked as any other; one whose samples are changed in place after
+	// Validate must be validated again.
+	checked shape
+}
+
+// shape identifies a trace's slices: where each starts and how long it is.
+type shape struct {
+	time, command, response, effort *float64
+	n, effortN                      int
+}
+
+func first(v []float64) *float64 {
+	if len(v) == 0 {
+		return nil
+	}
+	return &v[0]
+}
+
+func (t *Trace) shape() shape {
+	return shape{first(t.Time), first(t.Command), first(t.Response), first(t.Effort), len(t.Time), len(t.Effort)}
+}
+
+// validated reports whether Validate has passed these very slices.
+func (t *Trace) validated() bool {
+	return t.checked.n > 0 && t.checked == t.shape() &&
+		len(t.Command) == t.checked.n && len(t.Response) == t.checked.n
 }
 
 // Len returns the number of samples.
@@ -38,5 +68,9 @@ func (t Trace) Clone() Trace {
 		}
 		return append([]float64(nil), v...)
 	}
-	return Trace{Time: c(t.Time), Command: c(t.Command), Response: c(t.Response), Effort: c(t.Effort)}
+	out := Trace{Time: c(t.Time), Command: c(t.Command), Response: c(t.Response), Effort: c(t.Effort)}
+	if t.validated() {
+		out.checked = out.shape() // the same samples
+	}
+	return out
 }

@@ -47,8 +47,20 @@ func (e *SampleError) Unwrap() error { return e.Err }
 // Validate checks that the trace can be measured: Command and Response as
 // long as Time, Effort either absent (nil or empty) or as long as Time, at
 // least two samples, every value finite and time strictly increasing. The
-// first problem found is returned as a *SampleError.
-func (t Trace) Validate() error {
+// first problem found is returned as a *SampleError. A trace that passes
+// is marked, so that measuring its steps does not check the same samples
+// again; changing its samples in place afterwards voids the mark (replacing
+// or resizing a slice is noticed).
+func (t *Trace) Validate() error {
+	t.checked = shape{}
+	if err := t.validate(); err != nil {
+		return err
+	}
+	t.checked = t.shape()
+	return nil
+}
+
+func (t *Trace) validate() error {
 	n := len(t.Time)
 	for _, s := range []struct {
 		name string

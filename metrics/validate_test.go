@@ -102,3 +102,47 @@ func TestOptionsValidate(t *testing.T) {
 		})
 	}
 }
+
+// TestValidatedTraceMark: measuring a validated trace gives exactly what
+// measuring the same samples unvalidated gives; a slice replaced after
+// Validate (here by one holding a NaN) is checked again rather than
+// trusted; a trace that fails Validate carries no mark; Clone keeps it.
+func TestValidatedTraceMark(t *testing.T) {
+	base := rig{dt: dt, f: underdamped(0.6, 5), noise: 0.02, quant: 0.01, seed: 3}.record([]segment{{0.5, 0}, {2, 25}})
+	s := FindSteps(base, 1)[0]
+	o := DefaultOptions()
+
+	plain := MeasureStep(base, s, o)
+	marked := base
+	if err := marked.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	if !marked.validated() || base.validated() {
+		t.Fatalf("validated(): marked %v, original %v", marked.validated(), base.validated())
+	}
+	if got := MeasureStep(marked, s, o); got != plain {
+		t.Errorf("validated trace measures differently:\n got %+v\nwant %+v", got, plain)
+	}
+	if c := marked.Clone(); !c.validated() {
+		t.Errorf("Clone of a validated trace lost the mark")
+	}
+
+	swapped := marked
+	bad := append([]float64(nil), base.Response...)
+	bad[s.Start+10] = math.NaN()
+	swapped.Response = bad
+	if swapped.validated() {
+		t.Fatalf("a replaced Response slice still counts as validated")
+	}
+	m := MeasureStep(swapped, s, o)
+	if m.RiseTime.OK || !strings.Contains(m.RiseTime.Why, "not a finite number") {
+		t.Errorf("NaN in a replaced slice: rise time %+v, want unknown for a value that is not finite", m.RiseTime)
+	}
+
+	failing := base
+	failing.Time = append([]float64(nil), base.Time...)
+	failing.Time[5] = failing.Time[4]
+	if err := failing.Validate(); err == nil || failing.validated() {
+		t.Errorf("time not increasing: Validate %v, validated() %v", err, failing.validated())
+	}
+}
