@@ -4,7 +4,6 @@ import (
 	"archive/zip"
 	"bufio"
 	"bytes"
-	"compress/flate"
 	"encoding/xml"
 	"fmt"
 	"hash"
@@ -15,6 +14,8 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+
+	"github.com/klauspost/compress/flate"
 )
 
 // sheetParts maps the workbook's sheet names to their part names, read from
@@ -150,6 +151,9 @@ func packSheet(zf *zip.File, body *sheetBody) (*packedSheet, error) {
 		}
 	}()
 	out := &countingWriter{w: bufio.NewWriterSize(sink, 1<<16)}
+	// The long sheets are most of the package: deflate's fastest level
+	// packs their repetitive XML nearly as small in a fraction of the time,
+	// and klauspost/compress's at half the time of the standard library's.
 	fw, err := flate.NewWriter(out, flate.BestSpeed)
 	if err != nil {
 		return nil, err

@@ -3,7 +3,6 @@ package xlsxreport
 import (
 	"archive/zip"
 	"bytes"
-	"compress/flate"
 	"encoding/xml"
 	"fmt"
 	"io"
@@ -181,11 +180,6 @@ func canonicalZip(w io.Writer, data []byte, bodies map[string]*sheetBody) error 
 		return a < b
 	})
 	zw := zip.NewWriter(w)
-	// The long sheets are most of the package: deflate's fastest level
-	// packs their repetitive XML nearly as small in a fraction of the time.
-	zw.RegisterCompressor(zip.Deflate, func(w io.Writer) (io.WriteCloser, error) {
-		return flate.NewWriter(w, flate.BestSpeed)
-	})
 	for _, zf := range files {
 		if zf.Name == "[Content_Types].xml" {
 			if err := canonicalTypes(zw, zf); err != nil {
