@@ -45,6 +45,28 @@ func (m *MetricSet) Set(n metrics.Name, v metrics.Value) {
 	m.why = why
 }
 
+// metricSetOf returns the set of the metrics of one measured step, its
+// reasons gathered into one array.
+func metricSetOf(m metrics.StepMetrics) MetricSet {
+	var s MetricSet
+	var why [metrics.NumNames]string
+	someWhy := false
+	for i, n := range metrics.Names {
+		v, _ := m.Get(n)
+		s.v[i] = v.V
+		if v.OK {
+			s.known |= 1 << i
+		}
+		if v.Why != "" {
+			why[i], someWhy = v.Why, true
+		}
+	}
+	if someWhy {
+		s.why = &why
+	}
+	return s
+}
+
 // Lookup returns the value of the named metric; ok is false for a name that
 // is not a metric.
 func (m *MetricSet) Lookup(name string) (v metrics.Value, ok bool) {

@@ -113,11 +113,7 @@ func MeasurePrediction(tr metrics.Trace, kind string, minChange float64, o metri
 		}
 		return out
 	}
-	m := metrics.MeasureStep(tr, steps[0], o)
-	for _, n := range metrics.Names {
-		v, _ := m.Get(n)
-		out.Metrics.Set(n, v)
-	}
+	out.Metrics = metricSetOf(metrics.MeasureStep(tr, steps[0], o))
 	return out
 }
 

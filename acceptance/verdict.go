@@ -29,10 +29,7 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 		From:    m.Step.From,
 		To:      m.Step.To,
 		Reasons: []string{},
-	}
-	for _, n := range metrics.Names {
-		v, _ := m.Get(n)
-		r.Metrics.Set(n, v)
+		Metrics: metricSetOf(m),
 	}
 	var fails, invalids []string
 	// The checks' values live in one array per step rather than one
