@@ -3,10 +3,14 @@ package pdfreport
 import (
 	"bytes"
 	"compress/zlib"
+	"errors"
 	"io"
 	"regexp"
+	"runtime"
 	"sort"
 	"strconv"
+	"sync"
+	"sync/atomic"
 )
 
 // writeCompressed writes doc, a document that gofpdf wrote without
@@ -16,7 +20,8 @@ import (
 // each page's content in a stream of its own, zlib at best speed, with
 // "/Filter /FlateDecode" before its length. gofpdf starts a new compressor
 // for every page, a megabyte to allocate and clear each time; here one
-// compressor is reset from page to page, which gives the same bytes.
+// compressor per core is reset from page to page, which gives the same
+// bytes.
 //
 // A document laid out other than as gofpdf writes it (see pageContents)
 // is written as it is: uncompressed, but whole.
@@ -26,13 +31,12 @@ func writeCompressed(w io.Writer, doc []byte) error {
 		_, err := w.Write(doc)
 		return err
 	}
-	var out bytes.Buffer
-	out.Grow(len(doc) / 3)
-	var z bytes.Buffer
-	zw, err := zlib.NewWriterLevel(&z, zlib.BestSpeed)
+	packed, err := compressAll(doc, objs)
 	if err != nil {
 		return err
 	}
+	var out bytes.Buffer
+	out.Grow(len(doc) / 3)
 	// ends[i] is where the i-th content object ended in doc, moved[i] how
 	// far everything after it has moved in the output.
 	ends := make([]int, len(objs))
@@ -40,20 +44,12 @@ func writeCompressed(w io.Writer, doc []byte) error {
 	cur := 0
 	for i, o := range objs {
 		out.Write(doc[cur:o.start])
-		z.Reset()
-		zw.Reset(&z)
-		if _, err := zw.Write(doc[o.data : o.data+o.length]); err != nil {
-			return err
-		}
-		if err := zw.Close(); err != nil {
-			return err
-		}
 		before := out.Len()
 		out.WriteString(strconv.Itoa(o.num))
 		out.WriteString(" 0 obj\n<</Filter /FlateDecode /Length ")
-		out.WriteString(strconv.Itoa(z.Len()))
+		out.WriteString(strconv.Itoa(len(packed[i])))
 		out.WriteString(">>\nstream\n")
-		out.Write(z.Bytes())
+		out.Write(packed[i])
 		out.WriteString("\nendstream\nendobj\n")
 		ends[i] = o.end
 		moved[i] = out.Len() - before - (o.end - o.start)
@@ -191,4 +187,51 @@ func pageContents(doc []byte) ([]content, xrefTable, bool) {
 		}
 	}
 	return objs, x, true
+}
+
+// compressAll compresses the content streams objs of doc, each on its own,
+// with one zlib compressor per core; packed[i] is the stream of objs[i].
+// Each stream's bytes depend on its content alone, so the split between
+// compressors does not change them.
+func compressAll(doc []byte, objs []content) (packed [][]byte, err error) {
+	packed = make([][]byte, len(objs))
+	workers := min(runtime.GOMAXPROCS(0), len(objs))
+	if workers < 1 {
+		return packed, nil
+	}
+	errs := make([]error, workers)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var z bytes.Buffer
+			zw, err := zlib.NewWriterLevel(&z, zlib.BestSpeed)
+			if err != nil {
+				errs[w] = err
+				return
+			}
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= len(objs) {
+					return
+				}
+				o := objs[i]
+				z.Reset()
+				zw.Reset(&z)
+				if _, err := zw.Write(doc[o.data : o.data+o.length]); err != nil {
+					errs[w] = err
+					return
+				}
+				if err := zw.Close(); err != nil {
+					errs[w] = err
+					return
+				}
+				packed[i] = bytes.Clone(z.Bytes())
+			}
+		}()
+	}
+	wg.Wait()
+	return packed, errors.Join(errs...)
 }
