@@ -8,8 +8,13 @@
 //   - the floor: a bare read-and-parse of the same files with the same
 //     reader and one worker per core, every numeric field parsed and nothing
 //     else done (not even the SHA-256 of each file that the run records);
+//   - the floor with the SHA-256 of every file added, which the reports
+//     need (the report id hashes the inputs, and each unit records its
+//     file's digest): the part of the run no report format can remove;
 //   - the full run: `stepgate run` as a separate process, reports included,
-//     its peak resident memory taken from the kernel's rusage.
+//     its peak resident memory taken from the kernel's rusage, and the time
+//     it spent before its first report (its --timing line), so that the
+//     judging and the reports can be told apart.
 //
 // The page cache is warmed first, until the floor's time is steady; then
 // floor and full run alternate -repeat times (3 by default) and the medians
@@ -66,7 +71,9 @@ type result struct {
 	bytes              int64
 	rows               int64
 	floor, full        time.Duration
-	peakRSS            int64 // bytes
+	digested           time.Duration // the floor with the SHA-256 of each file
+	judged             time.Duration // the full run up to its first report
+	peakRSS            int64         // bytes
 	exitCode           int
 	floorMBs, fullMBs  float64
 	fullUnitsPerSecond float64
@@ -116,7 +123,7 @@ func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 		var last time.Duration
 		for k := 0; k < 5; k++ {
 			t0 = time.Now()
-			if _, _, err := floor(files, specPath); err != nil {
+			if _, _, err := floor(files, false); err != nil {
 				return err
 			}
 			d := time.Since(t0)
@@ -125,22 +132,35 @@ func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 			}
 			last = d
 		}
-		var floors, fulls []time.Duration
+		var floors, digesteds, fulls, judgeds []time.Duration
 		var peaks []int64
 		out := filepath.Join(work, "report")
 		for k := 0; k < repeat; k++ {
 			t0 = time.Now()
-			r.bytes, r.rows, err = floor(files, specPath)
+			r.bytes, r.rows, err = floor(files, false)
 			if err != nil {
 				return err
 			}
 			floors = append(floors, time.Since(t0))
+			t0 = time.Now()
+			if _, _, err = floor(files, true); err != nil {
+				return err
+			}
+			digesteds = append(digesteds, time.Since(t0))
 
-			cmd := exec.Command(bin, "run", "--quiet", "--spec", specPath, "--out", out, "--report-date", "2026-12-01", logDir)
-			cmd.Stderr = os.Stderr
+			cmd := exec.Command(bin, "run", "--quiet", "--timing", "--spec", specPath, "--out", out, "--report-date", "2026-12-01", logDir)
+			var stderr strings.Builder
+			cmd.Stderr = &stderr
 			t0 = time.Now()
 			err = cmd.Run()
-			fulls = append(fulls, time.Since(t0))
+			full := time.Since(t0)
+			fulls = append(fulls, full)
+			os.Stderr.WriteString(strings.ReplaceAll(stderr.String(), timingLine(stderr.String()), ""))
+			reports, ok := reportsTime(stderr.String())
+			if !ok && cmd.ProcessState != nil && (cmd.ProcessState.ExitCode() == 0 || cmd.ProcessState.ExitCode() == 1) {
+				return fmt.Errorf("stepgate run printed no timing line")
+			}
+			judgeds = append(judgeds, full-reports)
 			if cmd.ProcessState == nil {
 				return fmt.Errorf("stepgate run: %w", err)
 			}
@@ -153,10 +173,12 @@ func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 			}
 		}
 		r.floor, r.full = median(floors), median(fulls)
+		r.digested, r.judged = median(digesteds), median(judgeds)
 		for _, p := range peaks {
 			r.peakRSS = max(r.peakRSS, p) // the worst peak, not the median
 		}
-		fmt.Printf("  floor runs %s; full runs %s\n", seconds(floors), seconds(fulls))
+		fmt.Printf("  floor runs %s; with SHA-256 %s; full runs %s, of which before the reports %s\n",
+			seconds(floors), seconds(digesteds), seconds(fulls), seconds(judgeds))
 		mb := float64(r.bytes) / 1e6
 		r.floorMBs = mb / r.floor.Seconds()
 		r.fullMBs = mb / r.full.Seconds()
@@ -174,6 +196,15 @@ func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 	for _, r := range results {
 		fmt.Printf("%8d %9.0f %12.1f %12.1f %11.0f %9.0f%% %10.0f %10.2f\n",
 			r.units, float64(r.bytes)/1e6, r.floorMBs, r.fullMBs, r.fullUnitsPerSecond, 100*r.fullMBs/r.floorMBs, float64(r.peakRSS)/1e6, r.full.Seconds())
+	}
+	// Where the run's time goes, as throughput shares of the floor: the
+	// parse with the SHA-256 the reports need, the run before its first
+	// report (start, spec, reading, judging), and the whole run.
+	fmt.Println()
+	fmt.Printf("%8s %14s %16s %12s\n", "units", "floor+SHA-256", "run w/o reports", "full run")
+	for _, r := range results {
+		share := func(d time.Duration) string { return fmt.Sprintf("%.0f%%", 100*r.floor.Seconds()/d.Seconds()) }
+		fmt.Printf("%8d %14s %16s %12s\n", r.units, share(r.digested), share(r.judged), share(r.full))
 	}
 	if len(results) >= 2 {
 		a, b := results[len(results)-2], results[len(results)-1]
@@ -198,9 +229,37 @@ func seconds(d []time.Duration) string {
 	return strings.Join(parts, ", ") + " s"
 }
 
+// timingLine returns the line of stderr that the run's --timing flag
+// printed, with its newline, or "".
+func timingLine(stderr string) string {
+	for _, line := range strings.SplitAfter(stderr, "\n") {
+		if strings.HasPrefix(line, "stepgate: ") && strings.Contains(line, " judged in ") {
+			return line
+		}
+	}
+	return ""
+}
+
+// reportsTime reads how long the run took to write its reports from its
+// --timing line ("… reports written in 0.61 s").
+func reportsTime(stderr string) (time.Duration, bool) {
+	line := strings.TrimSpace(timingLine(stderr))
+	const key = "reports written in "
+	k := strings.LastIndex(line, key)
+	if k < 0 {
+		return 0, false
+	}
+	v, err := strconv.ParseFloat(strings.TrimSuffix(line[k+len(key):], " s"), 64)
+	if err != nil {
+		return 0, false
+	}
+	return time.Duration(v * float64(time.Second)), true
+}
+
 // floor reads and parses every file with one worker per core and returns the
-// bytes and rows read.
-func floor(files []string, specPath string) (bytes, rows int64, err error) {
+// bytes and rows read; with digest, the reader also computes each file's
+// SHA-256, as the run does.
+func floor(files []string, digest bool) (bytes, rows int64, err error) {
 	f := rigdata.Format{Time: "t", Command: "target", Response: "position", Effort: "drive", TimeScale: 1}
 	jobs := make(chan string)
 	var wg sync.WaitGroup
@@ -209,9 +268,13 @@ func floor(files []string, specPath string) (bytes, rows int64, err error) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			// Per-worker reusable buffers, as the batch uses; no SHA-256,
-			// which is the batch's work, not the parse's.
-			rd := rigdata.NewReader(f).Shared().WithoutDigest()
+			// Per-worker reusable buffers, as the batch uses. The bare
+			// floor computes no SHA-256: that is the run's work, not the
+			// parse's.
+			rd := rigdata.NewReader(f).Shared()
+			if !digest {
+				rd = rd.WithoutDigest()
+			}
 			for p := range jobs {
 				lg, err := rd.ReadFile(p)
 				if lg != nil {

@@ -35,6 +35,7 @@ type runFlags struct {
 	verbose    bool
 	cpuProfile string
 	memProfile string
+	timing     bool
 }
 
 func newRunCmd() *cobra.Command {
@@ -60,6 +61,8 @@ func newRunCmd() *cobra.Command {
 	fl.BoolVar(&f.verbose, "verbose", false, "list every unit with all its reasons, and the run's timing on stderr")
 	fl.StringVar(&f.cpuProfile, "cpu-profile", "", "write a CPU profile of the run to this file (for developers)")
 	fl.StringVar(&f.memProfile, "mem-profile", "", "write a heap profile at the end of the run to this file (for developers)")
+	fl.BoolVar(&f.timing, "timing", false, "print the run's timing on stderr, even with --quiet (for developers)")
+	fl.MarkHidden("timing")
 	fl.MarkHidden("cpu-profile")
 	fl.MarkHidden("mem-profile")
 	cmd.MarkFlagRequired("spec")
@@ -188,7 +191,7 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 			fmt.Fprintln(stdout, "wrote", p)
 		}
 	}
-	if f.verbose {
+	if f.verbose || f.timing {
 		total := time.Since(started)
 		fmt.Fprintf(stderr, "stepgate: %d files, %.1f MB judged in %.2f s (%.1f MB/s), reports written in %.2f s\n",
 			len(files), float64(readBytes)/1e6, judged.Seconds(), float64(readBytes)/1e6/judged.Seconds(), (total - judged).Seconds())
