@@ -14,7 +14,7 @@ import (
 // benchDigest judges n demo units of 6 s (three steps at 1 kHz) the way the
 // command line does: no record is kept, so every unit page reads its log
 // again.
-func benchDigest(b *testing.B, n int) *digest.Digest {
+func benchDigest(b testing.TB, n int) *digest.Digest {
 	b.Helper()
 	specPath, logDir, err := demo.Write(b.TempDir(), demo.Options{Units: n, Duration: 6})
 	if err != nil {

@@ -31,7 +31,7 @@ func writeCompressed(w io.Writer, doc []byte) error {
 		_, err := w.Write(doc)
 		return err
 	}
-	packed, err := compressAll(doc, objs)
+	pc, err := newPageCompressor()
 	if err != nil {
 		return err
 	}
@@ -42,21 +42,29 @@ func writeCompressed(w io.Writer, doc []byte) error {
 	ends := make([]int, len(objs))
 	moved := make([]int, len(objs))
 	cur := 0
-	for i, o := range objs {
-		out.Write(doc[cur:o.start])
-		before := out.Len()
-		out.WriteString(strconv.Itoa(o.num))
-		out.WriteString(" 0 obj\n<</Filter /FlateDecode /Length ")
-		out.WriteString(strconv.Itoa(len(packed[i])))
-		out.WriteString(">>\nstream\n")
-		out.Write(packed[i])
-		out.WriteString("\nendstream\nendobj\n")
-		ends[i] = o.end
-		moved[i] = out.Len() - before - (o.end - o.start)
-		if i > 0 {
-			moved[i] += moved[i-1]
+	for c0 := 0; c0 < len(objs); c0 += len(pc.packed) {
+		part := objs[c0:min(c0+len(pc.packed), len(objs))]
+		if err := pc.compress(doc, part); err != nil {
+			return err
 		}
-		cur = o.end
+		for k, o := range part {
+			i := c0 + k
+			z := &pc.packed[k]
+			out.Write(doc[cur:o.start])
+			before := out.Len()
+			out.WriteString(strconv.Itoa(o.num))
+			out.WriteString(" 0 obj\n<</Filter /FlateDecode /Length ")
+			out.WriteString(strconv.Itoa(z.Len()))
+			out.WriteString(">>\nstream\n")
+			out.Write(z.Bytes())
+			out.WriteString("\nendstream\nendobj\n")
+			ends[i] = o.end
+			moved[i] = out.Len() - before - (o.end - o.start)
+			if i > 0 {
+				moved[i] += moved[i-1]
+			}
+			cur = o.end
+		}
 	}
 	out.Write(doc[cur:xref.start])
 	// An object moves as far as the last content object before it.
@@ -189,37 +197,47 @@ func pageContents(doc []byte) ([]content, xrefTable, bool) {
 	return objs, x, true
 }
 
-// compressAll compresses the content streams objs of doc, each on its own,
-// with one zlib compressor per core; packed[i] is the stream of objs[i].
-// Each stream's bytes depend on its content alone, so the split between
+// pageCompressor compresses page content streams with one zlib compressor
+// per core, a few pages at a time, so that only those pages' compressed
+// bytes are held besides the document. Each stream is compressed on its
+// own and its bytes depend on its content alone, so the split between
 // compressors does not change them.
-func compressAll(doc []byte, objs []content) (packed [][]byte, err error) {
-	packed = make([][]byte, len(objs))
-	workers := min(runtime.GOMAXPROCS(0), len(objs))
-	if workers < 1 {
-		return packed, nil
+type pageCompressor struct {
+	zw     []*zlib.Writer
+	packed []bytes.Buffer // the compressed streams of the pages in hand
+}
+
+func newPageCompressor() (*pageCompressor, error) {
+	workers := max(runtime.GOMAXPROCS(0), 1)
+	pc := &pageCompressor{packed: make([]bytes.Buffer, 8*workers)}
+	for range workers {
+		zw, err := zlib.NewWriterLevel(io.Discard, zlib.BestSpeed)
+		if err != nil {
+			return nil, err
+		}
+		pc.zw = append(pc.zw, zw)
 	}
-	errs := make([]error, workers)
+	return pc, nil
+}
+
+// compress compresses the content streams part of doc (at most
+// len(pc.packed)) into pc.packed[:len(part)].
+func (pc *pageCompressor) compress(doc []byte, part []content) error {
+	errs := make([]error, len(pc.zw))
 	var next atomic.Int64
 	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
+	for w, zw := range pc.zw {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			var z bytes.Buffer
-			zw, err := zlib.NewWriterLevel(&z, zlib.BestSpeed)
-			if err != nil {
-				errs[w] = err
-				return
-			}
 			for {
-				i := int(next.Add(1) - 1)
-				if i >= len(objs) {
+				k := int(next.Add(1) - 1)
+				if k >= len(part) {
 					return
 				}
-				o := objs[i]
+				o, z := part[k], &pc.packed[k]
 				z.Reset()
-				zw.Reset(&z)
+				zw.Reset(z)
 				if _, err := zw.Write(doc[o.data : o.data+o.length]); err != nil {
 					errs[w] = err
 					return
@@ -228,10 +246,9 @@ func compressAll(doc []byte, objs []content) (packed [][]byte, err error) {
 					errs[w] = err
 					return
 				}
-				packed[i] = bytes.Clone(z.Bytes())
 			}
 		}()
 	}
 	wg.Wait()
-	return packed, errors.Join(errs...)
+	return errors.Join(errs...)
 }

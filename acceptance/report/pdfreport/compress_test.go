@@ -40,13 +40,16 @@ func TestWriteCompressedAsGofpdf(t *testing.T) {
 	withLogo.SpecDoc.Report.Logo = "logo.png"
 
 	for _, tc := range []struct {
-		name string
-		d    *digest.Digest
-		o    Options
+		name     string
+		d        *digest.Digest
+		o        Options
+		minPages int
 	}{
-		{"units that did not pass", mustDigest(t, testBatch()), Options{}},
-		{"every unit", mustDigest(t, testBatch()), Options{AllUnits: true}},
-		{"logo", mustDigest(t, withLogo), Options{}},
+		{"units that did not pass", mustDigest(t, testBatch()), Options{}, 1},
+		{"every unit", mustDigest(t, testBatch()), Options{AllUnits: true}, 1},
+		{"logo", mustDigest(t, withLogo), Options{}, 1},
+		// More pages than the compressors take at a time.
+		{"40 demo units, every unit", benchDigest(t, 40), Options{AllUnits: true}, 3 * 8},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			pdf, err := layOut(tc.d, tc.o, true)
@@ -60,6 +63,9 @@ func TestWriteCompressedAsGofpdf(t *testing.T) {
 			var got bytes.Buffer
 			if err := WriteDigest(&got, tc.d, tc.o); err != nil {
 				t.Fatal(err)
+			}
+			if n := bytes.Count(want.Bytes(), []byte("/Type /Page\n")); n < tc.minPages {
+				t.Fatalf("%d pages, want at least %d", n, tc.minPages)
 			}
 			if !bytes.Equal(got.Bytes(), want.Bytes()) {
 				a, b := got.Bytes(), want.Bytes()
