@@ -25,9 +25,12 @@ type TracePolicy int
 
 // Trace policies.
 const (
-	// KeepPageTraces keeps no record while judging; the report reads the
-	// log of each unit that gets a detail page again when it draws the page
-	// (see Batch.UnitTrace), so memory stays flat in the batch size.
+	// KeepPageTraces keeps the records of the units that get a detail page
+	// in the PDF, at most MaxUnitPages of them, and no other: memory stays
+	// flat in the batch size. A unit with a page but no kept record (beyond
+	// the first MaxUnitPages pages, or made invalid after judging by a
+	// duplicate serial) has its log read again when its page is drawn (see
+	// Batch.UnitTrace).
 	KeepPageTraces TracePolicy = iota
 	KeepAllTraces              // every unit keeps its record
 	KeepNoTraces               // none
@@ -70,6 +73,14 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 	opts := spec.Options()
 	pred, predErr := newPredictor(spec)
 	sampler := newCurveSampler(spec, len(files))
+	var pages *pageKeeper
+	if o.Traces == KeepPageTraces {
+		limit := o.MaxUnitPages
+		if limit <= 0 || limit > MaxUnitPages {
+			limit = MaxUnitPages
+		}
+		pages = newPageKeeper(limit, o.AllUnits)
+	}
 
 	results := make([]UnitResult, len(files))
 	jobs := make(chan int)
@@ -84,7 +95,7 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 			// worker's reader lends its buffers instead of copying them.
 			rd := rigdata.NewReader(format).Shared()
 			for i := range jobs {
-				u, n := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces)
+				u, n := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces, pages)
 				results[i] = u
 				if o.Progress != nil {
 					mu.Lock()
@@ -139,6 +150,7 @@ feed:
 	}
 	b.MaxPages = o.MaxUnitPages
 	if o.Traces == KeepPageTraces {
+		b.pageTraces = pages.traces()
 		b.loader = traceLoader(format)
 	}
 	if pred != nil {
@@ -153,7 +165,7 @@ feed:
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64) {
+func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy, pages *pageKeeper) (u UnitResult, n int64) {
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
@@ -161,12 +173,12 @@ func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predi
 			n = 0
 		}
 	}()
-	return processFile(rd, spec, opts, pred, cs, path, policy)
+	return processFile(rd, spec, opts, pred, cs, path, policy, pages)
 }
 
 // processFile reads and judges one file; it returns the unit and the bytes
 // read.
-func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64) {
+func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy, pages *pageKeeper) (UnitResult, int64) {
 	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []string{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
@@ -224,9 +236,13 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	if pred != nil && len(steps) > 0 {
 		u.Fit = pred.fit(tr, steps[0])
 	}
-	if policy == KeepAllTraces {
+	switch {
+	case policy == KeepAllTraces:
 		t := tr.Clone()
 		u.Trace = &t
+	case len(u.Steps) > 0 && pages.admit(u.Unit, path, u.Verdict):
+		t := tr.Clone()
+		pages.store(path, &t)
 	}
 	return u, lg.Size
 }

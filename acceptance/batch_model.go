@@ -40,19 +40,25 @@ type Batch struct {
 	// MaxPages caps the units with a detail page (see PageUnits).
 	MaxPages int `json:"-"`
 
+	// pageTraces are the records kept for detail pages, by file.
+	pageTraces map[string]*metrics.Trace
 	// loader reads a unit's record again for its detail page; nil when the
 	// batch was not made by Run.
 	loader func(u *UnitResult) *metrics.Trace
 }
 
-// UnitTrace returns the record of unit i: the kept one, else the log read
-// again (and checked against the digest judged), else nil. A record read
-// again is not kept, so a report that draws unit pages one after the other
-// holds one record at a time.
+// UnitTrace returns the record of unit i: the one kept with the unit or
+// for its detail page, else the log read again (and checked against the
+// digest judged), else nil. A record read again is not kept, so a report
+// that draws unit pages one after the other holds one such record at a
+// time.
 func (b *Batch) UnitTrace(i int) *metrics.Trace {
 	u := &b.Units[i]
 	if u.Trace != nil {
 		return u.Trace
+	}
+	if tr := b.pageTraces[u.File]; tr != nil {
+		return tr
 	}
 	if b.loader == nil {
 		return nil
