@@ -241,7 +241,8 @@ const (
 
 // unitFigure draws the unit's steps, or says plainly why there is no chart.
 // unitFig is a unit page's figure made ready away from the document: the
-// record read again, its panels laid out and thinned, their plots built.
+// record fetched (kept, or read again), its panels laid out and thinned,
+// their plots built.
 type unitFig struct {
 	f     *chart.UnitFigure
 	plots []*plot.Plot
@@ -287,8 +288,9 @@ func safeFigure(b *acceptance.Batch, i int) (fig *unitFig) {
 }
 
 // figures prepares the figures of the given units in order, ahead of the
-// caller, on one goroutine; stop ends it early. At most three records are
-// held at once: two prepared figures waiting and one being prepared.
+// caller, on one goroutine; stop ends it early. At most three records read
+// again are held at once: two prepared figures waiting and one being
+// prepared.
 func figures(b *acceptance.Batch, units []int) (next func() *unitFig, stop func()) {
 	const ahead = 2 // prepared figures waiting for their page
 	ch := make(chan *unitFig, ahead)
