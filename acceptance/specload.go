@@ -477,7 +477,13 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 	root = specDeref(root)
 	p.root = root
 	if specIsNull(root) {
-		p.probs = append(p.probs, Problem{Line: root.Line, Column: root.Column, Msg: "the file holds no keys; `stepgate spec init` prints a template"})
+		line, col := root.Line, root.Column
+		if root.Value == "" {
+			// An empty document ("---" alone) has no token to point at; the
+			// parser places it after the end of the file.
+			line, col = 0, 0
+		}
+		p.probs = append(p.probs, Problem{Line: line, Column: col, Msg: "the file holds no keys; `stepgate spec init` prints a template"})
 		return nil, p
 	}
 	if root.Kind != yaml.MappingNode {
