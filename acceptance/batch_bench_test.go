@@ -12,8 +12,8 @@ import (
 )
 
 // benchBatch writes n demo units of 6 s (three steps at 1 kHz) once per
-// benchmark and returns the spec and the files.
-func benchBatch(b *testing.B, n int) (*acceptance.Spec, []string, int64) {
+// benchmark or test and returns the spec, the files and their bytes.
+func benchBatch(b testing.TB, n int) (*acceptance.Spec, []string, int64) {
 	b.Helper()
 	dir := b.TempDir()
 	specPath, logDir, err := demo.Write(dir, demo.Options{Units: n, Duration: 6})

@@ -7,7 +7,6 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
-	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
 )
 
@@ -16,18 +15,7 @@ import (
 // disk since, and it is the record the log held. A unit without a page
 // keeps none, and a changed log then gives no record.
 func TestRunKeepsThePageUnitsRecords(t *testing.T) {
-	specPath, logDir, err := demo.Write(t.TempDir(), demo.Options{Units: 40})
-	if err != nil {
-		t.Fatal(err)
-	}
-	spec, err := acceptance.LoadSpec(specPath)
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err := rigdata.FindLogs([]string{logDir}, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	spec, files, _ := benchBatch(t, 40)
 	const pages = 3
 	b, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{
 		Traces: acceptance.KeepPageTraces, MaxUnitPages: pages, ReportDate: "2026-12-01"})
