@@ -26,11 +26,11 @@ type TracePolicy int
 // Trace policies.
 const (
 	// KeepPageTraces keeps the records of the units that get a detail page
-	// in the PDF, at most MaxUnitPages of them, and no other: memory stays
-	// flat in the batch size. A unit with a page but no kept record (beyond
-	// the first MaxUnitPages pages, or made invalid after judging by a
-	// duplicate serial) has its log read again when its page is drawn (see
-	// Batch.UnitTrace).
+	// in the PDF, at most MaxUnitPages of them and at most 48 MiB, and no
+	// other: memory stays flat in the batch size. A unit with a page but no
+	// kept record (beyond the first MaxUnitPages pages or the budget, or
+	// made invalid after judging by a duplicate serial) has its log read
+	// again when its page is drawn (see Batch.UnitTrace).
 	KeepPageTraces TracePolicy = iota
 	KeepAllTraces              // every unit keeps its record
 	KeepNoTraces               // none
@@ -79,7 +79,7 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 		if limit <= 0 || limit > MaxUnitPages {
 			limit = MaxUnitPages
 		}
-		pages = newPageKeeper(limit, o.AllUnits)
+		pages = newPageKeeper(limit, o.AllUnits, pageRecordBudget)
 	}
 
 	results := make([]UnitResult, len(files))
@@ -95,7 +95,18 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 			// worker's reader lends its buffers instead of copying them.
 			rd := rigdata.NewReader(format).Shared()
 			for i := range jobs {
-				u, n := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces, pages)
+				u, n, tr := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces)
+				// Every unit takes its place among those with a page, with
+				// or without a record to draw; a record is copied out of
+				// the reader's buffers before the next file is read.
+				var size int64
+				if tr != nil && len(u.Steps) > 0 {
+					size = recordSize(tr)
+				}
+				if pages.admit(u.Unit, u.File, u.Verdict, size) {
+					t := tr.Clone()
+					pages.store(u.File, &t)
+				}
 				results[i] = u
 				if o.Progress != nil {
 					mu.Lock()
@@ -165,20 +176,21 @@ feed:
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy, pages *pageKeeper) (u UnitResult, n int64) {
+func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
 				Reasons: []string{fmt.Sprintf("stepgate failed while judging this log (internal error: %v); please report it with the log", r)}}
-			n = 0
+			n, tr = 0, nil
 		}
 	}()
-	return processFile(rd, spec, opts, pred, cs, path, policy, pages)
+	return processFile(rd, spec, opts, pred, cs, path, policy)
 }
 
-// processFile reads and judges one file; it returns the unit and the bytes
-// read.
-func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy, pages *pageKeeper) (UnitResult, int64) {
+// processFile reads and judges one file; it returns the unit, the bytes
+// read and the record measured (nil when none was), which lives in the
+// reader's buffers until its next file.
+func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
 	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []string{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
@@ -203,14 +215,14 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 		} else if fi, serr := os.Stat(path); serr == nil {
 			n = fi.Size()
 		}
-		return u, n
+		return u, n, nil
 	}
 	u.Samples = lg.Rows
 	tr := lg.Trace
 	if verr := tr.Validate(); verr != nil {
 		u.Verdict = Invalid
 		u.Reasons = []string{fmt.Sprintf("log cannot be measured: %v", verr)}
-		return u, lg.Size
+		return u, lg.Size, nil
 	}
 	steps := metrics.FindSteps(tr, spec.Steps.MinChange)
 	u.Steps = make([]StepResult, 0, len(steps))
@@ -236,15 +248,11 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 	if pred != nil && len(steps) > 0 {
 		u.Fit = pred.fit(tr, steps[0])
 	}
-	switch {
-	case policy == KeepAllTraces:
+	if policy == KeepAllTraces {
 		t := tr.Clone()
 		u.Trace = &t
-	case len(u.Steps) > 0 && pages.admit(u.Unit, path, u.Verdict):
-		t := tr.Clone()
-		pages.store(path, &t)
 	}
-	return u, lg.Size
+	return u, lg.Size, &tr
 }
 
 // PageUnits returns the indices of the units that get a detail page: the

@@ -478,7 +478,7 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 	p.root = root
 	if specIsNull(root) {
 		line, col := root.Line, root.Column
-		if root.Value == "" {
+		if line > lineCount(data) {
 			// An empty document ("---" alone) has no token to point at; the
 			// parser places it after the end of the file.
 			line, col = 0, 0
@@ -1193,4 +1193,16 @@ func (p *specParser) nonNegative(path string, v float64) {
 	if !p.skip(path) && v < 0 {
 		p.problem(path, specValNode, "must be ≥ 0, got %s", specFormatFloat(v))
 	}
+}
+
+// lineCount is the number of lines in data, a line break being LF, CR LF
+// or CR.
+func lineCount(data []byte) int {
+	n := 1
+	for i, c := range data {
+		if c == '\n' || (c == '\r' && (i+1 == len(data) || data[i+1] != '\n')) {
+			n++
+		}
+	}
+	return n
 }

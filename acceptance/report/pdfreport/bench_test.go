@@ -12,8 +12,8 @@ import (
 )
 
 // benchDigest judges n demo units of 6 s (three steps at 1 kHz) the way the
-// command line does: no record is kept, so every unit page reads its log
-// again.
+// command line does: only the records of the units that get a page are
+// kept, and the PDF draws those pages from them.
 func benchDigest(b testing.TB, n int) *digest.Digest {
 	b.Helper()
 	specPath, logDir, err := demo.Write(b.TempDir(), demo.Options{Units: n, Duration: 6})
