@@ -478,7 +478,7 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 	p.root = root
 	if specIsNull(root) {
 		line, col := root.Line, root.Column
-		if line > lineCount(data) {
+		if line > lastLine(data) {
 			// An empty document ("---" alone) has no token to point at; the
 			// parser places it after the end of the file.
 			line, col = 0, 0
@@ -524,11 +524,7 @@ func parseSpecDoc(data []byte, name string) (*Spec, *specParser) {
 // at the end of the file.
 func specSyntaxProblem(err error, data []byte) Problem {
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
-	last := bytes.Count(data, []byte("\n"))
-	if len(data) > 0 && data[len(data)-1] != '\n' {
-		last++
-	}
-	last = max(last, 1)
+	last := lastLine(data)
 	atEnd := func(msg string) Problem {
 		return Problem{Line: last, Msg: "invalid YAML: " + msg + " at the end of the file: a bracket, brace or quote opened earlier is not closed"}
 	}
@@ -1195,14 +1191,12 @@ func (p *specParser) nonNegative(path string, v float64) {
 	}
 }
 
-// lineCount is the number of lines in data, a line break being LF, CR LF
-// or CR.
-func lineCount(data []byte) int {
-	n := 1
-	for i, c := range data {
-		if c == '\n' || (c == '\r' && (i+1 == len(data) || data[i+1] != '\n')) {
-			n++
-		}
+// lastLine is the number of the last line of data that holds anything (a
+// final line break opens no line of its own), at least 1.
+func lastLine(data []byte) int {
+	last := bytes.Count(data, []byte("\n"))
+	if len(data) > 0 && data[len(data)-1] != '\n' {
+		last++
 	}
-	return n
+	return max(last, 1)
 }
