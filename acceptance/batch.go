@@ -36,9 +36,10 @@ const (
 	KeepNoTraces               // none
 )
 
-// MaxUnitPages is the default for RunOptions.MaxUnitPages: the most units
-// that get a detail page in the PDF. The XLSX and results.json hold every
-// unit.
+// MaxUnitPages is the default for RunOptions.MaxUnitPages (see
+// DefaultRunOptions): the most units that get a detail page in the PDF. The
+// XLSX and results.json hold every unit. It also bounds the page records
+// Run keeps in memory, whatever the cap.
 const MaxUnitPages = 200
 
 // RunOptions control a batch run.
@@ -46,8 +47,9 @@ type RunOptions struct {
 	Workers  int         // concurrent workers; 0 means one per core
 	Traces   TracePolicy // which traces to keep
 	AllUnits bool        // every unit, not only those that did not pass, gets a detail page
-	// MaxUnitPages caps the units that get a detail page: 0 means
-	// MaxUnitPages, a negative number no cap.
+	// MaxUnitPages caps the units that get a detail page; 0 (or less)
+	// means no cap, as `stepgate run --max-unit-pages 0` does.
+	// DefaultRunOptions sets it to MaxUnitPages.
 	MaxUnitPages int
 	Tool         ToolInfo // name and version printed in the reports
 	ReportDate   string   // YYYY-MM-DD; empty means the newest test date in the logs
@@ -55,6 +57,13 @@ type RunOptions struct {
 	// total and the bytes read so far. It is called from one goroutine at a
 	// time.
 	Progress func(done, total int, bytes int64)
+}
+
+// DefaultRunOptions returns the options `stepgate run` starts from: one
+// worker per core, the records of the page units kept, and at most
+// MaxUnitPages detail pages.
+func DefaultRunOptions() RunOptions {
+	return RunOptions{Traces: KeepPageTraces, MaxUnitPages: MaxUnitPages}
 }
 
 // Run reads every file, measures and judges every step, and returns the
@@ -257,15 +266,12 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 
 // PageUnits returns the indices of the units that get a detail page: the
 // first b.MaxPages units that did not pass (of every unit with all), in
-// batch order; b.MaxPages 0 means MaxUnitPages, negative no cap.
+// batch order; b.MaxPages 0 (or less) means no cap.
 func (b *Batch) PageUnits(all bool) []int {
 	limit := b.MaxPages
-	if limit == 0 {
-		limit = MaxUnitPages
-	}
 	var idx []int
 	for i := range b.Units {
-		if len(idx) == limit {
+		if limit > 0 && len(idx) == limit {
 			break
 		}
 		if all || b.Units[i].Verdict != Pass {

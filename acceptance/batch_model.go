@@ -37,7 +37,8 @@ type Batch struct {
 
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *Spec `json:"-"`
-	// MaxPages caps the units with a detail page (see PageUnits).
+	// MaxPages caps the units with a detail page; 0 means no cap (see
+	// PageUnits and RunOptions.MaxUnitPages).
 	MaxPages int `json:"-"`
 
 	// pageTraces are the records kept for detail pages, by file.

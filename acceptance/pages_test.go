@@ -13,10 +13,11 @@ func TestPageUnits(t *testing.T) {
 		all  bool
 		want []int
 	}{
-		{0, false, []int{1, 2, 4}},       // default cap, not reached
+		{0, false, []int{1, 2, 4}},       // no cap
+		{3, false, []int{1, 2, 4}},       // cap not reached
 		{2, false, []int{1, 2}},          // capped
-		{-1, false, []int{1, 2, 4}},      // no cap
-		{-1, true, []int{0, 1, 2, 3, 4}}, // every unit
+		{0, true, []int{0, 1, 2, 3, 4}},  // every unit
+		{-1, true, []int{0, 1, 2, 3, 4}}, // less than 0 is no cap too
 		{3, true, []int{0, 1, 2}},
 	}
 	for _, c := range cases {

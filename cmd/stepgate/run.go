@@ -149,17 +149,12 @@ func runBatch(ctx context.Context, stdout, stderr io.Writer, f runFlags, args []
 	prog := newProgress(stderr, f.quiet)
 	var readBytes int64
 	b, err := acceptance.Run(ctx, spec, files, acceptance.RunOptions{
-		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: version},
-		ReportDate: date,
-		Workers:    f.workers,
-		AllUnits:   f.allUnits,
-		MaxUnitPages: func() int {
-			if f.maxPages == 0 {
-				return -1
-			}
-			return f.maxPages
-		}(),
-		Traces: acceptance.KeepPageTraces,
+		Tool:         acceptance.ToolInfo{Name: "stepgate", Version: version},
+		ReportDate:   date,
+		Workers:      f.workers,
+		AllUnits:     f.allUnits,
+		MaxUnitPages: f.maxPages, // 0: no limit, on the command line as in the API
+		Traces:       acceptance.KeepPageTraces,
 		Progress: func(done, total int, n int64) {
 			readBytes = n
 			prog.update(done, total, n)

@@ -28,8 +28,9 @@ func benchDigest(b testing.TB, n int) *digest.Digest {
 	if err != nil {
 		b.Fatal(err)
 	}
-	batch, err := acceptance.Run(context.Background(), spec, files,
-		acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepPageTraces})
+	opts := acceptance.DefaultRunOptions()
+	opts.ReportDate = "2026-12-01"
+	batch, err := acceptance.Run(context.Background(), spec, files, opts)
 	if err != nil {
 		b.Fatal(err)
 	}
