@@ -62,9 +62,9 @@ func WriteAllContext(ctx context.Context, dir string, b *acceptance.Batch, o Opt
 		name  string
 		write func(io.Writer) error
 	}{
-		{JSONName, func(w io.Writer) error { return jsonreport.Write(w, b) }},
-		{XLSXName, func(w io.Writer) error { return xlsxreport.WriteDigest(w, d) }},
-		{PDFName, func(w io.Writer) error { return pdfreport.WriteDigest(w, d, o.PDF) }},
+		{JSONName, func(w io.Writer) error { return jsonreport.Write(w, d) }},
+		{XLSXName, func(w io.Writer) error { return xlsxreport.Write(w, d) }},
+		{PDFName, func(w io.Writer) error { return pdfreport.Write(w, d, o.PDF) }},
 	}
 	// The three reports are written at the same time, each to its own
 	// temporary file; they only read the batch and its digest.

@@ -12,15 +12,24 @@ import (
 	"strings"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 )
 
-// Write encodes b as indented JSON followed by a newline: the same bytes as
+// Write encodes the digested batch as indented JSON followed by a newline: the same bytes as
 // json.MarshalIndent(b, "", "  ") plus "\n", but streamed unit by unit, so
 // that a batch of many thousand units is never held in memory as one text.
 // Units are encoded without reflection (see unitEncoder); the other fields
 // go through encoding/json. Map keys are sorted, as encoding/json sorts them,
 // so the same batch always gives the same bytes.
-func Write(w io.Writer, b *acceptance.Batch) error {
+func Write(w io.Writer, d *digest.Digest) error {
+	if d == nil || d.Batch == nil {
+		return fmt.Errorf("results.json: no batch to report")
+	}
+	return writeBatch(w, d.Batch)
+}
+
+// writeBatch streams b to w through a buffer.
+func writeBatch(w io.Writer, b *acceptance.Batch) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
 	if err := write(bw, b); err != nil {
 		return fmt.Errorf("results.json: %w", err)

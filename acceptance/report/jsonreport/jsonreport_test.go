@@ -39,7 +39,7 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var got bytes.Buffer
-			if err := Write(&got, &c.b); err != nil {
+			if err := writeBatch(&got, &c.b); err != nil {
 				t.Fatal(err)
 			}
 			want, err := json.MarshalIndent(&c.b, "", "  ")

@@ -38,7 +38,7 @@ func marshalIndentJSON(t testing.TB, b *acceptance.Batch) []byte {
 func checkSameBytes(t *testing.T, b *acceptance.Batch) {
 	t.Helper()
 	var got bytes.Buffer
-	if err := Write(&got, b); err != nil {
+	if err := writeBatch(&got, b); err != nil {
 		t.Fatal(err)
 	}
 	want := marshalIndentJSON(t, b)
@@ -420,7 +420,7 @@ func TestWriteNonFinite(t *testing.T) {
 			if werr == nil {
 				t.Fatal("MarshalIndent accepted a number that is not finite")
 			}
-			err := Write(io.Discard, b)
+			err := writeBatch(io.Discard, b)
 			if err == nil {
 				t.Fatal("Write accepted a number that is not finite")
 			}

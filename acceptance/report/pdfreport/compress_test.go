@@ -61,7 +61,7 @@ func TestWriteCompressedAsGofpdf(t *testing.T) {
 				t.Fatal(err)
 			}
 			var got bytes.Buffer
-			if err := WriteDigest(&got, tc.d, tc.o); err != nil {
+			if err := Write(&got, tc.d, tc.o); err != nil {
 				t.Fatal(err)
 			}
 			if n := bytes.Count(want.Bytes(), []byte("/Type /Page\n")); n < tc.minPages {
@@ -121,10 +121,10 @@ func TestWriteCompressedUnknownLayout(t *testing.T) {
 func TestWriteCompressedStreams(t *testing.T) {
 	d := mustDigest(t, testBatch())
 	var plain, packed bytes.Buffer
-	if err := WriteDigest(&plain, d, Options{Uncompressed: true}); err != nil {
+	if err := Write(&plain, d, Options{Uncompressed: true}); err != nil {
 		t.Fatal(err)
 	}
-	if err := WriteDigest(&packed, d, Options{}); err != nil {
+	if err := Write(&packed, d, Options{}); err != nil {
 		t.Fatal(err)
 	}
 	objs, _, ok := pageContents(plain.Bytes())

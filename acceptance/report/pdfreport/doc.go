@@ -19,8 +19,8 @@
 // end-of-report line. Every page carries the report title, the spec id and
 // revision, the report id and "page x of y".
 //
-// What the report shows is computed once by package digest; WriteDigest
-// takes a digest that another writer shares.
+// What the report shows is computed once by package digest; Write takes a
+// digest that the other writers share.
 //
 // Charts are drawn as vector graphics through Canvas, a gonum vg.Canvas
 // backed by gofpdf; a page draws a bounded number of curves whatever the

@@ -27,7 +27,11 @@ func ExampleWrite() {
 		}},
 	}
 	var buf bytes.Buffer
-	if err := pdfreport.Write(&buf, b, pdfreport.Options{}); err != nil {
+	d, err := digest.New(b)
+	if err != nil {
+		panic(err)
+	}
+	if err := pdfreport.Write(&buf, d, pdfreport.Options{}); err != nil {
 		fmt.Println(err)
 		return
 	}

@@ -4,10 +4,12 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
+	"io"
 	"math"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -236,4 +238,13 @@ func testBatch() *acceptance.Batch {
 		}
 	}
 	return b
+}
+
+// writeBatch digests b and writes its PDF report to w.
+func writeBatch(w io.Writer, b *acceptance.Batch, o Options) error {
+	d, err := digest.New(b)
+	if err != nil {
+		return err
+	}
+	return Write(w, d, o)
 }

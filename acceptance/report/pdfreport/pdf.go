@@ -36,21 +36,10 @@ const ReportTitle = digest.Title
 // report is clear (ISO/IEC 17025:2017 §7.8.2.1).
 const EndMark = "End of report"
 
-// Write writes the PDF report of the batch to w; it digests the batch
-// first. The same batch and options give the same bytes: the document
-// dates are the report date and nothing depends on the clock or on map
-// order.
-func Write(w io.Writer, b *acceptance.Batch, o Options) error {
-	d, err := digest.New(b)
-	if err != nil {
-		return fmt.Errorf("pdfreport: %w", err)
-	}
-	return WriteDigest(w, d, o)
-}
-
-// WriteDigest writes the PDF report of a digested batch to w, so that a
-// caller writing several reports digests the batch once.
-func WriteDigest(w io.Writer, d *digest.Digest, o Options) error {
+// Write writes the PDF report of a digested batch to w. The same digest and
+// options give the same bytes: the document dates are the report date and
+// nothing depends on the clock or on map order.
+func Write(w io.Writer, d *digest.Digest, o Options) error {
 	// gofpdf writes the pages uncompressed; writeCompressed compresses
 	// them as gofpdf would, at less cost.
 	pdf, err := layOut(d, o, false)

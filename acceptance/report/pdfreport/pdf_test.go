@@ -71,7 +71,7 @@ var textOp = regexp.MustCompile(`(?s)BT [0-9.\-]+ [0-9.\-]+ Td \(((?:[^\\)]|\\.)
 func write(t *testing.T, b *acceptance.Batch, o Options) []byte {
 	t.Helper()
 	var buf bytes.Buffer
-	if err := Write(&buf, b, o); err != nil {
+	if err := writeBatch(&buf, b, o); err != nil {
 		t.Fatalf("Write: %v", err)
 	}
 	return buf.Bytes()
@@ -289,13 +289,13 @@ func TestWriteErrors(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			b := testBatch()
 			tc.edit(b)
-			err := Write(&bytes.Buffer{}, b, Options{})
+			err := writeBatch(&bytes.Buffer{}, b, Options{})
 			if err == nil || !strings.Contains(err.Error(), tc.want) {
 				t.Errorf("error %v, want one containing %q", err, tc.want)
 			}
 		})
 	}
-	if err := Write(&bytes.Buffer{}, nil, Options{}); err == nil {
+	if err := writeBatch(&bytes.Buffer{}, nil, Options{}); err == nil {
 		t.Errorf("nil batch: no error")
 	}
 }

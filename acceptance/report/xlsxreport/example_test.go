@@ -7,6 +7,7 @@ import (
 	"github.com/xuri/excelize/v2"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/report/xlsxreport"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -32,7 +33,11 @@ func ExampleWrite() {
 		}},
 	}
 	var buf bytes.Buffer
-	if err := xlsxreport.Write(&buf, b); err != nil {
+	d, err := digest.New(b)
+	if err != nil {
+		panic(err)
+	}
+	if err := xlsxreport.Write(&buf, d); err != nil {
 		fmt.Println(err)
 		return
 	}

@@ -160,14 +160,14 @@ func TestPackedSheetsCleanedUp(t *testing.T) {
 		return names
 	}
 	var full bytes.Buffer
-	if err := Write(&full, testBatch()); err != nil {
+	if err := writeBatch(&full, testBatch()); err != nil {
 		t.Fatal(err)
 	}
 	if l := left(); len(l) != 0 {
 		t.Errorf("after a write: %v left in the temporary directory", l)
 	}
 	for _, n := range []int{0, 100, full.Len() / 2, full.Len() - 10} {
-		if err := Write(&failAfter{n: n}, testBatch()); err == nil || !strings.Contains(err.Error(), "no space left") {
+		if err := writeBatch(&failAfter{n: n}, testBatch()); err == nil || !strings.Contains(err.Error(), "no space left") {
 			t.Errorf("writer failing after %d bytes: error %v", n, err)
 		}
 		if l := left(); len(l) != 0 {
@@ -180,12 +180,12 @@ func TestPackedSheetsCleanedUp(t *testing.T) {
 // temporary directory cannot be used: the same bytes, from memory.
 func TestPackedSheetsWithoutTemporaryDirectory(t *testing.T) {
 	var want bytes.Buffer
-	if err := Write(&want, testBatch()); err != nil {
+	if err := writeBatch(&want, testBatch()); err != nil {
 		t.Fatal(err)
 	}
 	t.Setenv("TMPDIR", filepath.Join(t.TempDir(), "missing"))
 	var got bytes.Buffer
-	if err := Write(&got, testBatch()); err != nil {
+	if err := writeBatch(&got, testBatch()); err != nil {
 		t.Fatalf("no temporary directory: %v", err)
 	}
 	if !bytes.Equal(got.Bytes(), want.Bytes()) {
@@ -260,7 +260,7 @@ func TestPackingFailuresCleanUp(t *testing.T) {
 // sheets included.
 func TestZipVersions(t *testing.T) {
 	var buf bytes.Buffer
-	if err := Write(&buf, testBatch()); err != nil {
+	if err := writeBatch(&buf, testBatch()); err != nil {
 		t.Fatal(err)
 	}
 	zr, err := zip.NewReader(bytes.NewReader(buf.Bytes()), int64(buf.Len()))

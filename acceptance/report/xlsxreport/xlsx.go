@@ -13,7 +13,6 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
-	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -32,19 +31,9 @@ const (
 // spreadsheet applications that read it: 1,048,576).
 const maxRows = 1 << 20
 
-// Write writes the workbook report of the batch to w; it digests the batch
-// first. The same batch gives the same bytes.
-func Write(w io.Writer, b *acceptance.Batch) error {
-	d, err := digest.New(b)
-	if err != nil {
-		return fmt.Errorf("xlsxreport: %w", err)
-	}
-	return WriteDigest(w, d)
-}
-
-// WriteDigest writes the workbook report of a digested batch to w, so that
-// a caller writing several reports digests the batch once.
-func WriteDigest(w io.Writer, d *digest.Digest) error {
+// Write writes the workbook report of a digested batch to w. The same
+// digest gives the same bytes.
+func Write(w io.Writer, d *digest.Digest) error {
 	if d == nil || d.Batch == nil {
 		return fmt.Errorf("xlsxreport: no batch to report")
 	}
