@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"path/filepath"
 
@@ -9,11 +10,23 @@ import (
 	"github.com/stepgate/stepgate/acceptance/demo"
 )
 
+// demoOptions are the options of `stepgate demo`, one field per flag.
+type demoOptions struct {
+	Out        string  // --out: directory for the spec, the logs and the reports
+	Units      int     // --units: units to generate, at least 1
+	Duration   float64 // --duration-s: seconds logged per unit
+	NoRun      bool    // --no-run: write the spec and logs only
+	ReportDate string  // --report-date YYYY-MM-DD
+}
+
+// defaultDemoOptions are the demo options the command line starts from.
+func defaultDemoOptions() demoOptions {
+	return demoOptions{Out: "demo-report", Units: 40, Duration: demo.DefaultDuration}
+}
+
+// newDemoCmd declares `stepgate demo` and its flags.
 func newDemoCmd() *cobra.Command {
-	var out, reportDate string
-	var units int
-	var duration float64
-	var noRun bool
+	o := defaultDemoOptions()
 	cmd := &cobra.Command{
 		Use:   "demo --out DIR",
 		Short: "Write an invented example line (spec and logs) and run the batch on it",
@@ -27,33 +40,42 @@ It then runs the batch and writes the reports under DIR/report.`,
   stepgate demo --out /tmp/shift --units 5000 --duration-s 6 --no-run`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if units < 1 {
-				return usageErr(fmt.Errorf("--units %d: want at least 1", units))
-			}
-			specPath, logDir, err := demo.Write(out, demo.Options{Units: units, Duration: duration})
-			if err != nil {
-				return usageErr(err)
-			}
-			w := cmd.OutOrStdout()
-			fmt.Fprintf(w, "demo spec: %s\ndemo logs: %s (%d units)\n", specPath, logDir, units)
-			if noRun {
-				return nil
-			}
-			err = runBatch(cmd.Context(), w, cmd.ErrOrStderr(), runFlags{
-				spec: specPath, out: filepath.Join(out, "report"), reportDate: reportDate,
-			}, []string{logDir})
-			if ee, ok := err.(*exitError); ok && ee.code == 1 {
-				// Failing units are the point of the demo, not an error.
-				fmt.Fprintln(w, "the demo line has failing and invalid units by design; see the reports")
-				return nil
-			}
-			return err
+			return runDemo(cmd.Context(), cmdStreams(cmd), o)
 		},
 	}
-	cmd.Flags().StringVar(&out, "out", "demo-report", "directory for the demo spec, logs and reports")
-	cmd.Flags().IntVar(&units, "units", 40, "number of units to generate")
-	cmd.Flags().Float64Var(&duration, "duration-s", demo.DefaultDuration, "seconds logged per unit (a move every 1.5 s: 3.5 s gives two steps, 6 s three)")
-	cmd.Flags().BoolVar(&noRun, "no-run", false, "only write the spec and logs (scale data for benchmarks)")
-	cmd.Flags().StringVar(&reportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD")
+	fl := cmd.Flags()
+	fl.StringVar(&o.Out, "out", o.Out, "directory for the demo spec, logs and reports")
+	fl.IntVar(&o.Units, "units", o.Units, "number of units to generate")
+	fl.Float64Var(&o.Duration, "duration-s", o.Duration, "seconds logged per unit (a move every 1.5 s: 3.5 s gives two steps, 6 s three)")
+	fl.BoolVar(&o.NoRun, "no-run", false, "only write the spec and logs (scale data for benchmarks)")
+	fl.StringVar(&o.ReportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD")
 	return cmd
+}
+
+// runDemo writes the demo line and, unless o.NoRun, runs the batch on it
+// into o.Out/report. Failing units are the point of the demo: a run whose
+// units did not all pass is not an error.
+func runDemo(ctx context.Context, s streams, o demoOptions) error {
+	if o.Units < 1 {
+		return usageErr(fmt.Errorf("--units %d: want at least 1", o.Units))
+	}
+	specPath, logDir, err := demo.Write(o.Out, demo.Options{Units: o.Units, Duration: o.Duration})
+	if err != nil {
+		return usageErr(err)
+	}
+	fmt.Fprintf(s.out, "demo spec: %s\ndemo logs: %s (%d units)\n", specPath, logDir, o.Units)
+	if o.NoRun {
+		return nil
+	}
+	err = runBatch(ctx, s, runOptions{
+		Spec: specPath, Out: filepath.Join(o.Out, "report"), Paths: []string{logDir},
+		ReportDate: o.ReportDate,
+		// Every demo unit that did not pass gets a page.
+		MaxUnitPages: 0,
+	})
+	if ee, ok := err.(*exitError); ok && ee.code == 1 {
+		fmt.Fprintln(s.out, "the demo line has failing and invalid units by design; see the reports")
+		return nil
+	}
+	return err
 }

@@ -11,6 +11,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 
 	"github.com/spf13/cobra"
@@ -75,4 +76,16 @@ machinery-safety standards and competent, licensed practice.`,
 	}
 	root.AddCommand(newRunCmd(), newDemoCmd(), newSpecCmd(), newPredictCmd(), newIdentifyCmd())
 	return root
+}
+
+// streams are the output streams a command writes to.
+type streams struct {
+	out io.Writer // results: tables, JSON, the reports written
+	err io.Writer // notices, progress and timing
+}
+
+// cmdStreams are the streams cobra gives cmd (os.Stdout and os.Stderr
+// unless a test sets others).
+func cmdStreams(cmd *cobra.Command) streams {
+	return streams{out: cmd.OutOrStdout(), err: cmd.ErrOrStderr()}
 }

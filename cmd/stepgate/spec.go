@@ -9,6 +9,12 @@ import (
 	"github.com/stepgate/stepgate/templates"
 )
 
+// specCheckOptions are the options of `stepgate spec check`.
+type specCheckOptions struct {
+	File string // the spec to check
+}
+
+// newSpecCmd declares `stepgate spec` and its subcommands init and check.
 func newSpecCmd() *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "spec",
@@ -20,8 +26,7 @@ func newSpecCmd() *cobra.Command {
 		Example: "  stepgate spec init > vd25.yaml",
 		Args:    cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			_, err := fmt.Fprint(cmd.OutOrStdout(), templates.SpecTemplate)
-			return err
+			return specInit(cmdStreams(cmd))
 		},
 	}
 	checkCmd := &cobra.Command{
@@ -30,14 +35,25 @@ func newSpecCmd() *cobra.Command {
 		Example: "  stepgate spec check vd25.yaml",
 		Args:    cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			s, err := acceptance.LoadSpec(args[0])
-			if err != nil {
-				return usageErr(err)
-			}
-			fmt.Fprintf(cmd.OutOrStdout(), "%s: valid (sha256 %s)\n\n%s", args[0], s.SHA256, s.Explain())
-			return nil
+			return specCheck(cmdStreams(cmd), specCheckOptions{File: args[0]})
 		},
 	}
 	cmd.AddCommand(initCmd, checkCmd)
 	return cmd
+}
+
+// specInit prints the commented spec template.
+func specInit(s streams) error {
+	_, err := fmt.Fprint(s.out, templates.SpecTemplate)
+	return err
+}
+
+// specCheck loads o.File and prints its digest and what it will do.
+func specCheck(s streams, o specCheckOptions) error {
+	spec, err := acceptance.LoadSpec(o.File)
+	if err != nil {
+		return usageErr(err)
+	}
+	fmt.Fprintf(s.out, "%s: valid (sha256 %s)\n\n%s", o.File, spec.SHA256, spec.Explain())
+	return nil
 }

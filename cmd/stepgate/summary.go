@@ -1,0 +1,75 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/stepgate/stepgate/acceptance"
+)
+
+// summaryAllUpTo is the batch size up to which the summary lists every
+// unit; a larger batch lists the units that did not pass (--verbose lists
+// all).
+const summaryAllUpTo = 100
+
+// printSummary writes the verdict table to w.
+func printSummary(w io.Writer, b *acceptance.Batch, verbose bool) {
+	fmt.Fprintf(w, "%s rev %s: %s\n", b.Spec.SpecID, b.Spec.Revision, b.Spec.Title)
+	listAll := verbose || len(b.Units) <= summaryAllUpTo
+	// Unit ids come from file names and log metadata: control characters
+	// in them must not reach the terminal.
+	ids := make([]string, len(b.Units))
+	width := len("unit")
+	for i, u := range b.Units {
+		ids[i] = oneLine(u.Unit, 64)
+		width = max(width, utf8.RuneCountInString(ids[i]))
+	}
+	head := "first reason"
+	if verbose {
+		head = "reasons"
+	}
+	fmt.Fprintf(w, "%-*s  %-7s  %s\n", width, "unit", "verdict", head)
+	for i, u := range b.Units {
+		if !listAll && u.Verdict == acceptance.Pass {
+			continue
+		}
+		reason := ""
+		if len(u.Reasons) > 0 {
+			reason = u.Reasons[0]
+		}
+		pad := strings.Repeat(" ", width-utf8.RuneCountInString(ids[i]))
+		fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, oneLine(reason, 100))
+		if verbose {
+			for _, r := range u.Reasons[min(1, len(u.Reasons)):] {
+				fmt.Fprintf(w, "%s  %-7s  %s\n", strings.Repeat(" ", width), "", oneLine(r, 100))
+			}
+		}
+	}
+	if !listAll {
+		fmt.Fprintf(w, "(%d passing units not listed; --verbose lists every unit)\n", b.Summary.Pass)
+	}
+	s := b.Summary
+	yield := 0.0
+	if s.Units > 0 {
+		yield = 100 * float64(s.Pass) / float64(s.Units)
+	}
+	fmt.Fprintf(w, "units %d: pass %d, fail %d, invalid %d; yield %.1f %%\n", s.Units, s.Pass, s.Fail, s.Invalid, yield)
+}
+
+// oneLine replaces control characters (C0, DEL and C1, which terminals
+// act on) and invalid UTF-8 by spaces and shortens s to at most n runes.
+func oneLine(s string, n int) string {
+	s = strings.Map(func(r rune) rune {
+		if r < 0x20 || (r >= 0x7f && r < 0xa0) || r == utf8.RuneError {
+			return ' '
+		}
+		return r
+	}, s)
+	rs := []rune(s)
+	if len(rs) > n {
+		return string(rs[:n-1]) + "…"
+	}
+	return s
+}
