@@ -50,7 +50,7 @@ func BenchmarkRun(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if _, err := report.WriteAll(out, batch, report.Options{}); err != nil {
+		if _, err := report.WriteAll(context.Background(), out, batch, report.BatchTraces(batch), report.Options{}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -33,21 +33,18 @@ type Options struct {
 	PDF pdfreport.Options
 }
 
-// WriteAll writes the three reports into dir (created if missing). On any
-// error no final name is touched and the temporary files are removed.
-func WriteAll(dir string, b *acceptance.Batch, o Options) (paths []string, err error) {
-	return WriteAllContext(context.Background(), dir, b, o)
-}
-
-// WriteAllContext is WriteAll that stops when ctx is cancelled (an
-// interrupted run). Each report is written to a temporary file in dir; only
-// when all three are complete, flushed and synced, and ctx is still live,
-// are they renamed to their final names, one after the other. Once
-// cancelled, it renames nothing: the final names keep the previous run's
-// reports, or stay absent. On every error, including a cancellation, a
-// failed write (a full disk) or a panic in a report writer, the temporary
-// files are removed and the error says which report and directory.
-func WriteAllContext(ctx context.Context, dir string, b *acceptance.Batch, o Options) (paths []string, err error) {
+// WriteAll writes the three reports of batch b into dir (created if
+// missing): results.json, report.xlsx and report.pdf. It digests the batch
+// once and hands the digest to every writer; the PDF's unit pages draw the
+// records traces gives (nil draws none). Each report is written to a
+// temporary file in dir; only when all three are complete, flushed and
+// synced, and ctx is still live, are they renamed to their final names,
+// one after the other. Once ctx is cancelled (an interrupted run) it
+// renames nothing: the final names keep the previous run's reports, or
+// stay absent. On every error, including a cancellation, a failed write (a
+// full disk) or a panic in a report writer, the temporary files are
+// removed and the error says which report and directory.
+func WriteAll(ctx context.Context, dir string, b *acceptance.Batch, traces digest.TraceStore, o Options) (paths []string, err error) {
 	if err := interrupted(ctx); err != nil {
 		return nil, err
 	}
@@ -64,7 +61,7 @@ func WriteAllContext(ctx context.Context, dir string, b *acceptance.Batch, o Opt
 	}{
 		{JSONName, func(w io.Writer) error { return jsonreport.Write(w, d) }},
 		{XLSXName, func(w io.Writer) error { return xlsxreport.Write(w, d) }},
-		{PDFName, func(w io.Writer) error { return pdfreport.Write(w, d, o.PDF) }},
+		{PDFName, func(w io.Writer) error { return pdfreport.Write(w, d, traces, o.PDF) }},
 	}
 	// The three reports are written at the same time, each to its own
 	// temporary file; they only read the batch and its digest.

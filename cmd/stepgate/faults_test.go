@@ -452,7 +452,7 @@ func TestVanishingInput(t *testing.T) {
 		}
 	}
 	out := filepath.Join(dir, "out")
-	if _, err := report.WriteAll(out, b, report.Options{}); err != nil {
+	if _, err := report.WriteAll(context.Background(), out, b, report.BatchTraces(b), report.Options{}); err != nil {
 		t.Fatalf("reports of a batch with a vanished log: %v", err)
 	}
 }

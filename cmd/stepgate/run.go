@@ -116,7 +116,7 @@ func runBatch(ctx context.Context, s streams, o runOptions) error {
 	if err != nil {
 		return usageErr(fmt.Errorf("%w; no report written", err))
 	}
-	paths, err := report.WriteAllContext(ctx, o.Out, b, report.Options{PDF: pdfreport.Options{AllUnits: o.AllUnits}})
+	paths, err := report.WriteAll(ctx, o.Out, b, report.BatchTraces(b), report.Options{PDF: pdfreport.Options{AllUnits: o.AllUnits}})
 	if err != nil {
 		return usageErr(err)
 	}

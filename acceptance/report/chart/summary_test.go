@@ -116,7 +116,8 @@ func unitBatch(steps int) *acceptance.Batch {
 }
 
 func TestForUnitSteps(t *testing.T) {
-	f := ForUnitSteps(unitBatch(2), 0)
+	ub := unitBatch(2)
+	f := ForUnitSteps(ub, 0, ub.Units[0].Trace)
 	if len(f.Panels) != 2 || f.NotDrawn != 0 || f.PredictionKind != "ideal" || f.ResponseUnit != "mm" {
 		t.Fatalf("figure %d panels, %d not drawn, kind %q", len(f.Panels), f.NotDrawn, f.PredictionKind)
 	}
@@ -204,13 +205,12 @@ func TestForUnitSteps(t *testing.T) {
 	}
 
 	// More steps than MaxPanels: the rest are counted, not drawn.
-	if f := ForUnitSteps(unitBatch(MaxPanels+2), 0); len(f.Panels) != MaxPanels || f.NotDrawn != 2 {
+	many := unitBatch(MaxPanels + 2)
+	if f := ForUnitSteps(many, 0, many.Units[0].Trace); len(f.Panels) != MaxPanels || f.NotDrawn != 2 {
 		t.Errorf("%d panels, %d not drawn; want %d and 2", len(f.Panels), f.NotDrawn, MaxPanels)
 	}
 	// Without a record there is nothing to draw.
-	b := unitBatch(2)
-	b.Units[0].Trace = nil
-	if f := ForUnitSteps(b, 0); len(f.Panels) != 0 || f.Steps != 2 {
+	if f := ForUnitSteps(unitBatch(2), 0, nil); len(f.Panels) != 0 || f.Steps != 2 {
 		t.Errorf("no record: %d panels, %d steps", len(f.Panels), f.Steps)
 	}
 }

@@ -75,11 +75,11 @@ type Mark struct {
 }
 
 // ForUnitSteps lays out the steps of unit number i of the batch (an index
-// into b.Units). A unit without a kept record gets a figure without panels.
-func ForUnitSteps(b *acceptance.Batch, i int) *UnitFigure {
+// into b.Units) on its record tr. A unit without a record (tr nil) gets a
+// figure without panels.
+func ForUnitSteps(b *acceptance.Batch, i int, tr *metrics.Trace) *UnitFigure {
 	u := &b.Units[i]
 	f := &UnitFigure{Steps: len(u.Steps), ResponseUnit: digest.ResponseUnit(b)}
-	tr := b.UnitTrace(i)
 	if tr == nil || tr.Len() == 0 {
 		return f
 	}

@@ -51,7 +51,7 @@ func BenchmarkWritePDF(b *testing.B) {
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if err := Write(io.Discard, d, Options{}); err != nil {
+		if err := Write(io.Discard, d, keptTraces{}, Options{}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -52,7 +52,7 @@ func TestWriteCompressedAsGofpdf(t *testing.T) {
 		{"40 demo units, every unit", benchDigest(t, 40), Options{AllUnits: true}, 3 * 8},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			pdf, err := layOut(tc.d, tc.o, true)
+			pdf, err := layOut(tc.d, keptTraces{}, tc.o, true)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -61,7 +61,7 @@ func TestWriteCompressedAsGofpdf(t *testing.T) {
 				t.Fatal(err)
 			}
 			var got bytes.Buffer
-			if err := Write(&got, tc.d, tc.o); err != nil {
+			if err := Write(&got, tc.d, keptTraces{}, tc.o); err != nil {
 				t.Fatal(err)
 			}
 			if n := bytes.Count(want.Bytes(), []byte("/Type /Page\n")); n < tc.minPages {
@@ -91,7 +91,7 @@ func mustDigest(t *testing.T, b *acceptance.Batch) *digest.Digest {
 // TestWriteCompressedUnknownLayout: a document that is not laid out as
 // gofpdf writes it is written as it is.
 func TestWriteCompressedUnknownLayout(t *testing.T) {
-	pdf, err := layOut(mustDigest(t, testBatch()), Options{}, false)
+	pdf, err := layOut(mustDigest(t, testBatch()), keptTraces{}, Options{}, false)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -121,10 +121,10 @@ func TestWriteCompressedUnknownLayout(t *testing.T) {
 func TestWriteCompressedStreams(t *testing.T) {
 	d := mustDigest(t, testBatch())
 	var plain, packed bytes.Buffer
-	if err := Write(&plain, d, Options{Uncompressed: true}); err != nil {
+	if err := Write(&plain, d, keptTraces{}, Options{Uncompressed: true}); err != nil {
 		t.Fatal(err)
 	}
-	if err := Write(&packed, d, Options{}); err != nil {
+	if err := Write(&packed, d, keptTraces{}, Options{}); err != nil {
 		t.Fatal(err)
 	}
 	objs, _, ok := pageContents(plain.Bytes())

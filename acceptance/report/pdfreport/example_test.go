@@ -31,7 +31,7 @@ func ExampleWrite() {
 	if err != nil {
 		panic(err)
 	}
-	if err := pdfreport.Write(&buf, d, pdfreport.Options{}); err != nil {
+	if err := pdfreport.Write(&buf, d, nil, pdfreport.Options{}); err != nil {
 		fmt.Println(err)
 		return
 	}

@@ -246,5 +246,10 @@ func writeBatch(w io.Writer, b *acceptance.Batch, o Options) error {
 	if err != nil {
 		return err
 	}
-	return Write(w, d, o)
+	return Write(w, d, keptTraces{}, o)
 }
+
+// keptTraces gives the records kept with the units.
+type keptTraces struct{}
+
+func (keptTraces) UnitTrace(u *acceptance.UnitResult) (*metrics.Trace, error) { return u.Trace, nil }

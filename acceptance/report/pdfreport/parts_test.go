@@ -198,7 +198,7 @@ func TestWrap(t *testing.T) {
 // goroutine that prepares figures ahead of the layout.
 func TestFigurePanicIsAnError(t *testing.T) {
 	b := testBatch()
-	next, stop := figures(b, []int{0, len(b.Units) + 5})
+	next, stop := figures(b, keptTraces{}, []int{0, len(b.Units) + 5})
 	defer stop()
 	if fig := next(); fig == nil || fig.err != nil {
 		t.Fatalf("unit 0: %+v", fig)

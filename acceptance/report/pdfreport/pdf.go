@@ -36,13 +36,14 @@ const ReportTitle = digest.Title
 // report is clear (ISO/IEC 17025:2017 §7.8.2.1).
 const EndMark = "End of report"
 
-// Write writes the PDF report of a digested batch to w. The same digest and
-// options give the same bytes: the document dates are the report date and
-// nothing depends on the clock or on map order.
-func Write(w io.Writer, d *digest.Digest, o Options) error {
+// Write writes the PDF report of a digested batch to w. The unit pages draw
+// the records traces gives; a nil store draws none. The same digest,
+// records and options give the same bytes: the document dates are the
+// report date and nothing depends on the clock or on map order.
+func Write(w io.Writer, d *digest.Digest, traces digest.TraceStore, o Options) error {
 	// gofpdf writes the pages uncompressed; writeCompressed compresses
 	// them as gofpdf would, at less cost.
-	pdf, err := layOut(d, o, false)
+	pdf, err := layOut(d, traces, o, false)
 	if err != nil {
 		return err
 	}
@@ -63,7 +64,7 @@ func Write(w io.Writer, d *digest.Digest, o Options) error {
 
 // layOut lays the report out in a new document, to be written by its
 // Output method; gofpdf compresses the pages when compress is set.
-func layOut(d *digest.Digest, o Options, compress bool) (*gofpdf.Fpdf, error) {
+func layOut(d *digest.Digest, traces digest.TraceStore, o Options, compress bool) (*gofpdf.Fpdf, error) {
 	if d == nil || d.Batch == nil {
 		return nil, fmt.Errorf("pdfreport: no batch to report")
 	}
@@ -120,7 +121,7 @@ func layOut(d *digest.Digest, o Options, compress bool) (*gofpdf.Fpdf, error) {
 		}
 	}
 	pages := b.PageUnits(o.AllUnits)
-	next, stop := figures(b, pages)
+	next, stop := figures(b, traces, pages)
 	defer stop()
 	for _, i := range pages {
 		if err := r.unitPage(i, next()); err != nil {

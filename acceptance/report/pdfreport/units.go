@@ -249,13 +249,22 @@ type unitFig struct {
 	w     float64 // panel width, mm
 	cols  int
 	err   error
+	// readErr is why the record could not be read again, if it could not.
+	readErr error
 }
 
-// prepareFigure builds the figure of unit i. It reads the batch only, so
-// the figures of the next pages are prepared while one page is laid out.
-func prepareFigure(b *acceptance.Batch, i int) *unitFig {
-	f := chart.ForUnitSteps(b, i)
-	fig := &unitFig{f: f, cols: 1}
+// prepareFigure builds the figure of unit i. It reads the batch and the
+// unit's record only, so the figures of the next pages are prepared while
+// one page is laid out. A record that cannot be read again gives a figure
+// without panels whose error the page states.
+func prepareFigure(b *acceptance.Batch, traces digest.TraceStore, i int) *unitFig {
+	var tr *metrics.Trace
+	var readErr error
+	if traces != nil {
+		tr, readErr = traces.UnitTrace(&b.Units[i])
+	}
+	f := chart.ForUnitSteps(b, i, tr)
+	fig := &unitFig{f: f, cols: 1, readErr: readErr}
 	if len(f.Panels) == 0 {
 		return fig
 	}
@@ -278,20 +287,20 @@ func prepareFigure(b *acceptance.Batch, i int) *unitFig {
 
 // safeFigure is prepareFigure with a panic turned into the figure's error,
 // since it runs past the report writer's own recovery.
-func safeFigure(b *acceptance.Batch, i int) (fig *unitFig) {
+func safeFigure(b *acceptance.Batch, traces digest.TraceStore, i int) (fig *unitFig) {
 	defer func() {
 		if r := recover(); r != nil {
 			fig = &unitFig{err: fmt.Errorf("internal error preparing the figure: %v", r)}
 		}
 	}()
-	return prepareFigure(b, i)
+	return prepareFigure(b, traces, i)
 }
 
 // figures prepares the figures of the given units in order, ahead of the
 // caller, on one goroutine; stop ends it early. At most three records read
 // again are held at once: two prepared figures waiting and one being
 // prepared.
-func figures(b *acceptance.Batch, units []int) (next func() *unitFig, stop func()) {
+func figures(b *acceptance.Batch, traces digest.TraceStore, units []int) (next func() *unitFig, stop func()) {
 	const ahead = 2 // prepared figures waiting for their page
 	ch := make(chan *unitFig, ahead)
 	done := make(chan struct{})
@@ -299,7 +308,7 @@ func figures(b *acceptance.Batch, units []int) (next func() *unitFig, stop func(
 		defer close(ch)
 		for _, i := range units {
 			select {
-			case ch <- safeFigure(b, i):
+			case ch <- safeFigure(b, traces, i):
 			case <-done:
 				return
 			}
@@ -327,6 +336,8 @@ func (r *report) unitFigure(i int, fig *unitFig) error {
 			msg = "No chart: no record could be read from this file, so there is no trace to draw. The reasons above say where reading stopped."
 		case len(u.Steps) == 0:
 			msg = "No chart: the record has no step to draw."
+		case fig.readErr != nil:
+			msg = "No chart: the record could not be read again: " + fig.readErr.Error() + "."
 		case len(f.Skipped) > 0:
 			msg = "No chart: " + strings.Join(f.Skipped, "; ") + "."
 		}
