@@ -21,3 +21,21 @@ func ExampleWelch() {
 	// Output:
 	// change -0.0298 s, 95 % interval -0.0407 to -0.0190 s, ν = 7.8, p = 0.00024
 }
+
+// The pass rate of 46 units of 48 under new gains against 41 of 48 under the
+// old ones (invented counts), each with a 95 % Wilson interval, and the
+// change with Newcombe's interval.
+func ExampleNewcombeDifference() {
+	d := stats.NewcombeDifference(41, 48, 46, 48, 0.95)
+	if !d.Known() {
+		fmt.Println("not computable:", d.Reason)
+		return
+	}
+	fmt.Printf("before %.1f %% (%.1f to %.1f)\n", 100*d.Before.P, 100*d.Before.Low, 100*d.Before.High)
+	fmt.Printf("after  %.1f %% (%.1f to %.1f)\n", 100*d.After.P, 100*d.After.Low, 100*d.After.High)
+	fmt.Printf("change %+.1f points (%.1f to %.1f)\n", 100*d.Difference, 100*d.Low, 100*d.High)
+	// Output:
+	// before 85.4 % (72.8 to 92.8)
+	// after  95.8 % (86.0 to 98.8)
+	// change +10.4 points (-1.8 to 23.4)
+}
