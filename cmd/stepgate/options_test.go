@@ -94,3 +94,28 @@ func TestOrList(t *testing.T) {
 		}
 	}
 }
+
+// The predict options are checked before the spec is read; the spec is
+// read only when they are sound.
+func TestPredictOptionsCheckedFirst(t *testing.T) {
+	one, five := 1.0, 5.0
+	nope := filepath.Join(t.TempDir(), "nope.yaml")
+	cases := []struct {
+		name string
+		o    predictOptions
+		msg  string
+	}{
+		{"two targets", predictOptions{Spec: nope, To: 1, ForDamping: &one, ForOvershoot: &five}, "give --for-damping or --for-overshoot, not both"},
+		{"no step", predictOptions{Spec: nope, From: 2, To: 2}, "--from and --to are both 2: no step to predict"},
+		{"spec", predictOptions{Spec: nope, To: 1, ForDamping: &one}, "nope.yaml"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var stdout bytes.Buffer
+			code, msg := usageCode(runPredict(streams{&stdout, &stdout}, c.o))
+			if code != 2 || !strings.Contains(msg, c.msg) || stdout.Len() != 0 {
+				t.Errorf("exit %d, %q, printed %q; want 2 with %q", code, msg, stdout.String(), c.msg)
+			}
+		})
+	}
+}

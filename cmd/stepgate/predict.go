@@ -43,10 +43,29 @@ type designOutput struct {
 	WhyRealised string   `json:"why_realised,omitempty"`
 }
 
+// predictOptions are the options of `stepgate predict`, one field per flag.
+type predictOptions struct {
+	Spec string // --spec: acceptance spec with a model section; required
+	// ForDamping (--for-damping) and ForOvershoot (--for-overshoot, %)
+	// ask for a designed proportional gain; nil when not given. They
+	// exclude each other.
+	ForDamping, ForOvershoot *float64
+	From, To                 float64 // --from, --to: the commanded step
+	Duration                 float64 // --duration-s: simulated time after the step; 0: long enough to settle
+	Sample                   float64 // --sample-s: output sample period; 0: 1 ms or the loop's if shorter
+	JSON                     bool    // --json: print JSON
+}
+
+// defaultPredictOptions are the predict options the command line starts
+// from.
+func defaultPredictOptions() predictOptions {
+	return predictOptions{From: 0, To: 1}
+}
+
+// newPredictCmd declares `stepgate predict` and its flags.
 func newPredictCmd() *cobra.Command {
-	var specPath string
-	var forDamping, forOvershoot, from, to, duration, dt float64
-	var asJSON bool
+	o := defaultPredictOptions()
+	var forDamping, forOvershoot float64
 	cmd := &cobra.Command{
 		Use:   "predict --spec FILE [--for-damping Z | --for-overshoot P] [--json]",
 		Short: "Predict the step response from the spec's model, and design a proportional gain",
@@ -63,98 +82,141 @@ for the ideal and, when the spec has a loop section, the realised loop.
   stepgate predict --spec vd25.yaml --for-damping 1 --json`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			fl := cmd.Flags()
-			if fl.Changed("for-damping") && fl.Changed("for-overshoot") {
-				return usageErr(errors.New("give --for-damping or --for-overshoot, not both"))
+			if cmd.Flags().Changed("for-damping") {
+				o.ForDamping = &forDamping
 			}
-			spec, err := acceptance.LoadSpec(specPath)
-			if err != nil {
-				return usageErr(err)
+			if cmd.Flags().Changed("for-overshoot") {
+				o.ForOvershoot = &forOvershoot
 			}
-			if spec.Model == nil {
-				return usageErr(fmt.Errorf("%s: the spec has no model section; see `stepgate spec init`", specPath))
-			}
-			sys, err := model.Build(*spec.Model)
-			if err != nil {
-				return usageErr(fmt.Errorf("%s: model: %w", specPath, err))
-			}
-			if from == to {
-				return usageErr(fmt.Errorf("--from and --to are both %v: no step to predict", from))
-			}
-			if duration == 0 {
-				if duration, err = sys.SuggestedDuration(); err != nil {
-					return usageErr(fmt.Errorf("%s: model: %w", specPath, err))
-				}
-				// Twice the settling horizon, so that the final window of the
-				// metrics lies well inside the settled response.
-				duration *= 2
-			}
-			if dt == 0 {
-				dt = 1e-3
-				if l := spec.Model.Loop; l != nil && l.SamplePeriod > 0 && l.SamplePeriod < dt {
-					dt = l.SamplePeriod
-				}
-			}
-			out := predictOutput{Controller: spec.Model.Controller, Plant: sys.Plant().String(), Caution: gainCaution}
-			out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS, out.Step.Realisable = from, to, duration, dt, sys.Realised()
-			pr, err := sys.Predict(from, to, duration, dt)
-			if err != nil {
-				return usageErr(fmt.Errorf("%s: prediction: %w", specPath, err))
-			}
-			opts := spec.Options()
-			minChange := spec.Steps.MinChange
-			if d := to - from; minChange > abs(d) {
-				minChange = abs(d) / 2
-			}
-			out.Ideal = acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, opts)
-			out.Realised = acceptance.MeasurePrediction(pr.Realised, "realised", minChange, opts)
-			if fl.Changed("for-damping") || fl.Changed("for-overshoot") {
-				d := &designOutput{}
-				var target model.Target
-				if fl.Changed("for-damping") {
-					target, d.Target, d.Value = model.DampingTarget(forDamping), "damping", forDamping
-				} else {
-					target, d.Target, d.Value = model.OvershootTarget(forOvershoot), "overshoot_pct", forOvershoot
-				}
-				des, err := sys.DesignGain(target, from, to)
-				if err != nil && des.Ideal == nil && des.Realised == nil {
-					return usageErr(fmt.Errorf("gain design for %s: %w", target, err))
-				}
-				if des.Ideal != nil {
-					k := des.Ideal.Kp
-					d.KpIdeal, d.MethodIdeal = &k, des.Ideal.Method
-				} else {
-					d.WhyIdeal = des.IdealWhy
-				}
-				if des.Realised != nil {
-					k := des.Realised.Kp
-					d.KpRealised, d.MethodReal = &k, des.Realised.Method
-				} else {
-					d.WhyRealised = des.RealisedWhy
-				}
-				out.Design = d
-			}
-			w := cmd.OutOrStdout()
-			if asJSON {
-				enc := json.NewEncoder(w)
-				enc.SetIndent("", "  ")
-				return enc.Encode(out)
-			}
-			printPrediction(w, spec, out)
-			return nil
+			return runPredict(cmdStreams(cmd), o)
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&specPath, "spec", "", "acceptance spec with a model section")
+	fl.StringVar(&o.Spec, "spec", "", "acceptance spec with a model section")
 	fl.Float64Var(&forDamping, "for-damping", 0, "design the proportional gain for this damping ratio ζ")
 	fl.Float64Var(&forOvershoot, "for-overshoot", 0, "design the proportional gain for this overshoot, %")
-	fl.Float64Var(&from, "from", 0, "command before the step")
-	fl.Float64Var(&to, "to", 1, "command after the step")
-	fl.Float64Var(&duration, "duration-s", 0, "simulated time after the step, s (0: long enough to settle)")
-	fl.Float64Var(&dt, "sample-s", 0, "output sample period, s (0: 1 ms or the loop's sample period if shorter)")
-	fl.BoolVar(&asJSON, "json", false, "print JSON")
+	fl.Float64Var(&o.From, "from", o.From, "command before the step")
+	fl.Float64Var(&o.To, "to", o.To, "command after the step")
+	fl.Float64Var(&o.Duration, "duration-s", 0, "simulated time after the step, s (0: long enough to settle)")
+	fl.Float64Var(&o.Sample, "sample-s", 0, "output sample period, s (0: 1 ms or the loop's sample period if shorter)")
+	fl.BoolVar(&o.JSON, "json", false, "print JSON")
 	cmd.MarkFlagRequired("spec")
+	cmd.MarkFlagsMutuallyExclusive("for-damping", "for-overshoot")
 	return cmd
+}
+
+// runPredict predicts one step of the spec's model, ideal and realised,
+// measures both, designs the gain when a target is given, and prints the
+// result.
+func runPredict(s streams, o predictOptions) error {
+	if o.ForDamping != nil && o.ForOvershoot != nil {
+		return usageErr(errors.New("give --for-damping or --for-overshoot, not both"))
+	}
+	if o.From == o.To {
+		return usageErr(fmt.Errorf("--from and --to are both %v: no step to predict", o.From))
+	}
+	spec, sys, err := loadModel(o.Spec)
+	if err != nil {
+		return usageErr(err)
+	}
+	duration, dt, err := o.timing(spec, sys)
+	if err != nil {
+		return usageErr(err)
+	}
+	out := predictOutput{Controller: spec.Model.Controller, Plant: sys.Plant().String(), Caution: gainCaution}
+	out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS, out.Step.Realisable = o.From, o.To, duration, dt, sys.Realised()
+	pr, err := sys.Predict(o.From, o.To, duration, dt)
+	if err != nil {
+		return usageErr(fmt.Errorf("%s: prediction: %w", o.Spec, err))
+	}
+	// A step smaller than the spec's min_change is still found.
+	minChange := spec.Steps.MinChange
+	if d := abs(o.To - o.From); minChange > d {
+		minChange = d / 2
+	}
+	out.Ideal = acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, spec.Options())
+	out.Realised = acceptance.MeasurePrediction(pr.Realised, "realised", minChange, spec.Options())
+	if out.Design, err = o.design(sys); err != nil {
+		return usageErr(err)
+	}
+	if o.JSON {
+		enc := json.NewEncoder(s.out)
+		enc.SetIndent("", "  ")
+		return enc.Encode(out)
+	}
+	printPrediction(s.out, spec, out)
+	return nil
+}
+
+// loadModel loads the spec and builds its model.
+func loadModel(path string) (*acceptance.Spec, *model.System, error) {
+	spec, err := acceptance.LoadSpec(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	if spec.Model == nil {
+		return nil, nil, fmt.Errorf("%s: the spec has no model section; see `stepgate spec init`", path)
+	}
+	sys, err := model.Build(*spec.Model)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: model: %w", path, err)
+	}
+	return spec, sys, nil
+}
+
+// timing resolves the simulated duration and the sample period: 0 means
+// twice the model's settling horizon, so that the final window of the
+// metrics lies well inside the settled response, and 1 ms or the loop's
+// sample period when that is shorter.
+func (o predictOptions) timing(spec *acceptance.Spec, sys *model.System) (duration, dt float64, err error) {
+	duration, dt = o.Duration, o.Sample
+	if duration == 0 {
+		if duration, err = sys.SuggestedDuration(); err != nil {
+			return 0, 0, fmt.Errorf("%s: model: %w", o.Spec, err)
+		}
+		duration *= 2
+	}
+	if dt == 0 {
+		dt = 1e-3
+		if l := spec.Model.Loop; l != nil && l.SamplePeriod > 0 && l.SamplePeriod < dt {
+			dt = l.SamplePeriod
+		}
+	}
+	return duration, dt, nil
+}
+
+// design designs the proportional gain for the target the options name,
+// for the ideal and the realised loop; nil without a target. A loop for
+// which no gain meets the target says why; only when neither has a gain is
+// it an error.
+func (o predictOptions) design(sys *model.System) (*designOutput, error) {
+	d := &designOutput{}
+	var target model.Target
+	switch {
+	case o.ForDamping != nil:
+		target, d.Target, d.Value = model.DampingTarget(*o.ForDamping), "damping", *o.ForDamping
+	case o.ForOvershoot != nil:
+		target, d.Target, d.Value = model.OvershootTarget(*o.ForOvershoot), "overshoot_pct", *o.ForOvershoot
+	default:
+		return nil, nil
+	}
+	des, err := sys.DesignGain(target, o.From, o.To)
+	if err != nil && des.Ideal == nil && des.Realised == nil {
+		return nil, fmt.Errorf("gain design for %s: %w", target, err)
+	}
+	if des.Ideal != nil {
+		k := des.Ideal.Kp
+		d.KpIdeal, d.MethodIdeal = &k, des.Ideal.Method
+	} else {
+		d.WhyIdeal = des.IdealWhy
+	}
+	if des.Realised != nil {
+		k := des.Realised.Kp
+		d.KpRealised, d.MethodReal = &k, des.Realised.Method
+	} else {
+		d.WhyRealised = des.RealisedWhy
+	}
+	return d, nil
 }
 
 func abs(x float64) float64 {
