@@ -119,3 +119,33 @@ func TestPredictOptionsCheckedFirst(t *testing.T) {
 		})
 	}
 }
+
+// The identify options are checked before the log is read.
+func TestIdentifyOptionsCheckedFirst(t *testing.T) {
+	zero := 0.0
+	nope := filepath.Join(t.TempDir(), "nope.csv")
+	base := defaultIdentifyOptions()
+	base.Log, base.Gain = nope, 2
+	cases := []struct {
+		name string
+		edit func(o *identifyOptions)
+		msg  string
+	}{
+		{"gain", func(o *identifyOptions) { o.Gain = 0 }, "--gain 0: the proportional gain of the reference test must be positive"},
+		{"columns", func(o *identifyOptions) { o.Columns = "t,x" }, `--columns "t,x": want time,command,response`},
+		{"time unit", func(o *identifyOptions) { o.TimeUnit = "h" }, "--time-unit: "},
+		{"min change", func(o *identifyOptions) { o.MinChange = &zero }, "--min-change 0: must be positive"},
+		{"log", func(o *identifyOptions) {}, "nope.csv"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			o := base
+			c.edit(&o)
+			var stdout bytes.Buffer
+			code, msg := usageCode(runIdentify(streams{&stdout, &stdout}, o))
+			if code != 2 || !strings.Contains(msg, c.msg) || stdout.Len() != 0 {
+				t.Errorf("exit %d, %q, printed %q; want 2 with %q", code, msg, stdout.String(), c.msg)
+			}
+		})
+	}
+}
