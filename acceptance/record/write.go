@@ -1,0 +1,143 @@
+package record
+
+import (
+	"context"
+	"database/sql"
+	"encoding/json"
+	"errors"
+	"fmt"
+)
+
+// RecordRun records a run, the spec its units were judged under, and its
+// units, in one transaction: either all of it is recorded or, when the
+// context is cancelled, the process dies or the database fails, none of it.
+//
+// A unit whose file content (FileSHA256) is already recorded under the same
+// spec (id, revision and SHA-256), by an earlier run or earlier in units, is
+// skipped and counted in the result. The run itself is always recorded.
+//
+// A busy database is tried again until the store's busy timeout; the error
+// then wraps ErrBusy. Invalid input (a missing serial, file hash or verdict, a
+// spec whose text does not match its SHA-256, an absent value without a
+// reason, a NaN) is reported before anything is written.
+func (s *Store) RecordRun(ctx context.Context, run Run, spec Spec, units []Unit) (Result, error) {
+	opts, err := validateRun(run, spec, units)
+	if err != nil {
+		return Result{}, err
+	}
+	var res Result
+	err = s.inTx(ctx, func(tx *sql.Tx) error {
+		res = Result{}
+		w := newWriter(ctx, tx, s.d)
+		runID, err := w.insertRun(run, opts)
+		if err != nil {
+			return err
+		}
+		res.RunID = runID
+		specRef, err := w.upsertSpec(spec)
+		if err != nil {
+			return err
+		}
+		for i := range units {
+			if err := s.recordUnit(w, &res, runID, specRef, &units[i]); err != nil {
+				return err
+			}
+			if s.afterUnit != nil {
+				s.afterUnit(i)
+			}
+		}
+		return w.flush()
+	})
+	if err != nil {
+		return Result{}, fmt.Errorf("record: run not recorded (%d units): %w", len(units), err)
+	}
+	return res, nil
+}
+
+// recordUnit writes one unit, or counts it as skipped when its content is
+// already recorded under the spec.
+func (s *Store) recordUnit(w *writer, res *Result, runID, specRef int64, u *Unit) error {
+	id, ok, err := w.insertAttempt(runID, specRef, u)
+	if err != nil {
+		return fmt.Errorf("unit %q (%s): %w", u.Serial, u.File, err)
+	}
+	if !ok {
+		res.Skipped++
+		res.Skips = append(res.Skips, u.File)
+		return nil
+	}
+	res.Recorded++
+	if err := w.addSteps(id, u.Steps); err != nil {
+		return fmt.Errorf("unit %q (%s): %w", u.Serial, u.File, err)
+	}
+	return nil
+}
+
+// validateRun checks the input before a transaction starts, and returns the
+// run's options as JSON text.
+func validateRun(run Run, spec Spec, units []Unit) (string, error) {
+	opts := "{}"
+	if len(run.Options) > 0 {
+		if !json.Valid(run.Options) {
+			return "", errors.New("record: the run's options are not valid JSON")
+		}
+		opts = string(run.Options)
+	}
+	if run.Time.IsZero() {
+		return "", errors.New("record: the run has no time")
+	}
+	if spec.ID == "" || spec.SHA256 == "" {
+		return "", errors.New("record: the spec has no id or no SHA-256")
+	}
+	if got := hexSHA256(spec.Text); got != spec.SHA256 {
+		return "", fmt.Errorf("record: spec %s revision %s: SHA-256 %s given, but its text hashes to %s", spec.ID, spec.Revision, spec.SHA256, got)
+	}
+	for i := range units {
+		if err := validateUnit(&units[i]); err != nil {
+			return "", fmt.Errorf("record: unit %d (%s): %w", i+1, units[i].File, err)
+		}
+	}
+	return opts, nil
+}
+
+func validateUnit(u *Unit) error {
+	if u.Serial == "" || u.FileSHA256 == "" || u.Verdict == "" {
+		return errors.New("a unit needs a serial, a file SHA-256 and a verdict")
+	}
+	for _, st := range u.Steps {
+		if err := validateStep(st); err != nil {
+			return fmt.Errorf("step %d: %w", st.Index, err)
+		}
+	}
+	return nil
+}
+
+func validateStep(st Step) error {
+	lists := [][]Metric{st.Metrics, st.Gaps}
+	if st.Predicted != nil {
+		lists = append(lists, st.Predicted.Metrics)
+	}
+	for _, list := range lists {
+		seen := map[string]bool{}
+		for _, m := range list {
+			if m.Name == "" || seen[m.Name] {
+				return fmt.Errorf("metric name %q is empty or repeated", m.Name)
+			}
+			seen[m.Name] = true
+			if !m.Value.Valid && m.Reason == "" {
+				return fmt.Errorf("metric %s has no value and no reason", m.Name)
+			}
+			if err := checkNumber(m.Value); err != nil {
+				return fmt.Errorf("metric %s: %w", m.Name, err)
+			}
+		}
+	}
+	for _, c := range st.Checks {
+		for _, n := range []Number{c.Value, c.Min, c.Max, c.U} {
+			if err := checkNumber(n); err != nil {
+				return fmt.Errorf("check of %s: %w", c.Metric, err)
+			}
+		}
+	}
+	return nil
+}
