@@ -56,3 +56,34 @@ func ExampleMannWhitney() {
 	// Output:
 	// U = 36 of 42 pairs, exact true, two-sided p = 0.0350
 }
+
+// Settling times (ms) of consecutive units (invented): limits from the first
+// twelve units, applied to all; the later units drift upwards.
+func ExampleIndividuals() {
+	x := []float64{182, 185, 181, 186, 183, 184, 180, 185, 182, 184, 183, 181,
+		186, 187, 186, 188, 187, 189, 188, 187, 190, 188}
+	c := stats.Individuals(x, 12)
+	if !c.Known() {
+		fmt.Println("not computable:", c.Reason)
+		return
+	}
+	fmt.Printf("centre %.2f, limits %.2f to %.2f; mR centre %.2f, upper limit %.2f\n",
+		c.Centre, c.LCL, c.UCL, c.MRBar, c.MRUCL)
+	for _, s := range c.Signals {
+		fmt.Printf("point %d: %s\n", s.Index, s.Rule)
+	}
+	// Output:
+	// centre 183.00, limits 175.02 to 190.98; mR centre 3.00, upper limit 9.80
+	// point 15: four_of_five_beyond_1sigma
+	// point 16: four_of_five_beyond_1sigma
+	// point 17: four_of_five_beyond_1sigma
+	// point 18: four_of_five_beyond_1sigma
+	// point 19: four_of_five_beyond_1sigma
+	// point 19: eight_beyond_1sigma
+	// point 20: nine_one_side
+	// point 20: four_of_five_beyond_1sigma
+	// point 20: eight_beyond_1sigma
+	// point 21: nine_one_side
+	// point 21: four_of_five_beyond_1sigma
+	// point 21: eight_beyond_1sigma
+}
