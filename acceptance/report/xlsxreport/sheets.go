@@ -8,6 +8,7 @@ import (
 	"github.com/xuri/excelize/v2"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/internal/xlsxenc"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -73,7 +74,7 @@ func unitRows(b *acceptance.Batch) int {
 	return rows
 }
 
-func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sheetBody) error {
+func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xlsxenc.Body) error {
 	const sh = SheetUnits
 	b := d.Batch
 	if _, err := f.NewSheet(sh); err != nil {
@@ -142,7 +143,7 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sh
 	for i, m := range cols.predicted {
 		predIdx[i] = metricIndex(m)
 	}
-	bodies[sh] = &sheetBody{rows: rows, cols: len(header), write: func(rw *rowWriter) error {
+	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
 			u := &b.Units[i]
 			unitReason := ""
@@ -156,22 +157,22 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sh
 			}
 			n := max(len(u.Steps), 1)
 			for k := 0; k < n; k++ {
-				rw.start()
-				rw.str(1, unitText)
-				rw.str(2, fileText)
+				rw.Start()
+				rw.Str(1, unitText)
+				rw.Str(2, fileText)
 				if len(u.Steps) > 0 {
 					s := &u.Steps[k]
-					rw.int(3, s.Index)
-					rw.num(4, s.StartS)
-					rw.num(5, s.From)
-					rw.num(6, s.To)
-					rw.str(7, string(s.Verdict))
-					rw.str(8, string(u.Verdict))
+					rw.Int(3, s.Index)
+					rw.Num(4, s.StartS)
+					rw.Num(5, s.From)
+					rw.Num(6, s.To)
+					rw.Str(7, string(s.Verdict))
+					rw.Str(8, string(u.Verdict))
 					c := unitsFirstValue
 					for _, mi := range metricIdx {
 						if mi >= 0 {
 							if v := s.Metrics.At(mi); v.OK {
-								rw.num(c, v.V)
+								rw.Num(c, v.V)
 							}
 						}
 						c++
@@ -180,28 +181,28 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sh
 						if mi >= 0 {
 							if s.Predicted != nil {
 								if v := s.Predicted.Metrics.At(mi); v.OK {
-									rw.num(c, v.V)
+									rw.Num(c, v.V)
 								}
 							}
 							if g, ok := s.Gap.At(mi); ok {
-								rw.num(c+1, g)
+								rw.Num(c+1, g)
 							}
 						}
 						c += 2
 					}
 					if len(s.Reasons) > 0 {
-						rw.str(reasonCol, Text(s.Reasons[0]))
+						rw.Str(reasonCol, Text(s.Reasons[0]))
 					}
 				} else {
-					rw.str(8, string(u.Verdict))
+					rw.Str(8, string(u.Verdict))
 				}
-				rw.str(reasonCol+1, unitReason)
+				rw.Str(reasonCol+1, unitReason)
 				for j := range meta {
-					rw.str(reasonCol+2+j, meta[j])
+					rw.Str(reasonCol+2+j, meta[j])
 				}
-				rw.str(shaCol, u.SHA256)
-				if err := rw.end(); err != nil {
-					return fmt.Errorf("row %d (unit %q): %w", rw.row, u.Unit, err)
+				rw.Str(shaCol, u.SHA256)
+				if err := rw.End(); err != nil {
+					return fmt.Errorf("row %d (unit %q): %w", rw.Row(), u.Unit, err)
 				}
 			}
 		}
@@ -248,7 +249,7 @@ func CheckRows(b *acceptance.Batch) int {
 }
 
 // checks writes one row per limit check.
-func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sheetBody) error {
+func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xlsxenc.Body) error {
 	const sh = SheetChecks
 	b := d.Batch
 	header := []string{"unit", "file", "step", "metric", "value", "unit of value", "min", "max", "verdict", "reason", "unit verdict"}
@@ -258,32 +259,32 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*s
 		return err
 	}
 	units := map[string]string{}
-	bodies[sh] = &sheetBody{rows: rows, cols: len(header), write: func(rw *rowWriter) error {
+	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
 			u := &b.Units[i]
 			unitText, fileText := Text(u.Unit), Text(u.File)
 			for k := range u.Steps {
 				s := &u.Steps[k]
 				for _, c := range s.Checks {
-					rw.start()
-					rw.str(1, unitText)
-					rw.str(2, fileText)
-					rw.int(3, s.Index)
-					rw.str(4, Text(c.Metric))
-					rw.numPtr(5, c.Value)
+					rw.Start()
+					rw.Str(1, unitText)
+					rw.Str(2, fileText)
+					rw.Int(3, s.Index)
+					rw.Str(4, Text(c.Metric))
+					rw.NumPtr(5, c.Value)
 					mu, ok := units[c.Metric]
 					if !ok {
 						mu = Text(digest.MetricUnit(c.Metric, d.ResponseUnit))
 						units[c.Metric] = mu
 					}
-					rw.str(6, mu)
-					rw.numPtr(7, c.Min)
-					rw.numPtr(8, c.Max)
-					rw.str(9, string(c.Verdict))
-					rw.str(10, Text(c.Reason))
-					rw.str(11, string(u.Verdict))
-					if err := rw.end(); err != nil {
-						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.row, u.Unit, s.Index, c.Metric, err)
+					rw.Str(6, mu)
+					rw.NumPtr(7, c.Min)
+					rw.NumPtr(8, c.Max)
+					rw.Str(9, string(c.Verdict))
+					rw.Str(10, Text(c.Reason))
+					rw.Str(11, string(u.Verdict))
+					if err := rw.End(); err != nil {
+						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.Row(), u.Unit, s.Index, c.Metric, err)
 					}
 				}
 			}
@@ -310,7 +311,7 @@ func GapRows(b *acceptance.Batch, limited []string) int {
 // gaps writes, for every step with a prediction and every limited metric,
 // the measured and predicted value and their gap: a long table a test
 // engineer filters by metric and sorts by gap.
-func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*sheetBody) error {
+func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xlsxenc.Body) error {
 	const sh = SheetGaps
 	b := d.Batch
 	header := []string{"unit", "file", "step", withUnit("from", d.ResponseUnit), withUnit("to", d.ResponseUnit), "metric", "unit of value",
@@ -332,7 +333,7 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*she
 		}
 		limited = append(limited, column{name: m, text: Text(m), unit: Text(digest.MetricUnit(m, d.ResponseUnit)), idx: i})
 	}
-	bodies[sh] = &sheetBody{rows: rows, cols: len(header), write: func(rw *rowWriter) error {
+	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
 			u := &b.Units[i]
 			unitText, fileText := Text(u.Unit), Text(u.File)
@@ -343,42 +344,42 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*she
 				}
 				kind := Text(s.Predicted.Kind)
 				for _, m := range limited {
-					rw.start()
-					rw.str(1, unitText)
-					rw.str(2, fileText)
-					rw.int(3, s.Index)
-					rw.num(4, s.From)
-					rw.num(5, s.To)
-					rw.str(6, m.text)
-					rw.str(7, m.unit)
+					rw.Start()
+					rw.Str(1, unitText)
+					rw.Str(2, fileText)
+					rw.Int(3, s.Index)
+					rw.Num(4, s.From)
+					rw.Num(5, s.To)
+					rw.Str(6, m.text)
+					rw.Str(7, m.unit)
 					meas, pred := s.Metrics.At(m.idx), s.Predicted.Metrics.At(m.idx)
 					if meas.OK {
-						rw.num(8, meas.V)
+						rw.Num(8, meas.V)
 					}
 					if pred.OK {
-						rw.num(9, pred.V)
+						rw.Num(9, pred.V)
 					}
 					if g, ok := s.Gap.At(m.idx); ok {
-						rw.num(10, g)
+						rw.Num(10, g)
 						if pred.OK && pred.V != 0 {
-							rw.num(11, 100*g/pred.V)
+							rw.Num(11, 100*g/pred.V)
 						}
 					}
-					rw.str(12, kind)
+					rw.Str(12, kind)
 					for _, c := range s.Checks {
 						if c.Metric == m.name {
-							rw.str(13, string(c.Verdict))
+							rw.Str(13, string(c.Verdict))
 							break
 						}
 					}
 					switch {
 					case !meas.OK:
-						rw.str(14, Text("not measured: "+orWhy(meas.Why, s.Metrics.Reason(m.name))))
+						rw.Str(14, Text("not measured: "+orWhy(meas.Why, s.Metrics.Reason(m.name))))
 					case !pred.OK:
-						rw.str(14, Text("not predicted: "+orWhy(pred.Why, s.Predicted.Metrics.Reason(m.name))))
+						rw.Str(14, Text("not predicted: "+orWhy(pred.Why, s.Predicted.Metrics.Reason(m.name))))
 					}
-					if err := rw.end(); err != nil {
-						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.row, u.Unit, s.Index, m.name, err)
+					if err := rw.End(); err != nil {
+						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.Row(), u.Unit, s.Index, m.name, err)
 					}
 				}
 			}
@@ -404,7 +405,7 @@ func metricIndex(m string) int { return metrics.Index(metrics.Name(m)) }
 // openTable starts a long table sheet: the sheet, an autofilter over the
 // header and rows data rows, verdict colours on the given columns, and the
 // header row with the column widths. Its data rows are written later, as a
-// sheetBody.
+// xlsxenc.Body.
 func openTable(f *excelize.File, st *styles, sh string, header []string, rows int, what string, verdictCols []string, widths map[int]float64) error {
 	if _, err := f.NewSheet(sh); err != nil {
 		return err

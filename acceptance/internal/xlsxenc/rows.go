@@ -1,10 +1,12 @@
-package xlsxreport
+package xlsxenc
 
 import (
 	"fmt"
 	"io"
 	"math"
 	"strconv"
+
+	"github.com/xuri/excelize/v2"
 )
 
 // The three long sheets (Units, Checks, Gaps) hold a row per step or per
@@ -18,16 +20,18 @@ import (
 // §18.3.1.4 c, §18.3.1.53 is). The cells are the ones excelize would write:
 // numbers as numbers, text as inline strings, empty cells left out.
 
-// sheetBody is the data rows of a long sheet, below the header row that
+// Body is the data rows of a long sheet, below the header row that
 // excelize writes.
-type sheetBody struct {
-	rows  int // data rows
-	cols  int // columns of the widest row
-	write func(*rowWriter) error
+type Body struct {
+	Rows  int                    // data rows
+	Cols  int                    // columns of the widest row
+	Write func(*RowWriter) error // writes the rows, in order
 }
 
-// rowWriter writes worksheet rows to w, buffering them in its own slice.
-type rowWriter struct {
+// RowWriter writes worksheet rows, buffering them in its own slice. Cells
+// are written in ascending column order within a row; a cell written out
+// of order is a programming error and panics.
+type RowWriter struct {
 	w    io.Writer
 	buf  []byte
 	row  int      // current row number (1-based); the header is row 1
@@ -36,16 +40,16 @@ type rowWriter struct {
 	err  error
 }
 
-func newRowWriter(w io.Writer, cols int) *rowWriter {
-	rw := &rowWriter{w: w, buf: make([]byte, 0, 1<<16), row: 1, refs: make([]string, cols+1)}
+func newRowWriter(w io.Writer, cols int) *RowWriter {
+	rw := &RowWriter{w: w, buf: make([]byte, 0, 1<<16), row: 1, refs: make([]string, cols+1)}
 	for i := 1; i <= cols; i++ {
 		rw.refs[i] = colName(i)
 	}
 	return rw
 }
 
-// start begins the next row.
-func (rw *rowWriter) start() {
+// Start begins the next row.
+func (rw *RowWriter) Start() {
 	rw.row++
 	rw.col = 0
 	rw.buf = append(rw.buf, `<row r="`...)
@@ -53,8 +57,11 @@ func (rw *rowWriter) start() {
 	rw.buf = append(rw.buf, `">`...)
 }
 
-// end finishes the row and passes the buffer on when it is full.
-func (rw *rowWriter) end() error {
+// Row returns the number of the current row; the header is row 1.
+func (rw *RowWriter) Row() int { return rw.row }
+
+// End finishes the row and passes the buffer on when it is full.
+func (rw *RowWriter) End() error {
 	rw.buf = append(rw.buf, `</row>`...)
 	if len(rw.buf) >= 1<<15 {
 		return rw.flush()
@@ -62,7 +69,7 @@ func (rw *rowWriter) end() error {
 	return rw.err
 }
 
-func (rw *rowWriter) flush() error {
+func (rw *RowWriter) flush() error {
 	if rw.err == nil && len(rw.buf) > 0 {
 		_, rw.err = rw.w.Write(rw.buf)
 	}
@@ -71,10 +78,10 @@ func (rw *rowWriter) flush() error {
 }
 
 // cell opens cell col of the current row with type t ("" for a number).
-func (rw *rowWriter) cell(col int, t string) {
+func (rw *RowWriter) cell(col int, t string) {
 	if col <= rw.col || col >= len(rw.refs) {
 		// A programming error in a sheet's column order, never the data's.
-		panic(fmt.Sprintf("xlsxreport: column %d written after %d (of %d)", col, rw.col, len(rw.refs)-1))
+		panic(fmt.Sprintf("xlsxenc: column %d written after %d (of %d)", col, rw.col, len(rw.refs)-1))
 	}
 	rw.col = col
 	rw.buf = append(rw.buf, `<c r="`...)
@@ -87,11 +94,11 @@ func (rw *rowWriter) cell(col int, t string) {
 	rw.buf = append(rw.buf, `">`...)
 }
 
-// num writes a number; a value that is not finite is written as text, as
+// Num writes a number in column col; a value that is not finite is written as text, as
 // excelize does, since a cell cannot hold it as a number.
-func (rw *rowWriter) num(col int, v float64) {
+func (rw *RowWriter) Num(col int, v float64) {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
-		rw.str(col, strconv.FormatFloat(v, 'g', -1, 64))
+		rw.Str(col, strconv.FormatFloat(v, 'g', -1, 64))
 		return
 	}
 	rw.cell(col, "")
@@ -100,24 +107,24 @@ func (rw *rowWriter) num(col int, v float64) {
 	rw.buf = append(rw.buf, `</v></c>`...)
 }
 
-// int writes a whole number.
-func (rw *rowWriter) int(col, v int) {
+// Int writes a whole number in column col.
+func (rw *RowWriter) Int(col, v int) {
 	rw.cell(col, "")
 	rw.buf = append(rw.buf, `<v>`...)
 	rw.buf = strconv.AppendInt(rw.buf, int64(v), 10)
 	rw.buf = append(rw.buf, `</v></c>`...)
 }
 
-// numPtr writes *v, or nothing when v is nil.
-func (rw *rowWriter) numPtr(col int, v *float64) {
+// NumPtr writes *v in column col, or nothing when v is nil.
+func (rw *RowWriter) NumPtr(col int, v *float64) {
 	if v != nil {
-		rw.num(col, *v)
+		rw.Num(col, *v)
 	}
 }
 
-// str writes s as an inline string; an empty s leaves the cell out. The
-// caller passes text through Text first where it comes from a log.
-func (rw *rowWriter) str(col int, s string) {
+// Str writes s in column col as an inline string; an empty s leaves the
+// cell out. Text that comes from a log is cleaned by the caller first.
+func (rw *RowWriter) Str(col int, s string) {
 	if s == "" {
 		return
 	}
@@ -212,4 +219,10 @@ func appendCellFloat(b []byte, v float64) []byte {
 		return strconv.AppendFloat(b, v, 'g', -1, 64)
 	}
 	return strconv.AppendFloat(b, v, 'g', 15, 64)
+}
+
+// colName returns the letters of column n (1 is A).
+func colName(n int) string {
+	s, _ := excelize.ColumnNumberToName(n)
+	return s
 }

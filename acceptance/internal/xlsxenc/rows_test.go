@@ -1,13 +1,9 @@
-package xlsxreport
+package xlsxenc
 
 import (
-	"archive/zip"
-	"bytes"
-	"errors"
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
@@ -35,28 +31,28 @@ func TestRowWriterRoundTrip(t *testing.T) {
 	// Exercise the writer directly on a sheet frame made by excelize.
 	rows := len(texts) + len(nums) + 1
 	var out strings.Builder
-	body := &sheetBody{rows: rows, cols: 2, write: func(rw *rowWriter) error {
+	body := &Body{Rows: rows, Cols: 2, Write: func(rw *RowWriter) error {
 		for i, s := range texts {
-			rw.start()
-			rw.str(1, s)
-			rw.int(2, i)
-			if err := rw.end(); err != nil {
+			rw.Start()
+			rw.Str(1, s)
+			rw.Int(2, i)
+			if err := rw.End(); err != nil {
 				return err
 			}
 		}
 		for _, v := range nums {
-			rw.start()
-			rw.str(1, "n")
-			rw.num(2, v)
-			if err := rw.end(); err != nil {
+			rw.Start()
+			rw.Str(1, "n")
+			rw.Num(2, v)
+			if err := rw.End(); err != nil {
 				return err
 			}
 		}
-		rw.start()
-		rw.str(1, long)
-		return rw.end()
+		rw.Start()
+		rw.Str(1, long)
+		return rw.End()
 	}}
-	if err := canonicalZip(&out, frame(t), map[string]*sheetBody{"Sheet1": body}); err != nil {
+	if err := Pack(&out, frame(t), map[string]*Body{"Sheet1": body}); err != nil {
 		t.Fatal(err)
 	}
 	g, err := excelize.OpenReader(strings.NewReader(out.String()))
@@ -125,72 +121,9 @@ func TestRowWriterColumnOrder(t *testing.T) {
 		}
 	}()
 	rw := newRowWriter(&strings.Builder{}, 3)
-	rw.start()
-	rw.int(2, 1)
-	rw.int(1, 1)
-}
-
-// failAfter accepts n bytes and then fails, as a full disk does.
-type failAfter struct{ n int }
-
-func (f *failAfter) Write(b []byte) (int, error) {
-	if len(b) > f.n {
-		n := f.n
-		f.n = 0
-		return n, errors.New("no space left on device")
-	}
-	f.n -= len(b)
-	return len(b), nil
-}
-
-// TestPackedSheetsCleanedUp checks that the long sheets' temporary files
-// are gone after a workbook is written, and after a write that fails.
-func TestPackedSheetsCleanedUp(t *testing.T) {
-	tmp := t.TempDir()
-	t.Setenv("TMPDIR", tmp)
-	left := func() []string {
-		ents, err := os.ReadDir(tmp)
-		if err != nil {
-			t.Fatal(err)
-		}
-		var names []string
-		for _, e := range ents {
-			names = append(names, e.Name())
-		}
-		return names
-	}
-	var full bytes.Buffer
-	if err := writeBatch(&full, testBatch()); err != nil {
-		t.Fatal(err)
-	}
-	if l := left(); len(l) != 0 {
-		t.Errorf("after a write: %v left in the temporary directory", l)
-	}
-	for _, n := range []int{0, 100, full.Len() / 2, full.Len() - 10} {
-		if err := writeBatch(&failAfter{n: n}, testBatch()); err == nil || !strings.Contains(err.Error(), "no space left") {
-			t.Errorf("writer failing after %d bytes: error %v", n, err)
-		}
-		if l := left(); len(l) != 0 {
-			t.Errorf("after a write failing at byte %d: %v left in the temporary directory", n, l)
-		}
-	}
-}
-
-// TestPackedSheetsWithoutTemporaryDirectory writes a workbook when the
-// temporary directory cannot be used: the same bytes, from memory.
-func TestPackedSheetsWithoutTemporaryDirectory(t *testing.T) {
-	var want bytes.Buffer
-	if err := writeBatch(&want, testBatch()); err != nil {
-		t.Fatal(err)
-	}
-	t.Setenv("TMPDIR", filepath.Join(t.TempDir(), "missing"))
-	var got bytes.Buffer
-	if err := writeBatch(&got, testBatch()); err != nil {
-		t.Fatalf("no temporary directory: %v", err)
-	}
-	if !bytes.Equal(got.Bytes(), want.Bytes()) {
-		t.Errorf("workbook written from memory differs from the one written through temporary files")
-	}
+	rw.Start()
+	rw.Int(2, 1)
+	rw.Int(1, 1)
 }
 
 // frame returns a workbook made by excelize with a header row on Sheet1,
@@ -223,53 +156,34 @@ func frame(t *testing.T) []byte {
 func TestPackingFailuresCleanUp(t *testing.T) {
 	tmp := t.TempDir()
 	t.Setenv("TMPDIR", tmp)
-	good := &sheetBody{rows: 1, cols: 2, write: func(rw *rowWriter) error {
-		rw.start()
-		rw.int(1, 1)
-		return rw.end()
+	good := &Body{Rows: 1, Cols: 2, Write: func(rw *RowWriter) error {
+		rw.Start()
+		rw.Int(1, 1)
+		return rw.End()
 	}}
-	backwards := &sheetBody{rows: 1, cols: 2, write: func(rw *rowWriter) error {
-		rw.start()
-		rw.int(2, 1)
-		rw.int(1, 1)
-		return rw.end()
+	backwards := &Body{Rows: 1, Cols: 2, Write: func(rw *RowWriter) error {
+		rw.Start()
+		rw.Int(2, 1)
+		rw.Int(1, 1)
+		return rw.End()
 	}}
 	tests := []struct {
 		name   string
-		bodies map[string]*sheetBody
+		bodies map[string]*Body
 		want   string
 	}{
-		{"columns out of order", map[string]*sheetBody{"Sheet1": backwards}, "internal error packing the sheet"},
-		{"sheet not in the workbook", map[string]*sheetBody{"Sheet1": good, "Missing": good}, "sheet Missing is not in the workbook"},
+		{"columns out of order", map[string]*Body{"Sheet1": backwards}, "internal error packing the sheet"},
+		{"sheet not in the workbook", map[string]*Body{"Sheet1": good, "Missing": good}, "sheet Missing is not in the workbook"},
 	}
 	for _, tc := range tests {
 		for range 5 { // map order varies: the missing sheet may come first or last
-			err := canonicalZip(io.Discard, frame(t), tc.bodies)
+			err := Pack(io.Discard, frame(t), tc.bodies)
 			if err == nil || !strings.Contains(err.Error(), tc.want) {
 				t.Errorf("%s: error %v, want %q", tc.name, err, tc.want)
 			}
 		}
 		if ents, _ := os.ReadDir(tmp); len(ents) != 0 {
 			t.Errorf("%s: %d files left in the temporary directory", tc.name, len(ents))
-		}
-	}
-}
-
-// TestZipVersions: every entry of the package says it needs version 2.0
-// to extract, the least for deflate (PKWARE APPNOTE.TXT 4.4.3), the packed
-// sheets included.
-func TestZipVersions(t *testing.T) {
-	var buf bytes.Buffer
-	if err := writeBatch(&buf, testBatch()); err != nil {
-		t.Fatal(err)
-	}
-	zr, err := zip.NewReader(bytes.NewReader(buf.Bytes()), int64(buf.Len()))
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, zf := range zr.File {
-		if zf.Method == zip.Deflate && (zf.ReaderVersion < 20 || zf.CreatorVersion&0xff < 20) {
-			t.Errorf("%s: versions needed %d, made by %d; want at least 20", zf.Name, zf.ReaderVersion, zf.CreatorVersion&0xff)
 		}
 	}
 }

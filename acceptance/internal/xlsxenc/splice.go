@@ -1,4 +1,4 @@
-package xlsxreport
+package xlsxenc
 
 import (
 	"archive/zip"
@@ -114,7 +114,7 @@ func (p *packedSheet) data() io.Reader {
 // The long sheets are packed concurrently, one per goroutine, since they
 // are most of the workbook's work; each goes to a temporary file so that
 // none is held in memory, unless no temporary file can be made.
-func packSheet(zf *zip.File, body *sheetBody) (*packedSheet, error) {
+func packSheet(zf *zip.File, body *Body) (*packedSheet, error) {
 	rc, err := zf.Open()
 	if err != nil {
 		return nil, err
@@ -129,7 +129,7 @@ func packSheet(zf *zip.File, body *sheetBody) (*packedSheet, error) {
 		return nil, fmt.Errorf("no sheetData element to fill")
 	}
 	head, tail := frame[:at], frame[at:]
-	dim := []byte(`<dimension ref="A1:` + colName(max(body.cols, 1)) + strconv.Itoa(body.rows+1) + `"/>`)
+	dim := []byte(`<dimension ref="A1:` + colName(max(body.Cols, 1)) + strconv.Itoa(body.Rows+1) + `"/>`)
 	if loc := dimensionRef.FindIndex(head); loc != nil {
 		head = append(append(append([]byte(nil), head[:loc[0]]...), dim...), head[loc[1]:]...)
 	}
@@ -162,15 +162,15 @@ func packSheet(zf *zip.File, body *sheetBody) (*packedSheet, error) {
 	if _, err := sum.Write(head); err != nil {
 		return nil, err
 	}
-	rw := newRowWriter(sum, body.cols)
-	if err := body.write(rw); err != nil {
+	rw := newRowWriter(sum, body.Cols)
+	if err := body.Write(rw); err != nil {
 		return nil, err
 	}
 	if err := rw.flush(); err != nil {
 		return nil, err
 	}
-	if rw.row != body.rows+1 {
-		return nil, fmt.Errorf("wrote %d data rows, expected %d", rw.row-1, body.rows)
+	if rw.row != body.Rows+1 {
+		return nil, fmt.Errorf("wrote %d data rows, expected %d", rw.row-1, body.Rows)
 	}
 	if _, err := sum.Write(tail); err != nil {
 		return nil, err
