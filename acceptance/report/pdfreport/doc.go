@@ -22,11 +22,13 @@
 // What the report shows is computed once by package digest; Write takes a
 // digest that the other writers share.
 //
-// Charts are drawn as vector graphics through Canvas, a gonum vg.Canvas
-// backed by gofpdf; a page draws a bounded number of curves whatever the
-// batch size. Text is set in an embedded Unicode TrueType font (Liberation
-// Sans), so Greek letters, signs such as ± and µ, arrows and non-ASCII
-// serials print; text read from logs passes through Clean first.
+// Charts are drawn as vector graphics through pdfenc.Canvas, a gonum
+// vg.Canvas backed by gofpdf; a page draws a bounded number of curves
+// whatever the batch size. Text is set in the embedded Unicode TrueType
+// font of package pdfenc (Liberation Sans), so Greek letters, signs such
+// as ± and µ, arrows and non-ASCII serials print; text read from logs
+// passes through pdfenc.Clean first. The page streams are compressed by
+// pdfenc.Compress.
 //
 // Output is deterministic: the document dates are the batch's report date,
 // resources are written in sorted order, and nothing reads the clock.

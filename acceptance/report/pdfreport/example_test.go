@@ -41,8 +41,3 @@ func ExampleWrite() {
 	// true
 	// DEMO-A-c81406f0
 }
-
-func ExampleClean() {
-	fmt.Printf("%q\n", pdfreport.Clean("SN-\x07\u202e42\tζ=0.6 \U0001F600"))
-	// Output: "SN-42 ζ=0.6 ?"
-}

@@ -4,7 +4,9 @@ import (
 	"strings"
 
 	"github.com/jung-kurt/gofpdf"
+
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/internal/pdfenc"
 )
 
 // Page geometry, millimetres, A4 portrait.
@@ -79,7 +81,7 @@ func (l *layout) font(style string, size float64) {
 	if l.fontKnown && style == l.fontStyle && size == l.fontSize {
 		return
 	}
-	l.pdf.SetFont(fontFamily, style, size)
+	l.pdf.SetFont(pdfenc.FontFamily, style, size)
 	l.fontKnown, l.fontStyle, l.fontSize = true, style, size
 }
 
@@ -126,7 +128,7 @@ func (l *layout) lineWidth(w float64) {
 // fit cleans s and shortens it with an ellipsis so that it fits in a cell
 // of width w in the current font.
 func (l *layout) fit(s string, w float64) string {
-	s = Clean(s)
+	s = pdfenc.Clean(s)
 	avail := w - 2*l.pdf.GetCellMargin()
 	if l.pdf.GetStringWidth(s) <= avail {
 		return s
@@ -149,7 +151,7 @@ func (l *layout) fit(s string, w float64) string {
 // ellipsis. Lines break only at plain spaces, so a no-break space keeps a
 // number with its unit.
 func (l *layout) wrap(s string, w float64, maxLines int) []string {
-	s = Clean(s)
+	s = pdfenc.Clean(s)
 	if s == "" {
 		return []string{""}
 	}

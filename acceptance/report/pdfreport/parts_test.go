@@ -1,58 +1,16 @@
 package pdfreport
 
 import (
-	"bytes"
 	"fmt"
-	"math"
 	"strings"
 	"testing"
 
 	"codeberg.org/go-fonts/liberation/liberationsansregular"
 	"github.com/jung-kurt/gofpdf"
-	"gonum.org/v1/plot/vg"
 
+	"github.com/stepgate/stepgate/acceptance/internal/pdfenc"
 	"github.com/stepgate/stepgate/templates"
 )
-
-func TestClean(t *testing.T) {
-	tests := []struct {
-		name, in, want string
-	}{
-		{"plain ASCII kept", "SN-1001", "SN-1001"},
-		{"Greek, signs and arrows kept", "ζ ωn ± µ → Ω", "ζ ωn ± µ → Ω"},
-		{"Latin accents kept", "Prüfstand Müller-Øre", "Prüfstand Müller-Øre"},
-		{"bell and escape removed", "SN\x07-10\x1b05", "SN-1005"},
-		{"tab and line breaks become spaces", "a\tb\r\nc", "a b  c"},
-		{"DEL and C1 controls removed", "a\x7fb\u0085c", "abc"},
-		{"bidirectional override removed", "SN-\u202e1001", "SN-1001"},
-		{"zero-width space removed", "SN\u200b-1001", "SN-1001"},
-		{"invalid UTF-8 marked", "SN-\xff1001", "SN-?1001"},
-		{"outside the BMP marked", "SN-\U0001F600", "SN-?"},
-		{"not in the font marked", "SN-\u4e2d", "SN-?"},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			if got := Clean(tc.in); got != tc.want {
-				t.Errorf("Clean(%q) = %q, want %q", tc.in, got, tc.want)
-			}
-		})
-	}
-}
-
-// TestGlyphs checks that the embedded font draws every non-ASCII character
-// the report's own wording uses.
-func TestGlyphs(t *testing.T) {
-	for _, r := range "ζωσ±µμ→…—–•·“”²√≤≥−ΩÄÖÜäöüß" {
-		if !HasGlyph(r) {
-			t.Errorf("font lacks %q (U+%04X)", r, r)
-		}
-	}
-	for _, r := range "\U0001F600\u4e2d" {
-		if HasGlyph(r) {
-			t.Errorf("HasGlyph(%q) = true for a character Liberation Sans does not cover", r)
-		}
-	}
-}
 
 func TestBlocks(t *testing.T) {
 	in := "# Title\n\nFirst line\nsecond line.\n\n- one\n- two\n  continued\n# Next\ntext"
@@ -93,66 +51,10 @@ func TestCautions(t *testing.T) {
 	}
 	for _, b := range blocks {
 		for _, l := range b.Lines {
-			if c := Clean(l); c != l {
+			if c := pdfenc.Clean(l); c != l {
 				t.Errorf("cautions line prints differently from its text: %q → %q", l, c)
 			}
 		}
-	}
-}
-
-// TestCanvasGeometry checks the canvas's coordinate mapping against plane
-// geometry: vg's origin is the bottom-left corner of the canvas, y up, in
-// points (1/72 in); the page is in millimetres, y down; PDF content is in
-// points, y up from the page's bottom edge (ISO 32000-1:2008, §8.3.2.3).
-func TestCanvasGeometry(t *testing.T) {
-	pdf := gofpdf.New("P", "mm", "A4", "")
-	pdf.SetCompression(false)
-	pdf.AddPage()
-	const x0, y0, w, h = 20.0, 30.0, 100.0, 50.0 // canvas rectangle on the page, mm
-	c := NewCanvas(pdf, x0, y0, w, h, fontFamily)
-	if cw, ch := c.Size(); math.Abs(float64(cw)-w*72/25.4) > 1e-9 || math.Abs(float64(ch)-h*72/25.4) > 1e-9 {
-		t.Errorf("Size = %v × %v pt, want %v × %v", cw, ch, w*72/25.4, h*72/25.4)
-	}
-	tests := []struct {
-		name   string
-		setup  func()
-		pt     vg.Point
-		px, py float64 // expected page position, mm
-	}{
-		{"origin is the bottom-left corner", func() {}, vg.Point{}, x0, y0 + h},
-		{"72 pt is 25.4 mm", func() {}, vg.Point{X: 72, Y: 72}, x0 + 25.4, y0 + h - 25.4},
-		{"translate", func() { c.Translate(vg.Point{X: 72, Y: 0}) }, vg.Point{}, x0 + 25.4, y0 + h},
-		{"rotate a quarter turn counter-clockwise", func() { c.Rotate(math.Pi / 2) }, vg.Point{X: 72}, x0, y0 + h - 25.4},
-		{"translate then rotate", func() { c.Translate(vg.Point{X: 72}); c.Rotate(math.Pi / 2) }, vg.Point{X: 72}, x0 + 25.4, y0 + h - 25.4},
-		{"scale", func() { c.Scale(2, 0.5) }, vg.Point{X: 36, Y: 144}, x0 + 25.4, y0 + h - 25.4},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			c.Push()
-			defer c.Pop()
-			tc.setup()
-			px, py := c.page(tc.pt)
-			if math.Abs(px-tc.px) > 1e-9 || math.Abs(py-tc.py) > 1e-9 {
-				t.Errorf("page(%v) = (%.6f, %.6f) mm, want (%.6f, %.6f)", tc.pt, px, py, tc.px, tc.py)
-			}
-		})
-	}
-	// Pop restored the identity: a stroked line lands where the mapping says,
-	// written as PDF points from the bottom edge.
-	var p vg.Path
-	p.Move(vg.Point{})
-	p.Line(vg.Point{X: 72, Y: 72})
-	c.SetLineWidth(1)
-	c.Stroke(p)
-	var buf bytes.Buffer
-	if err := pdf.Output(&buf); err != nil {
-		t.Fatal(err)
-	}
-	k := 72 / 25.4
-	move := fmt.Sprintf("%.2f %.2f m", x0*k, (297-(y0+h))*k)
-	line := fmt.Sprintf("%.2f %.2f l", (x0+25.4)*k, (297-(y0+h-25.4))*k)
-	if !bytes.Contains(buf.Bytes(), []byte(move)) || !bytes.Contains(buf.Bytes(), []byte(line)) {
-		t.Errorf("content lacks %q then %q", move, line)
 	}
 }
 
@@ -161,8 +63,8 @@ func TestCanvasGeometry(t *testing.T) {
 // and a word longer than a line is cut.
 func TestWrap(t *testing.T) {
 	pdf := gofpdf.New("P", "mm", "A4", "")
-	pdf.AddUTF8FontFromBytes(fontFamily, "", liberationsansregular.TTF)
-	pdf.SetFont(fontFamily, "", 10)
+	pdf.AddUTF8FontFromBytes(pdfenc.FontFamily, "", liberationsansregular.TTF)
+	pdf.SetFont(pdfenc.FontFamily, "", 10)
 	l := &layout{pdf: pdf}
 	w := pdf.GetStringWidth("coefficient of variation 7.05")*1.02 + 2*pdf.GetCellMargin()
 	tests := []struct {

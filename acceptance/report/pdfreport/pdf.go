@@ -8,13 +8,12 @@ import (
 	"strconv"
 	"strings"
 
-	"codeberg.org/go-fonts/liberation/liberationsansbold"
-	"codeberg.org/go-fonts/liberation/liberationsansregular"
 	"github.com/jung-kurt/gofpdf"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg/draw"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/internal/pdfenc"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -41,7 +40,7 @@ const EndMark = "End of report"
 // records and options give the same bytes: the document dates are the
 // report date and nothing depends on the clock or on map order.
 func Write(w io.Writer, d *digest.Digest, traces digest.TraceStore, o Options) error {
-	// gofpdf writes the pages uncompressed; writeCompressed compresses
+	// gofpdf writes the pages uncompressed; pdfenc.Compress compresses
 	// them as gofpdf would, at less cost.
 	pdf, err := layOut(d, traces, o, false)
 	if err != nil {
@@ -54,7 +53,7 @@ func Write(w io.Writer, d *digest.Digest, traces digest.TraceStore, o Options) e
 	if o.Uncompressed {
 		_, err = w.Write(doc.Bytes())
 	} else {
-		err = writeCompressed(w, doc.Bytes())
+		err = pdfenc.Compress(w, doc.Bytes())
 	}
 	if err != nil {
 		return fmt.Errorf("pdfreport: writing the report: %w", err)
@@ -77,22 +76,21 @@ func layOut(d *digest.Digest, traces digest.TraceStore, o Options, compress bool
 	// The page-count alias must be set before the fonts are added: gofpdf
 	// sizes the font subsets by it.
 	pdf.AliasNbPages("{nb}")
-	pdf.AddUTF8FontFromBytes(fontFamily, "", liberationsansregular.TTF)
-	pdf.AddUTF8FontFromBytes(fontFamily, "B", liberationsansbold.TTF)
+	pdfenc.AddFonts(pdf)
 	if err := pdf.Error(); err != nil {
 		return nil, fmt.Errorf("pdfreport: embedding the font: %w", err)
 	}
 
 	r := &report{layout: layout{pdf: pdf}, b: b, d: d, o: o, id: d.ID, unit: d.ResponseUnit}
 	tool := strings.TrimSpace(b.Tool.Name + " " + b.Tool.Version)
-	pdf.SetProducer(Clean(tool), true)
-	pdf.SetCreator(Clean(tool), true)
-	pdf.SetTitle(Clean(ReportTitle+": "+b.Spec.Title), true)
-	pdf.SetSubject(Clean(fmt.Sprintf("spec %s rev %s, report %s", b.Spec.SpecID, b.Spec.Revision, r.id)), true)
-	pdf.SetKeywords(Clean(fmt.Sprintf("report %s; spec %s; revision %s; units %d; pass %d; fail %d; invalid %d",
+	pdf.SetProducer(pdfenc.Clean(tool), true)
+	pdf.SetCreator(pdfenc.Clean(tool), true)
+	pdf.SetTitle(pdfenc.Clean(ReportTitle+": "+b.Spec.Title), true)
+	pdf.SetSubject(pdfenc.Clean(fmt.Sprintf("spec %s rev %s, report %s", b.Spec.SpecID, b.Spec.Revision, r.id)), true)
+	pdf.SetKeywords(pdfenc.Clean(fmt.Sprintf("report %s; spec %s; revision %s; units %d; pass %d; fail %d; invalid %d",
 		r.id, b.Spec.SpecID, b.Spec.Revision, b.Summary.Units, b.Summary.Pass, b.Summary.Fail, b.Summary.Invalid)), true)
 	if b.SpecDoc != nil && b.SpecDoc.Report.PreparedBy.Name != "" {
-		pdf.SetAuthor(Clean(b.SpecDoc.Report.PreparedBy.Name), true)
+		pdf.SetAuthor(pdfenc.Clean(b.SpecDoc.Report.PreparedBy.Name), true)
 	}
 	pdf.SetMargins(marginL, bodyTop, marginR)
 	pdf.SetAutoPageBreak(true, pageH-bodyEnd)
@@ -220,7 +218,7 @@ func (r *report) logo() error {
 // drawPlot renders a gonum plot as vector graphics into the w × h mm
 // rectangle at (x, y) and restores the document state the canvas changed.
 func (r *report) drawPlot(pl *plot.Plot, x, y, w, h float64) {
-	c := NewCanvas(r.pdf, x, y, w, h, fontFamily)
+	c := pdfenc.NewCanvas(r.pdf, x, y, w, h, pdfenc.FontFamily)
 	pl.Draw(draw.New(c))
 	r.forgetFont()
 	r.pdf.SetDashPattern([]float64{}, 0)

@@ -15,6 +15,7 @@ import (
 	"unicode/utf16"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/internal/pdfenc"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 )
 
@@ -179,7 +180,7 @@ func TestWriteText(t *testing.T) {
 		}
 	}
 	for _, u := range b.Units {
-		if u.Verdict != acceptance.Pass && !bytes.Contains(out, []byte(pdfString(Clean("Unit "+u.Unit), false))) {
+		if u.Verdict != acceptance.Pass && !bytes.Contains(out, []byte(pdfString(pdfenc.Clean("Unit "+u.Unit), false))) {
 			t.Errorf("unit %q did not pass but has no page", u.Unit)
 		}
 	}

@@ -1,4 +1,4 @@
-package pdfreport
+package pdfenc
 
 import (
 	"strings"
@@ -8,13 +8,21 @@ import (
 
 	"codeberg.org/go-fonts/liberation/liberationsansbold"
 	"codeberg.org/go-fonts/liberation/liberationsansregular"
+	"github.com/jung-kurt/gofpdf"
 	"golang.org/x/image/font/sfnt"
 )
 
-// fontFamily is the name under which the embedded font is added to the
+// FontFamily is the name under which AddFonts adds the embedded font to a
 // document. Liberation Sans (SIL Open Font License) covers Latin, Greek and
 // Cyrillic, the arrows and the mathematical signs the report prints.
-const fontFamily = "LiberationSans"
+const FontFamily = "LiberationSans"
+
+// AddFonts embeds the regular and bold faces of the report font in pdf
+// under FontFamily; pdf.Error reports a failure.
+func AddFonts(pdf *gofpdf.Fpdf) {
+	pdf.AddUTF8FontFromBytes(FontFamily, "", liberationsansregular.TTF)
+	pdf.AddUTF8FontFromBytes(FontFamily, "B", liberationsansbold.TTF)
+}
 
 var (
 	glyphsOnce sync.Once

@@ -1,4 +1,4 @@
-package pdfreport
+package pdfenc
 
 import (
 	"bytes"

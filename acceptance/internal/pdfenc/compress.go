@@ -1,4 +1,4 @@
-package pdfreport
+package pdfenc
 
 import (
 	"bytes"
@@ -13,7 +13,7 @@ import (
 	"sync/atomic"
 )
 
-// writeCompressed writes doc, a document that gofpdf wrote without
+// Compress writes doc, a document that gofpdf wrote without
 // compression, to w with the content stream of every page compressed, and
 // the cross-reference table and the startxref offset moved to match. The
 // result is byte for byte the document gofpdf writes with compression on:
@@ -25,7 +25,7 @@ import (
 //
 // A document laid out other than as gofpdf writes it (see pageContents)
 // is written as it is: uncompressed, but whole.
-func writeCompressed(w io.Writer, doc []byte) error {
+func Compress(w io.Writer, doc []byte) error {
 	objs, xref, ok := pageContents(doc)
 	if !ok {
 		_, err := w.Write(doc)
