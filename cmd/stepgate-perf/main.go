@@ -49,18 +49,28 @@ import (
 	"github.com/stepgate/stepgate/acceptance/rigdata"
 )
 
+// options are the script's flags.
+type options struct {
+	sizes    string  // -sizes: comma-separated batch sizes
+	dir      string  // -dir: working directory
+	duration float64 // -duration-s: seconds logged per unit
+	keep     bool    // -keep: keep the generated logs
+	repeat   int     // -repeat: alternated measurements per size
+}
+
 func main() {
-	sizes := flag.String("sizes", "1000,5000,20000", "comma-separated batch sizes (units)")
-	dir := flag.String("dir", filepath.Join(os.TempDir(), "stepgate-perf"), "working directory for generated logs and reports")
-	duration := flag.Float64("duration-s", 6, "seconds logged per unit")
-	keep := flag.Bool("keep", false, "keep the generated logs")
-	repeat := flag.Int("repeat", 3, "measurements of the floor and the full run per size, alternated; the median is reported")
+	var o options
+	flag.StringVar(&o.sizes, "sizes", "1000,5000,20000", "comma-separated batch sizes (units)")
+	flag.StringVar(&o.dir, "dir", filepath.Join(os.TempDir(), "stepgate-perf"), "working directory for generated logs and reports")
+	flag.Float64Var(&o.duration, "duration-s", 6, "seconds logged per unit")
+	flag.BoolVar(&o.keep, "keep", false, "keep the generated logs")
+	flag.IntVar(&o.repeat, "repeat", 3, "measurements of the floor and the full run per size, alternated; the median is reported")
 	flag.Parse()
-	if *repeat < 1 {
+	if o.repeat < 1 {
 		fmt.Fprintln(os.Stderr, "stepgate-perf: -repeat must be at least 1")
 		os.Exit(2)
 	}
-	if err := run(*sizes, *dir, *duration, *keep, *repeat); err != nil {
+	if err := run(o); err != nil {
 		fmt.Fprintln(os.Stderr, "stepgate-perf:", err)
 		os.Exit(1)
 	}
@@ -79,118 +89,199 @@ type result struct {
 	fullUnitsPerSecond float64
 }
 
-func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
-	var sizes []int
-	for _, s := range strings.Split(sizesFlag, ",") {
-		n, err := strconv.Atoi(strings.TrimSpace(s))
-		if err != nil || n < 1 {
-			return fmt.Errorf("-sizes: %q is not a positive whole number", s)
-		}
-		sizes = append(sizes, n)
-	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
+// run measures every batch size and prints the tables.
+func run(o options) error {
+	sizes, err := parseSizes(o.sizes)
+	if err != nil {
 		return err
 	}
-	bin := filepath.Join(dir, "stepgate")
-	build := exec.Command("go", "build", "-o", bin, "./cmd/stepgate")
-	build.Stdout, build.Stderr = os.Stderr, os.Stderr
-	if err := build.Run(); err != nil {
-		return fmt.Errorf("building stepgate: %w", err)
+	if err := os.MkdirAll(o.dir, 0o755); err != nil {
+		return err
+	}
+	bin, err := buildStepgate(o.dir)
+	if err != nil {
+		return err
 	}
 	fmt.Printf("machine: %d cores (GOMAXPROCS %d), %s/%s, %s\n", runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.GOOS, runtime.GOARCH, runtime.Version())
 	var results []result
 	for _, n := range sizes {
-		work := filepath.Join(dir, fmt.Sprintf("units-%d", n))
-		os.RemoveAll(work)
-		t0 := time.Now()
-		specPath, logDir, err := demo.Write(work, demo.Options{Units: n, Duration: duration})
+		r, err := measureSize(bin, o, n)
 		if err != nil {
 			return err
 		}
-		fmt.Printf("generated %d logs in %.1f s\n", n, time.Since(t0).Seconds())
-		r := result{units: n}
-		files, err := rigdata.FindLogs([]string{logDir}, nil)
-		if err != nil {
-			return err
-		}
-		// Warm the page cache until a floor pass takes as long as the one
-		// before (within 5 %, at most five passes): freshly written logs
-		// are not all in memory at once, and a first pass over 20,000 of
-		// them can take twice as long as the next. Then alternate floor and
-		// full run, so that whatever else the machine does (page-cache
-		// reclaim, another process) falls on both, and report the median of
-		// each.
-		var last time.Duration
-		for k := 0; k < 5; k++ {
-			t0 = time.Now()
-			if _, _, err := floor(files, false); err != nil {
-				return err
-			}
-			d := time.Since(t0)
-			if k > 0 && d > last*95/100 && d < last*105/100 {
-				break
-			}
-			last = d
-		}
-		var floors, digesteds, fulls, judgeds []time.Duration
-		var peaks []int64
-		out := filepath.Join(work, "report")
-		for k := 0; k < repeat; k++ {
-			t0 = time.Now()
-			r.bytes, r.rows, err = floor(files, false)
-			if err != nil {
-				return err
-			}
-			floors = append(floors, time.Since(t0))
-			t0 = time.Now()
-			if _, _, err = floor(files, true); err != nil {
-				return err
-			}
-			digesteds = append(digesteds, time.Since(t0))
-
-			cmd := exec.Command(bin, "run", "--quiet", "--timing", "--spec", specPath, "--out", out, "--report-date", "2026-12-01", logDir)
-			var stderr strings.Builder
-			cmd.Stderr = &stderr
-			t0 = time.Now()
-			err = cmd.Run()
-			full := time.Since(t0)
-			fulls = append(fulls, full)
-			os.Stderr.WriteString(strings.ReplaceAll(stderr.String(), timingLine(stderr.String()), ""))
-			reports, ok := reportsTime(stderr.String())
-			if !ok && cmd.ProcessState != nil && (cmd.ProcessState.ExitCode() == 0 || cmd.ProcessState.ExitCode() == 1) {
-				return fmt.Errorf("stepgate run printed no timing line")
-			}
-			judgeds = append(judgeds, full-reports)
-			if cmd.ProcessState == nil {
-				return fmt.Errorf("stepgate run: %w", err)
-			}
-			r.exitCode = cmd.ProcessState.ExitCode()
-			if r.exitCode != 0 && r.exitCode != 1 {
-				return fmt.Errorf("stepgate run exited %d", r.exitCode)
-			}
-			if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-				peaks = append(peaks, ru.Maxrss*1024) // kilobytes on Linux
-			}
-		}
-		r.floor, r.full = median(floors), median(fulls)
-		r.digested, r.judged = median(digesteds), median(judgeds)
-		for _, p := range peaks {
-			r.peakRSS = max(r.peakRSS, p) // the worst peak, not the median
-		}
-		fmt.Printf("  floor runs %s; with SHA-256 %s; full runs %s, of which before the reports %s\n",
-			seconds(floors), seconds(digesteds), seconds(fulls), seconds(judgeds))
-		mb := float64(r.bytes) / 1e6
-		r.floorMBs = mb / r.floor.Seconds()
-		r.fullMBs = mb / r.full.Seconds()
-		r.fullUnitsPerSecond = float64(n) / r.full.Seconds()
 		results = append(results, r)
-		fmt.Printf("%d units: %.0f MB, %d rows; floor %.2f s, full run %.2f s (medians), peak %.0f MB (worst)\n",
-			n, mb, r.rows, r.floor.Seconds(), r.full.Seconds(), float64(r.peakRSS)/1e6)
-		if !keep {
-			os.RemoveAll(filepath.Join(work, "logs"))
+	}
+	printTables(results)
+	return nil
+}
+
+// parseSizes reads the -sizes flag.
+func parseSizes(flag string) ([]int, error) {
+	var sizes []int
+	for _, s := range strings.Split(flag, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(s))
+		if err != nil || n < 1 {
+			return nil, fmt.Errorf("-sizes: %q is not a positive whole number", s)
+		}
+		sizes = append(sizes, n)
+	}
+	return sizes, nil
+}
+
+// buildStepgate builds the command into dir and returns its path.
+func buildStepgate(dir string) (string, error) {
+	bin := filepath.Join(dir, "stepgate")
+	build := exec.Command("go", "build", "-o", bin, "./cmd/stepgate")
+	build.Stdout, build.Stderr = os.Stderr, os.Stderr
+	if err := build.Run(); err != nil {
+		return "", fmt.Errorf("building stepgate: %w", err)
+	}
+	return bin, nil
+}
+
+// samples are the alternated measurements of one batch size.
+type samples struct {
+	floors, digesteds, fulls, judgeds []time.Duration
+	peaks                             []int64
+	bytes, rows                       int64 // read by the floor
+	exitCode                          int   // of the last full run
+}
+
+// measureSize generates a batch of n units, warms the page cache, times
+// floor and full run alternately and returns the medians.
+func measureSize(bin string, o options, n int) (result, error) {
+	work := filepath.Join(o.dir, fmt.Sprintf("units-%d", n))
+	os.RemoveAll(work)
+	t0 := time.Now()
+	specPath, logDir, err := demo.Write(work, demo.Options{Units: n, Duration: o.duration})
+	if err != nil {
+		return result{}, err
+	}
+	fmt.Printf("generated %d logs in %.1f s\n", n, time.Since(t0).Seconds())
+	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	if err != nil {
+		return result{}, err
+	}
+	if err := warmCache(files); err != nil {
+		return result{}, err
+	}
+	full := fullRun{bin: bin, spec: specPath, out: filepath.Join(work, "report"), logs: logDir}
+	var s samples
+	for k := 0; k < o.repeat; k++ {
+		if err := s.measure(files, full); err != nil {
+			return result{}, err
 		}
 	}
+	r := s.result(n)
+	fmt.Printf("  floor runs %s; with SHA-256 %s; full runs %s, of which before the reports %s\n",
+		seconds(s.floors), seconds(s.digesteds), seconds(s.fulls), seconds(s.judgeds))
+	fmt.Printf("%d units: %.0f MB, %d rows; floor %.2f s, full run %.2f s (medians), peak %.0f MB (worst)\n",
+		n, float64(r.bytes)/1e6, r.rows, r.floor.Seconds(), r.full.Seconds(), float64(r.peakRSS)/1e6)
+	if !o.keep {
+		os.RemoveAll(filepath.Join(work, "logs"))
+	}
+	return r, nil
+}
 
+// warmCache reads the logs until a floor pass takes as long as the one
+// before (within 5 %, at most five passes): freshly written logs are not
+// all in memory at once, and a first pass over 20,000 of them can take
+// twice as long as the next. Floor and full run then alternate, so that
+// whatever else the machine does (page-cache reclaim, another process)
+// falls on both, and the median of each is reported.
+func warmCache(files []string) error {
+	var last time.Duration
+	for k := 0; k < 5; k++ {
+		t0 := time.Now()
+		if _, _, err := floor(files, false); err != nil {
+			return err
+		}
+		d := time.Since(t0)
+		if k > 0 && d > last*95/100 && d < last*105/100 {
+			break
+		}
+		last = d
+	}
+	return nil
+}
+
+// measure times one floor, one floor with digests and one full run.
+func (s *samples) measure(files []string, full fullRun) error {
+	t0 := time.Now()
+	var err error
+	if s.bytes, s.rows, err = floor(files, false); err != nil {
+		return err
+	}
+	s.floors = append(s.floors, time.Since(t0))
+	t0 = time.Now()
+	if _, _, err = floor(files, true); err != nil {
+		return err
+	}
+	s.digesteds = append(s.digesteds, time.Since(t0))
+	total, judged, peak, code, err := full.time()
+	s.fulls = append(s.fulls, total)
+	if err != nil {
+		return err
+	}
+	s.judgeds = append(s.judgeds, judged)
+	s.exitCode = code
+	if peak > 0 {
+		s.peaks = append(s.peaks, peak)
+	}
+	return nil
+}
+
+// result gives the medians of the samples and the worst peak memory.
+func (s *samples) result(n int) result {
+	r := result{units: n, bytes: s.bytes, rows: s.rows, exitCode: s.exitCode}
+	r.floor, r.full = median(s.floors), median(s.fulls)
+	r.digested, r.judged = median(s.digesteds), median(s.judgeds)
+	for _, p := range s.peaks {
+		r.peakRSS = max(r.peakRSS, p) // the worst peak, not the median
+	}
+	mb := float64(r.bytes) / 1e6
+	r.floorMBs = mb / r.floor.Seconds()
+	r.fullMBs = mb / r.full.Seconds()
+	r.fullUnitsPerSecond = float64(n) / r.full.Seconds()
+	return r
+}
+
+// fullRun is `stepgate run` on the batch, as a separate process.
+type fullRun struct {
+	bin, spec, out, logs string
+}
+
+// time runs stepgate once and returns its wall time, the time before its
+// first report, its peak resident memory (0 when unknown) and its exit
+// status. Its stderr is passed on without the timing line.
+func (f fullRun) time() (total, judged time.Duration, peak int64, code int, err error) {
+	cmd := exec.Command(f.bin, "run", "--quiet", "--timing", "--spec", f.spec, "--out", f.out, "--report-date", "2026-12-01", f.logs)
+	var stderr strings.Builder
+	cmd.Stderr = &stderr
+	t0 := time.Now()
+	err = cmd.Run()
+	total = time.Since(t0)
+	os.Stderr.WriteString(strings.ReplaceAll(stderr.String(), timingLine(stderr.String()), ""))
+	reports, ok := reportsTime(stderr.String())
+	if !ok && cmd.ProcessState != nil && (cmd.ProcessState.ExitCode() == 0 || cmd.ProcessState.ExitCode() == 1) {
+		return total, 0, 0, 0, fmt.Errorf("stepgate run printed no timing line")
+	}
+	if cmd.ProcessState == nil {
+		return total, 0, 0, 0, fmt.Errorf("stepgate run: %w", err)
+	}
+	code = cmd.ProcessState.ExitCode()
+	if code != 0 && code != 1 {
+		return total, 0, 0, code, fmt.Errorf("stepgate run exited %d", code)
+	}
+	if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+		peak = ru.Maxrss * 1024 // kilobytes on Linux
+	}
+	return total, total - reports, peak, code, nil
+}
+
+// printTables prints the throughput table, the time shares and the growth
+// from the middle to the largest batch.
+func printTables(results []result) {
 	fmt.Println()
 	fmt.Printf("%8s %9s %12s %12s %11s %10s %10s %10s\n", "units", "MB", "floor MB/s", "run MB/s", "run unit/s", "run/floor", "peak MB", "run s")
 	for _, r := range results {
@@ -211,7 +302,6 @@ func run(sizesFlag, dir string, duration float64, keep bool, repeat int) error {
 		fmt.Printf("\ngrowth %d → %d units: samples ×%.2f, run time ×%.2f, peak memory ×%.2f\n",
 			a.units, b.units, float64(b.rows)/float64(a.rows), b.full.Seconds()/a.full.Seconds(), float64(b.peakRSS)/float64(a.peakRSS))
 	}
-	return nil
 }
 
 // median returns the median of d (the lower middle for an even count).
