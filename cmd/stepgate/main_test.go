@@ -42,43 +42,83 @@ func TestRunEndToEnd(t *testing.T) {
 	if !strings.Contains(stdout, "units 7: pass 1, fail 3, invalid 3") {
 		t.Errorf("summary line missing from stdout:\n%s", stdout)
 	}
+	checkE2EResults(t, filepath.Join(out, "results.json"))
+	checkE2EWorkbook(t, filepath.Join(out, "report.xlsx"))
+	checkE2EPDF(t, filepath.Join(out, "report.pdf"))
+	// No temporary files are left behind.
+	if names := dirNames(t, out); len(names) != 3 {
+		t.Errorf("output directory holds %v, want the three reports only", names)
+	}
+}
 
-	data, err := os.ReadFile(filepath.Join(out, "results.json"))
+// e2eResults is the part of results.json TestRunEndToEnd reads.
+type e2eResults struct {
+	Tool    map[string]string `json:"tool"`
+	Spec    map[string]string `json:"spec"`
+	Summary map[string]int    `json:"summary"`
+	Units   []e2eUnit         `json:"units"`
+}
+
+type e2eUnit struct {
+	Unit     string            `json:"unit"`
+	File     string            `json:"file"`
+	SHA256   string            `json:"sha256"`
+	Metadata map[string]string `json:"metadata"`
+	Verdict  string            `json:"verdict"`
+	Reasons  []string          `json:"reasons"`
+	Steps    []struct {
+		Index   int                 `json:"index"`
+		StartS  float64             `json:"start_s"`
+		From    float64             `json:"from"`
+		To      float64             `json:"to"`
+		Verdict string              `json:"verdict"`
+		Metrics map[string]*float64 `json:"metrics"`
+		Checks  []struct {
+			Metric  string   `json:"metric"`
+			Value   *float64 `json:"value"`
+			Max     *float64 `json:"max"`
+			Verdict string   `json:"verdict"`
+		} `json:"checks"`
+		Predicted *struct {
+			Metrics map[string]*float64 `json:"metrics"`
+		} `json:"predicted"`
+		Gap map[string]*float64 `json:"gap"`
+	} `json:"steps"`
+	Fit map[string]any `json:"fit"`
+}
+
+// e2eUnits are the verdicts testdata/e2e/README.md lists, with a check of
+// what else each unit's record must hold.
+var e2eUnits = map[string]struct {
+	verdict string
+	check   func(t *testing.T, u e2eUnit)
+}{
+	"VD25-261101": {"pass", checkPassedUnit},
+	"VD25-261105": {"fail", func(t *testing.T, u e2eUnit) {
+		if !strings.HasPrefix(u.Reasons[0], "overshoot_pct ") || !strings.Contains(u.Reasons[0], "> 10 at step 1") {
+			t.Errorf("overshoot reason: %v", u.Reasons)
+		}
+	}},
+	"VD25-261109": {"fail", nil},
+	"VD25-261112": {"fail", nil},
+	"VD25-261138": {"invalid", func(t *testing.T, u e2eUnit) {
+		if !strings.Contains(u.Reasons[0], "line 1407: row has 3 fields") {
+			t.Errorf("truncated log reason has no line number: %v", u.Reasons)
+		}
+	}},
+	"VD25-261199": {"invalid", nil},
+	"export":      {"invalid", nil},
+}
+
+// checkE2EResults reads results.json back: the tool and spec blocks, the
+// summary, the units in id order with their verdicts and reasons.
+func checkE2EResults(t *testing.T, path string) {
+	t.Helper()
+	data, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	var res struct {
-		Tool    map[string]string `json:"tool"`
-		Spec    map[string]string `json:"spec"`
-		Summary map[string]int    `json:"summary"`
-		Units   []struct {
-			Unit     string            `json:"unit"`
-			File     string            `json:"file"`
-			SHA256   string            `json:"sha256"`
-			Metadata map[string]string `json:"metadata"`
-			Verdict  string            `json:"verdict"`
-			Reasons  []string          `json:"reasons"`
-			Steps    []struct {
-				Index   int                 `json:"index"`
-				StartS  float64             `json:"start_s"`
-				From    float64             `json:"from"`
-				To      float64             `json:"to"`
-				Verdict string              `json:"verdict"`
-				Metrics map[string]*float64 `json:"metrics"`
-				Checks  []struct {
-					Metric  string   `json:"metric"`
-					Value   *float64 `json:"value"`
-					Max     *float64 `json:"max"`
-					Verdict string   `json:"verdict"`
-				} `json:"checks"`
-				Predicted *struct {
-					Metrics map[string]*float64 `json:"metrics"`
-				} `json:"predicted"`
-				Gap map[string]*float64 `json:"gap"`
-			} `json:"steps"`
-			Fit map[string]any `json:"fit"`
-		} `json:"units"`
-	}
+	var res e2eResults
 	if err := json.Unmarshal(data, &res); err != nil {
 		t.Fatalf("results.json: %v", err)
 	}
@@ -88,51 +128,50 @@ func TestRunEndToEnd(t *testing.T) {
 	if res.Summary["units"] != 7 || res.Summary["pass"] != 1 || res.Summary["fail"] != 3 || res.Summary["invalid"] != 3 {
 		t.Errorf("summary %v", res.Summary)
 	}
-	want := map[string]string{
-		"VD25-261101": "pass", "VD25-261105": "fail", "VD25-261109": "fail", "VD25-261112": "fail",
-		"VD25-261138": "invalid", "VD25-261199": "invalid", "export": "invalid",
-	}
 	for i, u := range res.Units {
 		if i > 0 && res.Units[i-1].Unit > u.Unit {
 			t.Errorf("units not ordered by id: %s before %s", res.Units[i-1].Unit, u.Unit)
 		}
-		if want[u.Unit] != u.Verdict {
-			t.Errorf("unit %s: verdict %s, want %s (reasons %v)", u.Unit, u.Verdict, want[u.Unit], u.Reasons)
+		want := e2eUnits[u.Unit]
+		if want.verdict != u.Verdict {
+			t.Errorf("unit %s: verdict %s, want %s (reasons %v)", u.Unit, u.Verdict, want.verdict, u.Reasons)
 		}
 		if u.Verdict != "pass" && len(u.Reasons) == 0 {
 			t.Errorf("unit %s: %s without a reason", u.Unit, u.Verdict)
 		}
-		switch u.Unit {
-		case "VD25-261101":
-			if len(u.Steps) != 2 || u.Steps[0].To != 25 || u.Steps[1].To != 0 {
-				t.Fatalf("VD25-261101 steps: %+v", u.Steps)
-			}
-			for _, s := range u.Steps {
-				if len(s.Checks) != 4 || s.Predicted == nil || s.Gap == nil {
-					t.Errorf("step %d: checks %d, predicted %v, gap %v", s.Index, len(s.Checks), s.Predicted != nil, s.Gap != nil)
-				}
-				for _, c := range s.Checks {
-					if c.Value == nil || c.Verdict != "pass" {
-						t.Errorf("step %d check %s: %v %s", s.Index, c.Metric, c.Value, c.Verdict)
-					}
-				}
-			}
-			if u.Metadata["station"] != "EOL-2" || len(u.SHA256) != 64 || u.Fit == nil {
-				t.Errorf("metadata %v, sha %q, fit %v", u.Metadata, u.SHA256, u.Fit)
-			}
-		case "VD25-261105":
-			if !strings.HasPrefix(u.Reasons[0], "overshoot_pct ") || !strings.Contains(u.Reasons[0], "> 10 at step 1") {
-				t.Errorf("overshoot reason: %v", u.Reasons)
-			}
-		case "VD25-261138":
-			if !strings.Contains(u.Reasons[0], "line 1407: row has 3 fields") {
-				t.Errorf("truncated log reason has no line number: %v", u.Reasons)
+		if want.check != nil {
+			want.check(t, u)
+		}
+	}
+}
+
+// checkPassedUnit checks the passing unit's record: two steps, each with
+// its four checks passed, a prediction and a gap; metadata, digest, fit.
+func checkPassedUnit(t *testing.T, u e2eUnit) {
+	t.Helper()
+	if len(u.Steps) != 2 || u.Steps[0].To != 25 || u.Steps[1].To != 0 {
+		t.Fatalf("VD25-261101 steps: %+v", u.Steps)
+	}
+	for _, s := range u.Steps {
+		if len(s.Checks) != 4 || s.Predicted == nil || s.Gap == nil {
+			t.Errorf("step %d: checks %d, predicted %v, gap %v", s.Index, len(s.Checks), s.Predicted != nil, s.Gap != nil)
+		}
+		for _, c := range s.Checks {
+			if c.Value == nil || c.Verdict != "pass" {
+				t.Errorf("step %d check %s: %v %s", s.Index, c.Metric, c.Value, c.Verdict)
 			}
 		}
 	}
+	if u.Metadata["station"] != "EOL-2" || len(u.SHA256) != 64 || u.Fit == nil {
+		t.Errorf("metadata %v, sha %q, fit %v", u.Metadata, u.SHA256, u.Fit)
+	}
+}
 
-	// The workbook read back: sheets, numbers stored as numbers.
-	f, err := excelize.OpenFile(filepath.Join(out, "report.xlsx"))
+// checkE2EWorkbook reads the workbook back: its sheets, and numbers stored
+// as numbers.
+func checkE2EWorkbook(t *testing.T, path string) {
+	t.Helper()
+	f, err := excelize.OpenFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -161,22 +200,17 @@ func TestRunEndToEnd(t *testing.T) {
 	if typ, _ := f.GetCellType("Units", cell); typ != excelize.CellTypeNumber && typ != excelize.CellTypeUnset {
 		t.Errorf("overshoot cell %s has type %v, want a number", cell, typ)
 	}
+}
 
-	pdf, err := os.ReadFile(filepath.Join(out, "report.pdf"))
+// checkE2EPDF checks that the report is a PDF with pages.
+func checkE2EPDF(t *testing.T, path string) {
+	t.Helper()
+	pdf, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !bytes.HasPrefix(pdf, []byte("%PDF-")) || bytes.Count(pdf, []byte("/Type /Page\n")) < 2 {
 		t.Errorf("report.pdf: not a PDF with pages (%d bytes)", len(pdf))
-	}
-	// No temporary files are left behind.
-	ents, _ := os.ReadDir(out)
-	if len(ents) != 3 {
-		var names []string
-		for _, e := range ents {
-			names = append(names, e.Name())
-		}
-		t.Errorf("output directory holds %v, want the three reports only", names)
 	}
 }
 
