@@ -87,3 +87,38 @@ func ExampleIndividuals() {
 	// point 21: four_of_five_beyond_1sigma
 	// point 21: eight_beyond_1sigma
 }
+
+// Steady-state error (mm) of units in lots of four (invented values) against
+// a tolerance of ±0.12 mm: performance from the overall σ, capability from
+// the pooled within-lot σ, each stating its σ and subgroup size.
+func ExampleCapabilitySubgroups() {
+	lots := [][]float64{
+		{0.021, 0.034, 0.012, 0.027},
+		{0.041, 0.029, 0.052, 0.036},
+		{0.018, 0.025, 0.031, 0.009},
+	}
+	var all []float64
+	for _, l := range lots {
+		all = append(all, l...)
+	}
+	lim := stats.TwoSided(-0.12, 0.12)
+	for _, x := range []stats.Indices{stats.Performance(all, lim), stats.CapabilitySubgroups(lots, lim)} {
+		if !x.Known() {
+			fmt.Println("not computable:", x.Reason)
+			continue
+		}
+		spread, _, _, worst := x.Names()
+		fmt.Printf("%s %.2f, %s %.2f; σ %s = %.4f", spread, x.Spread.Value, worst, x.Min.Value, x.Source, x.Sigma)
+		if x.Source != stats.SigmaOverall {
+			fmt.Printf(" (%d subgroups of %d)", x.Subgroups, x.SubgroupMax)
+		}
+		fmt.Println()
+	}
+	// One-sided: only an upper limit on overshoot (%), individuals in time order.
+	over := stats.CapabilityIndividuals([]float64{3.1, 3.4, 2.9, 3.6, 3.2, 3.0}, stats.UpperOnly(5))
+	fmt.Printf("Cpu %.2f, Cpk %.2f; Cp: %s\n", over.Upper.Value, over.Min.Value, over.Spread.Reason)
+	// Output:
+	// Pp 3.29, Ppk 2.52; σ overall = 0.0122
+	// Cp 4.10, Cpk 3.15; σ pooled_within_subgroups = 0.0098 (3 subgroups of 4)
+	// Cpu 1.61, Cpk 1.61; Cp: needs both a lower and an upper specification limit
+}
