@@ -125,8 +125,8 @@ func badCases() []badCase {
 			reason: "time gap of 0.255 s at 0.555 s (no sample between 0.3 s and 0.555 s), 51× the median sample period of 0.005 s",
 			check: func(t *testing.T, _ *acceptance.Batch, u acceptance.UnitResult) {
 				for _, n := range metrics.Names {
-					if n != metrics.StepSize && u.Steps[0].Metrics.Get(string(n)).OK {
-						t.Errorf("%s measured across the gap: %v", n, u.Steps[0].Metrics.Get(string(n)))
+					if n != metrics.StepSize && u.Steps[0].Metrics.Get(n).OK {
+						t.Errorf("%s measured across the gap: %v", n, u.Steps[0].Metrics.Get(n))
 					}
 				}
 			}},
@@ -163,7 +163,7 @@ func badCases() []badCase {
 		// data show exceeds the limit.
 		{name: "spike in the final window", files: []string{"spike_in_final_window.csv"}, verdict: fail, reason: "settling_time_s 1.104 > 0.5 at step 1",
 			check: func(t *testing.T, _ *acceptance.Batch, u acceptance.UnitResult) {
-				if v := u.Steps[0].Metrics.Get(string(metrics.FinalValue)); !v.OK || math.Abs(v.V-goodFinal) > 1e-3 {
+				if v := u.Steps[0].Metrics.Get(metrics.FinalValue); !v.OK || math.Abs(v.V-goodFinal) > 1e-3 {
 					t.Errorf("final value %v: the spike was not rejected", v)
 				}
 			}},
@@ -389,15 +389,15 @@ func TestUnstableModel(t *testing.T) {
 						continue
 					}
 					for _, n := range metrics.Names {
-						v := st.Predicted.Metrics.Get(string(n))
+						v := st.Predicted.Metrics.Get(n)
 						switch {
-						case c.why != "" && (v.OK || !strings.Contains(st.Predicted.Metrics.Reason(string(n)), c.why)):
-							t.Errorf("%s step %d: predicted %s = %v (%q), want null with the instability", u.Unit, st.Index, n, v, st.Predicted.Metrics.Reason(string(n)))
-						case c.why != "" && st.Gap.Get(string(n)) != nil:
+						case c.why != "" && (v.OK || !strings.Contains(st.Predicted.Metrics.Reason(n), c.why)):
+							t.Errorf("%s step %d: predicted %s = %v (%q), want null with the instability", u.Unit, st.Index, n, v, st.Predicted.Metrics.Reason(n))
+						case c.why != "" && st.Gap.Get(n) != nil:
 							t.Errorf("%s step %d: gap %s given without a prediction", u.Unit, st.Index, n)
 						}
 					}
-					if c.why == "" && u.Unit == goodSerial && !st.Predicted.Metrics.Get(string(metrics.Overshoot)).OK {
+					if c.why == "" && u.Unit == goodSerial && !st.Predicted.Metrics.Get(metrics.Overshoot).OK {
 						t.Errorf("stable loop: predicted overshoot unknown: %q", st.Predicted.Metrics.Unmeasured())
 					}
 				}
@@ -475,7 +475,7 @@ func closeToClosedForm(dtTol, osTol float64) func(*testing.T, *acceptance.Batch,
 			{metrics.FinalValue, goodFinal, 1e-3},
 			{metrics.InitialValue, 0, 1e-9},
 		} {
-			if v := m.Get(string(c.n)); !v.OK || math.Abs(v.V-c.want) > c.tol {
+			if v := m.Get(c.n); !v.OK || math.Abs(v.V-c.want) > c.tol {
 				t.Errorf("%s: %s = %v, want %v ± %v (closed form)", u.Unit, c.n, v, c.want, c.tol)
 			}
 		}
@@ -503,8 +503,8 @@ func unmeasured(n metrics.Name, why string) func(*testing.T, *acceptance.Batch, 
 	return func(t *testing.T, _ *acceptance.Batch, u acceptance.UnitResult) {
 		t.Helper()
 		st := u.Steps[0]
-		if st.Metrics.Get(string(n)).OK || !strings.Contains(st.Metrics.Reason(string(n)), why) {
-			t.Errorf("%s: %s = %v, reason %q; want null with %q", u.Unit, n, st.Metrics.Get(string(n)), st.Metrics.Reason(string(n)), why)
+		if st.Metrics.Get(n).OK || !strings.Contains(st.Metrics.Reason(n), why) {
+			t.Errorf("%s: %s = %v, reason %q; want null with %q", u.Unit, n, st.Metrics.Get(n), st.Metrics.Reason(n), why)
 		}
 	}
 }

@@ -160,7 +160,7 @@ feed:
 		SpecDoc: spec,
 	}
 	if b.Limits == nil {
-		b.Limits = map[string]Limit{}
+		b.Limits = map[metrics.Name]Limit{}
 	}
 	b.Notice = Notice
 	b.TestDates = testDates(results)

@@ -26,7 +26,7 @@ type Batch struct {
 	Units   []UnitResult  `json:"units"`
 	Model   *ModelSummary `json:"model,omitempty"`
 	// Limits repeats the spec's limits for consumers that read only results.
-	Limits map[string]Limit `json:"limits"`
+	Limits map[metrics.Name]Limit `json:"limits"`
 	// ReportDate is the date the reports carry (RFC 3339 date).
 	ReportDate string `json:"report_date"`
 	// Notice says what the batch's verdicts are and are not.
@@ -218,12 +218,12 @@ type NominalPrediction struct {
 
 // Check is one limit applied to one metric of one step.
 type Check struct {
-	Metric  string   `json:"metric"`
-	Value   *float64 `json:"value"`
-	Min     *float64 `json:"min"`
-	Max     *float64 `json:"max"`
-	Verdict Verdict  `json:"verdict"`
-	Reason  string   `json:"reason,omitempty"`
+	Metric  metrics.Name `json:"metric"`
+	Value   *float64     `json:"value"`
+	Min     *float64     `json:"min"`
+	Max     *float64     `json:"max"`
+	Verdict Verdict      `json:"verdict"`
+	Reason  string       `json:"reason,omitempty"`
 }
 
 // Compared returns the prediction of n the batch compares the line with

@@ -54,7 +54,7 @@ func (cs *curveSampler) keep(path string, index int, v Verdict) bool {
 // OverlayWindow is the time window of the overlay chart: 1.5 times the
 // settling-time limit, else 2 s.
 func OverlayWindow(spec *Spec) float64 {
-	if l, ok := spec.Limits[string(metrics.SettlingTime)]; ok && l.Max != nil && *l.Max > 0 {
+	if l, ok := spec.Limits[metrics.SettlingTime]; ok && l.Max != nil && *l.Max > 0 {
 		return OverlayWindowOverSettling * *l.Max
 	}
 	return 2

@@ -90,12 +90,8 @@ func checkAcceptedSpec(t *testing.T, s *acceptance.Spec) {
 	if len(s.Limits) == 0 {
 		t.Fatal("accepted without limits")
 	}
-	known := map[string]bool{}
-	for _, n := range metrics.Names {
-		known[string(n)] = true
-	}
 	for name, l := range s.Limits {
-		if !known[name] || (l.Min == nil && l.Max == nil) || (l.Min != nil && l.Max != nil && *l.Min > *l.Max) {
+		if metrics.Index(name) < 0 || (l.Min == nil && l.Max == nil) || (l.Min != nil && l.Max != nil && *l.Min > *l.Max) {
 			t.Fatalf("accepted limit %s %+v", name, l)
 		}
 	}

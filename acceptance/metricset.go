@@ -20,6 +20,9 @@ type MetricSet struct {
 	why   *[metrics.NumNames]string // reasons of unknown metrics; nil when none has one; shared by copies, never written through
 }
 
+// The bit masks of MetricSet and GapSet hold one bit per metric.
+var _ [16 - metrics.NumNames]struct{} // a 17th metric needs wider masks
+
 // Set stores the value of metric n; an unknown name is ignored.
 func (m *MetricSet) Set(n metrics.Name, v metrics.Value) {
 	i := metrics.Index(n)
@@ -69,8 +72,8 @@ func metricSetOf(m metrics.StepMetrics) MetricSet {
 
 // Lookup returns the value of the named metric; ok is false for a name that
 // is not a metric.
-func (m *MetricSet) Lookup(name string) (v metrics.Value, ok bool) {
-	i := metrics.Index(metrics.Name(name))
+func (m *MetricSet) Lookup(name metrics.Name) (v metrics.Value, ok bool) {
+	i := metrics.Index(name)
 	if i < 0 {
 		return metrics.Value{}, false
 	}
@@ -79,7 +82,7 @@ func (m *MetricSet) Lookup(name string) (v metrics.Value, ok bool) {
 
 // Get returns the value of the named metric, unknown for a name that is not
 // a metric.
-func (m *MetricSet) Get(name string) metrics.Value {
+func (m *MetricSet) Get(name metrics.Name) metrics.Value {
 	v, _ := m.Lookup(name)
 	return v
 }
@@ -95,7 +98,7 @@ func (m *MetricSet) At(i int) metrics.Value {
 
 // Reason returns why the named metric is unknown ("" when it is known or not
 // a metric).
-func (m *MetricSet) Reason(name string) string {
+func (m *MetricSet) Reason(name metrics.Name) string {
 	v, ok := m.Lookup(name)
 	if !ok || v.OK {
 		return ""
@@ -104,11 +107,11 @@ func (m *MetricSet) Reason(name string) string {
 }
 
 // Unmeasured maps every unknown metric to the reason it is unknown.
-func (m *MetricSet) Unmeasured() map[string]string {
-	out := map[string]string{}
+func (m *MetricSet) Unmeasured() map[metrics.Name]string {
+	out := map[metrics.Name]string{}
 	for i, n := range metrics.Names {
 		if v := m.At(i); !v.OK {
-			out[string(n)] = verdictWhy(v)
+			out[n] = verdictWhy(v)
 		}
 	}
 	return out
@@ -163,16 +166,16 @@ func metricObject(value func(b []byte, i int) []byte) []byte {
 // UnmarshalJSON reads the object MarshalJSON writes; null is unknown with no
 // reason.
 func (m *MetricSet) UnmarshalJSON(data []byte) error {
-	var raw map[string]*float64
+	var raw map[metrics.Name]*float64
 	if err := json.Unmarshal(data, &raw); err != nil {
 		return err
 	}
 	*m = MetricSet{}
 	for k, v := range raw {
 		if v != nil {
-			m.Set(metrics.Name(k), metrics.Known(*v))
+			m.Set(k, metrics.Known(*v))
 		} else {
-			m.Set(metrics.Name(k), metrics.Unknown(""))
+			m.Set(k, metrics.Unknown(""))
 		}
 	}
 	return nil
@@ -186,11 +189,11 @@ type GapSet struct {
 
 // Get returns the gap of the named metric, nil where it is unknown. A nil
 // set has no gaps.
-func (g *GapSet) Get(name string) *float64 {
+func (g *GapSet) Get(name metrics.Name) *float64 {
 	if g == nil {
 		return nil
 	}
-	i := metrics.Index(metrics.Name(name))
+	i := metrics.Index(name)
 	if i < 0 || g.known&(1<<i) == 0 {
 		return nil
 	}
@@ -228,7 +231,7 @@ func (s StepResult) MarshalJSON() ([]byte, error) {
 	type plain StepResult
 	return json.Marshal(struct {
 		plain
-		Unmeasured map[string]string `json:"unmeasured"`
+		Unmeasured map[metrics.Name]string `json:"unmeasured"`
 	}{plain(s), s.Metrics.Unmeasured()})
 }
 
@@ -241,28 +244,28 @@ func (p Prediction) MarshalJSON() ([]byte, error) {
 	}
 	return json.Marshal(struct {
 		plain
-		Unmeasured map[string]string `json:"unmeasured,omitempty"`
+		Unmeasured map[metrics.Name]string `json:"unmeasured,omitempty"`
 	}{plain(p), un})
 }
 
 // MetricsOf returns the set holding the values of m (keys are metric
 // names; other keys are ignored). Metrics missing from m are unknown.
-func MetricsOf(m map[string]metrics.Value) MetricSet {
+func MetricsOf(m map[metrics.Name]metrics.Value) MetricSet {
 	var s MetricSet
 	for _, n := range metrics.Names {
 		s.Set(n, metrics.Unknown("not measured"))
 	}
 	for k, v := range m {
-		s.Set(metrics.Name(k), v)
+		s.Set(k, v)
 	}
 	return s
 }
 
 // GapsOf returns the set holding the gaps of m; nil values are unknown.
-func GapsOf(m map[string]*float64) *GapSet {
+func GapsOf(m map[metrics.Name]*float64) *GapSet {
 	g := &GapSet{}
 	for k, v := range m {
-		if i := metrics.Index(metrics.Name(k)); i >= 0 && v != nil {
+		if i := metrics.Index(k); i >= 0 && v != nil {
 			g.set(i, *v)
 		}
 	}

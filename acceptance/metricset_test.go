@@ -9,12 +9,12 @@ import (
 
 // A MetricSet encodes exactly as the map of its values would.
 func TestMetricSetJSONMatchesMap(t *testing.T) {
-	m := map[string]metrics.Value{}
+	m := map[metrics.Name]metrics.Value{}
 	for i, n := range metrics.Names {
 		if i%3 == 0 {
-			m[string(n)] = metrics.Unknown("why")
+			m[n] = metrics.Unknown("why")
 		} else {
-			m[string(n)] = metrics.Known(float64(i) * 1.1e-7)
+			m[n] = metrics.Known(float64(i) * 1.1e-7)
 		}
 	}
 	want, _ := json.Marshal(m)
@@ -34,16 +34,16 @@ func TestMetricSetCopyIndependent(t *testing.T) {
 	b.Set(metrics.Overshoot, metrics.Unknown("other reason"))
 	b.Set(metrics.RiseTime, metrics.Unknown("not crossed"))
 	b.Set(metrics.SettlingTime, metrics.Known(0.4))
-	if got := a.Get(string(metrics.Overshoot)); got.OK || got.Why != "no peak" {
+	if got := a.Get(metrics.Overshoot); got.OK || got.Why != "no peak" {
 		t.Errorf("original overshoot %+v after the copy changed", got)
 	}
-	if got := a.Get(string(metrics.RiseTime)); !got.OK || got.V != 0.2 || got.Why != "" {
+	if got := a.Get(metrics.RiseTime); !got.OK || got.V != 0.2 || got.Why != "" {
 		t.Errorf("original rise time %+v after the copy changed", got)
 	}
-	if got := b.Get(string(metrics.RiseTime)); got.OK || got.Why != "not crossed" {
+	if got := b.Get(metrics.RiseTime); got.OK || got.Why != "not crossed" {
 		t.Errorf("copy's rise time %+v", got)
 	}
-	if got := b.Get(string(metrics.Overshoot)); got.Why != "other reason" {
+	if got := b.Get(metrics.Overshoot); got.Why != "other reason" {
 		t.Errorf("copy's overshoot %+v", got)
 	}
 }

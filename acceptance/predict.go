@@ -148,7 +148,7 @@ func (p *predictor) attach(sr *StepResult, m metrics.StepMetrics, tr metrics.Tra
 	sr.Predicted = pr
 	sr.Gap = &GapSet{}
 	for i, n := range metrics.Names {
-		meas, pred := sr.Metrics.Get(string(n)), pr.Metrics.Get(string(n))
+		meas, pred := sr.Metrics.Get(n), pr.Metrics.Get(n)
 		if meas.OK && pred.OK {
 			sr.Gap.set(i, meas.V-pred.V)
 		}
@@ -260,7 +260,7 @@ func (p *predictor) designs(nominal []NominalPrediction) []GainDesign {
 		value  float64
 	}
 	var wants []want
-	if l, ok := p.spec.Limits[string(metrics.Overshoot)]; ok && l.Max != nil && *l.Max > 0 {
+	if l, ok := p.spec.Limits[metrics.Overshoot]; ok && l.Max != nil && *l.Max > 0 {
 		wants = append(wants, want{model.OvershootTarget(*l.Max), string(metrics.Overshoot), *l.Max})
 	}
 	wants = append(wants, want{model.DampingTarget(1), "damping", 1})

@@ -1,23 +1,26 @@
 package acceptance
 
-import "github.com/stepgate/stepgate/acceptance/model"
+import (
+	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/metrics"
+)
 
 // Spec is an acceptance specification: what to read from the logs, how to
 // measure, the limits, and optionally the model that predicts the response.
 type Spec struct {
-	SpecID       string           `yaml:"spec_id"`
-	Revision     string           `yaml:"revision"`
-	Title        string           `yaml:"title"`
-	Signals      Signals          `yaml:"signals"`
-	TimeUnit     string           `yaml:"time_unit"`     // s | ms | us
-	ResponseUnit string           `yaml:"response_unit"` // label only
-	EffortUnit   string           `yaml:"effort_unit"`   // label only
-	Log          LogFormat        `yaml:"log"`
-	Steps        StepRules        `yaml:"steps"`
-	Metrics      MetricRules      `yaml:"metrics"`
-	Limits       map[string]Limit `yaml:"limits"`
-	Model        *model.Config    `yaml:"model"`
-	Report       ReportInfo       `yaml:"report"`
+	SpecID       string                 `yaml:"spec_id"`
+	Revision     string                 `yaml:"revision"`
+	Title        string                 `yaml:"title"`
+	Signals      Signals                `yaml:"signals"`
+	TimeUnit     string                 `yaml:"time_unit"`     // s | ms | us
+	ResponseUnit string                 `yaml:"response_unit"` // label only
+	EffortUnit   string                 `yaml:"effort_unit"`   // label only
+	Log          LogFormat              `yaml:"log"`
+	Steps        StepRules              `yaml:"steps"`
+	Metrics      MetricRules            `yaml:"metrics"`
+	Limits       map[metrics.Name]Limit `yaml:"limits"`
+	Model        *model.Config          `yaml:"model"`
+	Report       ReportInfo             `yaml:"report"`
 
 	// Source is the file the spec was read from; SHA256 the hex digest of its
 	// bytes. Set by LoadSpec, not read from YAML.

@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"reflect"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -181,22 +182,20 @@ func (s *Spec) TimeScale() float64 {
 // LimitNames returns the limited metric names in metrics.Names order. Names
 // that are not metrics (possible only in a spec that was not validated)
 // follow, sorted.
-func (s *Spec) LimitNames() []string {
-	out := make([]string, 0, len(s.Limits))
-	known := map[string]bool{}
+func (s *Spec) LimitNames() []metrics.Name {
+	out := make([]metrics.Name, 0, len(s.Limits))
 	for _, n := range metrics.Names {
-		known[string(n)] = true
-		if _, ok := s.Limits[string(n)]; ok {
-			out = append(out, string(n))
+		if _, ok := s.Limits[n]; ok {
+			out = append(out, n)
 		}
 	}
-	var rest []string
+	var rest []metrics.Name
 	for k := range s.Limits {
-		if !known[k] {
+		if metrics.Index(k) < 0 {
 			rest = append(rest, k)
 		}
 	}
-	sort.Strings(rest)
+	slices.Sort(rest)
 	return append(out, rest...)
 }
 
@@ -282,9 +281,9 @@ func (s *Spec) Explain() string {
 }
 
 // describeLimit words one limit, e.g. "overshoot_pct ≤ 8 %".
-func (s *Spec) describeLimit(name string) string {
+func (s *Spec) describeLimit(name metrics.Name) string {
 	l := s.Limits[name]
-	u := specUnitSuffix(specMetricUnit(metrics.Name(name), s.ResponseUnit))
+	u := specUnitSuffix(name.Unit(s.ResponseUnit))
 	switch {
 	case l.Min != nil && l.Max != nil:
 		return fmt.Sprintf("%s ≤ %s ≤ %s%s", specFormatFloat(*l.Min), name, specFormatFloat(*l.Max), u)
@@ -293,7 +292,7 @@ func (s *Spec) describeLimit(name string) string {
 	case l.Min != nil:
 		return fmt.Sprintf("%s ≥ %s%s", name, specFormatFloat(*l.Min), u)
 	}
-	return name + ": no bound"
+	return string(name) + ": no bound"
 }
 
 // specExplainModel words the model section.
@@ -380,18 +379,6 @@ func specPoly(c []float64) string {
 		return "0"
 	}
 	return b.String()
-}
-
-// specMetricUnit is the unit of a metric's values.
-func specMetricUnit(n metrics.Name, responseUnit string) string {
-	s := string(n)
-	switch {
-	case strings.HasSuffix(s, "_s"):
-		return "s"
-	case strings.HasSuffix(s, "_pct"):
-		return "%"
-	}
-	return responseUnit
 }
 
 func specUnitSuffix(u string) string {
@@ -888,16 +875,6 @@ func (p *specParser) defaults() {
 	}
 }
 
-// specNonNegativeMetrics are metrics that cannot be below zero by
-// definition: durations from the step instant, overshoot (an excursion
-// beyond the final value, 0 when there is none) and the steady-state error
-// (|command − final value|). A negative bound on them is a mistake.
-var specNonNegativeMetrics = map[metrics.Name]bool{
-	metrics.DeadTime: true, metrics.RiseTime: true, metrics.PeakTime: true,
-	metrics.SettlingTime: true, metrics.Overshoot: true,
-	metrics.SteadyStateError: true, metrics.SteadyStateErrorPct: true,
-}
-
 // validate applies the value rules to the decoded spec.
 func (p *specParser) validate() {
 	s := p.spec
@@ -1016,11 +993,14 @@ func (p *specParser) openRange(path string, v, lo, hi float64, hiIncl bool) {
 }
 
 func specMetricList() string {
-	names := make([]string, len(metrics.Names))
+	var b strings.Builder
 	for i, n := range metrics.Names {
-		names[i] = string(n)
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString(string(n))
 	}
-	return strings.Join(names, ", ")
+	return b.String()
 }
 
 // validateLimits checks the limits section.
@@ -1033,21 +1013,18 @@ func (p *specParser) validateLimits() {
 		p.problem("limits", specKeyNode, "at least one limit is required, e.g. overshoot_pct: {max: 8}; metric names: %s", specMetricList())
 		return
 	}
-	known := map[string]bool{}
-	for _, n := range metrics.Names {
-		known[string(n)] = true
-	}
-	names := make([]string, 0, len(s.Limits))
+	names := make([]metrics.Name, 0, len(s.Limits))
 	for k := range s.Limits {
 		names = append(names, k)
 	}
-	sort.Strings(names)
+	slices.Sort(names)
 	for _, name := range names {
-		path := "limits." + name
+		path := "limits." + string(name)
 		if p.skipTree(path) {
 			continue
 		}
-		if !known[name] {
+		m, known := metrics.Lookup(name)
+		if !known {
 			p.problem(path, specKeyNode, "unknown metric; valid names: %s", specMetricList())
 			continue
 		}
@@ -1057,7 +1034,7 @@ func (p *specParser) validateLimits() {
 			continue
 		}
 		bad := false
-		if specNonNegativeMetrics[metrics.Name(name)] {
+		if m.NonNegative {
 			for _, b := range []struct {
 				key string
 				v   *float64

@@ -432,7 +432,7 @@ func TestLoadSpecFiles(t *testing.T) {
 		s.Model.Actuator == nil || s.Model.Actuator.EffortLimit != 100 {
 		t.Errorf("controller, loop or actuator wrong: %+v", s.Model)
 	}
-	if got, want := s.LimitNames(), []string{"rise_time_s", "overshoot_pct", "settling_time_s", "steady_state_error"}; !reflect.DeepEqual(got, want) {
+	if got, want := s.LimitNames(), []metrics.Name{"rise_time_s", "overshoot_pct", "settling_time_s", "steady_state_error"}; !reflect.DeepEqual(got, want) {
 		t.Errorf("LimitNames = %v, want %v (metrics.Names order)", got, want)
 	}
 	if l := s.Limits["overshoot_pct"]; l.Min != nil || l.Max == nil || *l.Max != 8 {
@@ -592,10 +592,10 @@ func TestTimeScale(t *testing.T) {
 // TestLimitNames checks that limits come in report order, metrics.Names.
 func TestLimitNames(t *testing.T) {
 	v := 1.0
-	s := &acceptance.Spec{Limits: map[string]acceptance.Limit{
+	s := &acceptance.Spec{Limits: map[metrics.Name]acceptance.Limit{
 		"steady_state_error_pct": {Max: &v}, "step_size": {Min: &v}, "overshoot_pct": {Max: &v}, "dead_time_s": {Max: &v},
 	}}
-	want := []string{"step_size", "dead_time_s", "overshoot_pct", "steady_state_error_pct"}
+	want := []metrics.Name{"step_size", "dead_time_s", "overshoot_pct", "steady_state_error_pct"}
 	for i := 0; i < 5; i++ { // map order must not leak
 		if got := s.LimitNames(); !reflect.DeepEqual(got, want) {
 			t.Fatalf("LimitNames = %v, want %v", got, want)
@@ -654,7 +654,7 @@ func TestExplain(t *testing.T) {
 		})
 	}
 	min := 0.001
-	s := &acceptance.Spec{SpecID: "X", Revision: "1", Limits: map[string]acceptance.Limit{"dead_time_s": {Min: &min}}}
+	s := &acceptance.Spec{SpecID: "X", Revision: "1", Limits: map[metrics.Name]acceptance.Limit{"dead_time_s": {Min: &min}}}
 	if out := s.Explain(); !strings.Contains(out, "  dead_time_s ≥ 0.001 s\n") || !strings.Contains(out, "Model: none") {
 		t.Errorf("min-only limit or no model not worded:\n%s", out)
 	}

@@ -36,7 +36,7 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 	// allocation per check.
 	r.Checks = make([]Check, 0, len(s.Limits))
 	values := make([]float64, len(s.Limits))
-	judge := func(name string) {
+	judge := func(name metrics.Name) {
 		c := s.judgeCheck(name, m, &values[len(r.Checks)])
 		r.Checks = append(r.Checks, c)
 		switch c.Verdict {
@@ -50,8 +50,8 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 	// metrics in report order, then any other name (which the spec loader
 	// refuses, but a spec built in code may hold) in sorted order.
 	for _, n := range metrics.Names {
-		if _, ok := s.Limits[string(n)]; ok {
-			judge(string(n))
+		if _, ok := s.Limits[n]; ok {
+			judge(n)
 		}
 	}
 	if len(r.Checks) < len(s.Limits) {
@@ -73,20 +73,20 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 
 // judgeCheck applies one limit to one step; a known value is stored in
 // *slot, which the check's Value then points to.
-func (s *Spec) judgeCheck(name string, m metrics.StepMetrics, slot *float64) Check {
+func (s *Spec) judgeCheck(name metrics.Name, m metrics.StepMetrics, slot *float64) Check {
 	lim := s.Limits[name]
 	// The bounds are the spec's own, shared by every check of the batch and
 	// never written through.
 	c := Check{Metric: name, Min: lim.Min, Max: lim.Max}
 	step := m.Step.Index
-	v, known := m.Get(metrics.Name(name))
+	v, known := m.Get(name)
 	if !known {
 		c.Verdict = Invalid
 		c.Reason = fmt.Sprintf("%s is not a metric stepgate measures (step %d)", name, step)
 		return c
 	}
 	if !v.OK {
-		if metrics.Name(name) == metrics.SettlingTime && lim.Max != nil && m.LastOutside.OK && m.LastOutside.V > *lim.Max {
+		if name == metrics.SettlingTime && lim.Max != nil && m.LastOutside.OK && m.LastOutside.V > *lim.Max {
 			c.Verdict = Fail
 			c.Reason = fmt.Sprintf("%s > %s at step %d: still outside the ±%s %% band %s s after the step",
 				name, specFormatFloat(*lim.Max), step, specPct(s.Options().Band), verdictNumber(m.LastOutside.V, *lim.Max))

@@ -165,13 +165,13 @@ func measureOne(t *testing.T, data []byte, minChange, band, window, lo, hi float
 // by hi (the settling time from above, so that the record's evidence rule
 // is exercised).
 func fuzzSpec(lo, hi float64) *acceptance.Spec {
-	s := &acceptance.Spec{Limits: map[string]acceptance.Limit{}}
+	s := &acceptance.Spec{Limits: map[metrics.Name]acceptance.Limit{}}
 	for i, n := range metrics.Names {
 		l, h := lo, hi
 		if i%2 == 0 && n != metrics.SettlingTime {
-			s.Limits[string(n)] = acceptance.Limit{Min: &l}
+			s.Limits[n] = acceptance.Limit{Min: &l}
 		} else {
-			s.Limits[string(n)] = acceptance.Limit{Max: &h}
+			s.Limits[n] = acceptance.Limit{Max: &h}
 		}
 	}
 	return s
@@ -275,7 +275,7 @@ func checkValue(t *testing.T, name string, v metrics.Value) {
 // checkVerdict checks the decision rule on one judged step.
 func checkVerdict(t *testing.T, spec *acceptance.Spec, m metrics.StepMetrics, r acceptance.StepResult) {
 	for _, name := range spec.LimitNames() {
-		v, _ := m.Get(metrics.Name(name))
+		v, _ := m.Get(name)
 		l := spec.Limits[name]
 		violated := v.OK && ((l.Min != nil && v.V < *l.Min) || (l.Max != nil && v.V > *l.Max))
 		if violated && r.Verdict != acceptance.Fail {

@@ -44,29 +44,12 @@ type StepMetrics struct {
 
 // Get returns the named metric; ok is false for an unknown name.
 func (m StepMetrics) Get(n Name) (v Value, ok bool) {
-	switch n {
-	case StepSize:
-		return m.StepSize, true
-	case InitialValue:
-		return m.InitialValue, true
-	case FinalValue:
-		return m.FinalValue, true
-	case DeadTime:
-		return m.DeadTime, true
-	case RiseTime:
-		return m.RiseTime, true
-	case PeakValue:
-		return m.PeakValue, true
-	case PeakTime:
-		return m.PeakTime, true
-	case Overshoot:
-		return m.Overshoot, true
-	case SettlingTime:
-		return m.SettlingTime, true
-	case SteadyStateError:
-		return m.SteadyStateError, true
-	case SteadyStateErrorPct:
-		return m.SteadyStateErrorPct, true
+	i, ok := index[n]
+	if !ok {
+		return Value{}, false
 	}
-	return Value{}, false
+	return *catalogue[i].field(&m), true
 }
+
+// At returns metric i of Names.
+func (m *StepMetrics) At(i int) Value { return *catalogue[i].field(m) }

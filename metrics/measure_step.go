@@ -247,10 +247,11 @@ func samples(n int) string {
 
 // setAll marks every metric but StepSize unknown with the same reason.
 func (m *StepMetrics) setAll(why string) {
-	u := Unknown(why)
-	m.InitialValue, m.FinalValue, m.DeadTime, m.RiseTime = u, u, u, u
-	m.PeakValue, m.PeakTime, m.Overshoot, m.SettlingTime = u, u, u, u
-	m.SteadyStateError, m.SteadyStateErrorPct = u, u
+	for _, c := range catalogue {
+		if c.Name != StepSize {
+			*c.field(m) = Unknown(why)
+		}
+	}
 }
 
 // scratch returns *buf grown to at least n elements.

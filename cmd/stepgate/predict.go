@@ -232,7 +232,7 @@ func printPrediction(w io.Writer, spec *acceptance.Spec, out predictOutput) {
 	fmt.Fprintf(w, "  step %g → %g, %.4g s after the step, sampled every %g s\n\n", out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS)
 	fmt.Fprintf(w, "%-24s %14s %14s\n", "metric", "ideal", "realised")
 	for _, n := range metrics.Names {
-		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.Metrics.Get(string(n))), fmtValue(out.Realised.Metrics.Get(string(n))))
+		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.Metrics.Get(n)), fmtValue(out.Realised.Metrics.Get(n)))
 	}
 	if !out.Step.Realisable {
 		fmt.Fprintln(w, "(the spec has no loop or actuator section: the realised loop equals the ideal one)")

@@ -269,7 +269,7 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 		longest = math.Max(longest, s.duration)
 	}
 	o.Window = longest
-	if l, ok := b.Limits[string(metrics.SettlingTime)]; ok && l.Max != nil && *l.Max > 0 {
+	if l, ok := b.Limits[metrics.SettlingTime]; ok && l.Max != nil && *l.Max > 0 {
 		w := windowOverSett * *l.Max
 		if longest == 0 || w < longest {
 			o.Window = w

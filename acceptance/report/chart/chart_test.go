@@ -157,7 +157,7 @@ func TestDownsampleKeepsPeak(t *testing.T) {
 // without, a settling-time limit and an ideal prediction.
 func overlayBatch() *acceptance.Batch {
 	b := &acceptance.Batch{
-		Limits: map[string]acceptance.Limit{string(metrics.SettlingTime): {Max: ptr(1.2)}},
+		Limits: map[metrics.Name]acceptance.Limit{metrics.SettlingTime: {Max: ptr(1.2)}},
 		Model: &acceptance.ModelSummary{Nominal: []acceptance.NominalPrediction{{
 			From: 0, To: 10, IdealTrace: secondOrder(0.6, 5, 0.002, 4, 0, 0, 10),
 		}}},
@@ -211,7 +211,7 @@ func TestForBatch(t *testing.T) {
 	}
 
 	// Without a settling limit the window is the longest step record.
-	delete(b.Limits, string(metrics.SettlingTime))
+	delete(b.Limits, metrics.SettlingTime)
 	if o := ForBatch(b); math.Abs(o.Window-4) > 1e-9 {
 		t.Errorf("window without a limit %v, want the 4 s prediction record", o.Window)
 	}
@@ -230,7 +230,7 @@ func TestForBatch(t *testing.T) {
 }
 
 func TestThin(t *testing.T) {
-	b := &acceptance.Batch{Limits: map[string]acceptance.Limit{}}
+	b := &acceptance.Batch{Limits: map[metrics.Name]acceptance.Limit{}}
 	tr := secondOrder(0.7, 5, 0.05, 2, 0.5, 0, 1)
 	for i := 0; i < MaxCurves+100; i++ {
 		v := acceptance.Pass

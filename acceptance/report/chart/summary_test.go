@@ -99,16 +99,16 @@ func unitBatch(steps int) *acceptance.Batch {
 	u := acceptance.UnitResult{Unit: "SN-1", Verdict: acceptance.Fail, Trace: tr}
 	for k := 0; k < steps; k++ {
 		s := acceptance.StepResult{Index: k + 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Fail,
-			Metrics: acceptance.MetricsOf(map[string]metrics.Value{"final_value": metrics.Known(10.1)})}
+			Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"final_value": metrics.Known(10.1)})}
 		if k%2 == 1 {
 			s.StartS, s.From, s.To = 3.002, 10, 0
-			s.Metrics = acceptance.MetricsOf(map[string]metrics.Value{})
+			s.Metrics = acceptance.MetricsOf(map[metrics.Name]metrics.Value{})
 		}
 		u.Steps = append(u.Steps, s)
 	}
 	return &acceptance.Batch{
 		Units:   []acceptance.UnitResult{u},
-		Limits:  map[string]acceptance.Limit{"rise_time_s": {Max: ptr(0.6)}, "settling_time_s": {Max: ptr(1.6)}, "overshoot_pct": {Max: ptr(20)}},
+		Limits:  map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: ptr(0.6)}, "settling_time_s": {Max: ptr(1.6)}, "overshoot_pct": {Max: ptr(20)}},
 		SpecDoc: &acceptance.Spec{ResponseUnit: "mm"},
 		Model: &acceptance.ModelSummary{Nominal: []acceptance.NominalPrediction{{
 			From: 0, To: 10, IdealTrace: secondOrder(0.6, 5, 0.002, 3, 0.1, 0, 10)}}},

@@ -70,8 +70,8 @@ type Panel struct {
 // Mark is a vertical line at an instant on the record's clock.
 type Mark struct {
 	At    float64
-	Label string // e.g. "rise-time max 0.16 s"
-	kind  string // metric name
+	Label string       // e.g. "rise-time max 0.16 s"
+	kind  metrics.Name // metric name
 }
 
 // ForUnitSteps lays out the steps of unit number i of the batch (an index
@@ -129,7 +129,7 @@ func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, sta
 	p := Panel{Step: s.Index, Verdict: s.Verdict, Start: tr.Time[start], From: s.From, To: s.To}
 	recEnd := tr.Time[end-1]
 	window := recEnd - p.Start
-	if l, ok := b.Limits[string(metrics.SettlingTime)]; ok && l.Max != nil && *l.Max > 0 {
+	if l, ok := b.Limits[metrics.SettlingTime]; ok && l.Max != nil && *l.Max > 0 {
 		window = math.Min(window, windowOverSett**l.Max)
 	}
 	if window <= 0 {
@@ -148,14 +148,14 @@ func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, sta
 		p.CmdT, p.Command = p.T, append([]float64(nil), tr.Command[first:stop]...)
 	}
 	centre := s.To
-	if v, ok := s.Metrics.Lookup(string(metrics.FinalValue)); ok && v.OK {
+	if v, ok := s.Metrics.Lookup(metrics.FinalValue); ok && v.OK {
 		centre = v.V
 	}
 	half := band * math.Abs(s.To-s.From)
 	p.BandLo, p.BandHi = centre-half, centre+half
 	p.PredT, p.PredY = shiftedPrediction(b, s, t0, p.Start, p.End)
 	for _, name := range digest.LimitedMetrics(b) {
-		if !strings.HasSuffix(name, "_s") || name == "start_s" {
+		if m, ok := metrics.Lookup(name); !ok || m.Unit != metrics.Seconds {
 			continue
 		}
 		l := b.Limits[name]
@@ -329,9 +329,9 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 		}
 		l.Width = vg.Points(0.9)
 		switch m.kind {
-		case string(metrics.RiseTime):
+		case metrics.RiseTime:
 			l.Color, l.Dashes = colourRiseMark, []vg.Length{vg.Points(3), vg.Points(2)}
-		case string(metrics.SettlingTime):
+		case metrics.SettlingTime:
 			l.Color, l.Dashes = colourSettMark, []vg.Length{vg.Points(5), vg.Points(2), vg.Points(1), vg.Points(2)}
 		default:
 			l.Color, l.Dashes = colourMark, []vg.Length{vg.Points(1), vg.Points(2)}

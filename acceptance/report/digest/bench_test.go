@@ -22,9 +22,9 @@ func scaleBatch(n int) *acceptance.Batch {
 		}
 		var steps []acceptance.StepResult
 		for k := 1; k <= 2; k++ {
-			s := step(k, limits, map[string]float64{"overshoot_pct": os, "steady_state_error": 0.01 * float64(i%3),
+			s := step(k, limits, map[metrics.Name]float64{"overshoot_pct": os, "steady_state_error": 0.01 * float64(i%3),
 				"rise_time_s": 0.1, "settling_time_s": 0.4, "dead_time_s": 0.01})
-			s.Predicted = &acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(map[string]metrics.Value{
+			s.Predicted = &acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{
 				"overshoot_pct": metrics.Known(6), "steady_state_error": metrics.Known(0.01)})}
 			s.Evidence = &acceptance.StepEvidence{EffortSaturatedPct: metrics.Known(float64(i % 40)),
 				EffortLimit: metrics.Known(100), FinalDrift: metrics.Known(0.0005)}

@@ -12,7 +12,7 @@ import (
 // beside what the batch achieved on the matching recorded steps.
 type Comparison struct {
 	From, To  float64 // the nominal step
-	Metric    string
+	Metric    metrics.Name
 	Kind      string        // "realised" or "ideal"
 	Predicted metrics.Value // unknown with the reason when not predicted
 	// Measured counts the matching steps on which the metric was measured;

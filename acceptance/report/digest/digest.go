@@ -5,7 +5,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strings"
 	"time"
 	"unicode"
@@ -35,7 +35,7 @@ type Digest struct {
 	// Band is the settling band half-width, a fraction of the step size.
 	Band float64
 	// Limited lists the limited metrics in report order (LimitedMetrics).
-	Limited []string
+	Limited []metrics.Name
 	// Stats holds one entry per limited metric, in Limited order.
 	Stats []MetricStats
 	// Causes is the failure-reason Pareto, most frequent first.
@@ -53,7 +53,7 @@ type Digest struct {
 	// computed gain and verify it on the machine with the guards in place.
 	Advice string
 
-	all map[string]*MetricStats // statistics of every metric, limited or not
+	all map[metrics.Name]*MetricStats // statistics of every metric, limited or not
 }
 
 // New digests the batch. It fails only when the batch is nil or its report
@@ -99,7 +99,7 @@ func New(b *acceptance.Batch) (*Digest, error) {
 // Metric returns the statistics of any metric over the batch's measured
 // steps, limited or not, and false for a name the batch never measured or
 // limited.
-func (d *Digest) Metric(name string) (MetricStats, bool) {
+func (d *Digest) Metric(name metrics.Name) (MetricStats, bool) {
 	s, ok := d.all[name]
 	if !ok {
 		return MetricStats{}, false
@@ -160,72 +160,33 @@ func ReportTime(b *acceptance.Batch) (time.Time, error) {
 // LimitedMetrics returns the metrics the batch's limits bound, in the
 // report order of metrics.Names, followed by any other limited name in
 // alphabetical order.
-func LimitedMetrics(b *acceptance.Batch) []string {
-	var out []string
-	seen := map[string]bool{}
+func LimitedMetrics(b *acceptance.Batch) []metrics.Name {
+	var out []metrics.Name
 	for _, n := range metrics.Names {
-		if _, ok := b.Limits[string(n)]; ok {
-			out = append(out, string(n))
-			seen[string(n)] = true
+		if _, ok := b.Limits[n]; ok {
+			out = append(out, n)
 		}
 	}
-	var rest []string
+	var rest []metrics.Name
 	for k := range b.Limits {
-		if !seen[k] {
+		if metrics.Index(k) < 0 {
 			rest = append(rest, k)
 		}
 	}
-	sort.Strings(rest)
+	slices.Sort(rest)
 	return append(out, rest...)
 }
 
 // MetricUnit returns the unit a metric is expressed in: seconds for times,
 // percent for the percentages, and the spec's response unit for levels and
-// errors (empty when the spec names none).
-func MetricUnit(name, responseUnit string) string {
-	switch {
-	case strings.HasSuffix(name, "_s"):
-		return "s"
-	case strings.HasSuffix(name, "_pct"):
-		return "%"
-	}
-	switch metrics.Name(name) {
-	case metrics.StepSize, metrics.InitialValue, metrics.FinalValue, metrics.PeakValue, metrics.SteadyStateError:
-		return responseUnit
-	}
-	return ""
+// errors (empty when the spec names none). It reads the metrics catalogue.
+func MetricUnit(name metrics.Name, responseUnit string) string {
+	return name.Unit(responseUnit)
 }
 
 // MetricLabel returns the readable name of a metric, e.g. "rise time" for
-// rise_time_s; a name stepgate does not measure is returned with its
-// underscores as spaces.
-func MetricLabel(m string) string {
-	switch metrics.Name(m) {
-	case metrics.StepSize:
-		return "step size"
-	case metrics.InitialValue:
-		return "initial value"
-	case metrics.FinalValue:
-		return "final value"
-	case metrics.DeadTime:
-		return "dead time"
-	case metrics.RiseTime:
-		return "rise time"
-	case metrics.PeakValue:
-		return "peak value"
-	case metrics.PeakTime:
-		return "peak time"
-	case metrics.Overshoot:
-		return "overshoot"
-	case metrics.SettlingTime:
-		return "settling time"
-	case metrics.SteadyStateError:
-		return "steady-state error"
-	case metrics.SteadyStateErrorPct:
-		return "steady-state error (rel.)"
-	}
-	return strings.ReplaceAll(m, "_", " ")
-}
+// rise_time_s, from the metrics catalogue.
+func MetricLabel(m metrics.Name) string { return m.Label() }
 
 // ResponseUnit returns the spec's response unit, or "" without a spec.
 func ResponseUnit(b *acceptance.Batch) string {

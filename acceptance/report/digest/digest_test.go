@@ -14,17 +14,17 @@ import (
 // 5th ed., §5-3), and a model predicting ζ = 0.6, 9.48 % (Ogata Example
 // 5-1, from memory).
 func compareBatch() *acceptance.Batch {
-	limits := map[string]acceptance.Limit{"overshoot_pct": {Max: ptr(15)}}
+	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: ptr(15)}}
 	os := func(z float64) float64 { return 100 * math.Exp(-math.Pi*z/math.Sqrt(1-z*z)) }
 	var units []acceptance.UnitResult
 	for i, z := range []float64{0.6, 0.25, 0.7} {
-		up := step(1, limits, map[string]float64{"overshoot_pct": os(z)})
-		down := step(2, limits, map[string]float64{"overshoot_pct": os(z)})
+		up := step(1, limits, map[metrics.Name]float64{"overshoot_pct": os(z)})
+		down := step(2, limits, map[metrics.Name]float64{"overshoot_pct": os(z)})
 		down.From, down.To = 10, 0
 		units = append(units, unit(string(rune('A'+i)), up, down))
 	}
 	b := batch(limits, units...)
-	pred := acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(os(0.6))})}
+	pred := acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(os(0.6))})}
 	b.Model = &acceptance.ModelSummary{Config: plantModel(25, 6, 1), Nominal: []acceptance.NominalPrediction{{From: 0, To: 10, Ideal: pred, Realised: pred}}}
 	return b
 }
@@ -140,7 +140,10 @@ func TestFormatting(t *testing.T) {
 	if got := Percent(0.725); got != "72.5 %" {
 		t.Errorf("Percent = %q", got)
 	}
-	for _, tc := range []struct{ name, want string }{
+	for _, tc := range []struct {
+		name metrics.Name
+		want string
+	}{
 		{"overshoot_pct", "%"}, {"rise_time_s", "s"}, {"final_value", "mm"}, {"steady_state_error", "mm"},
 		{"steady_state_error_pct", "%"}, {"zz_custom", ""},
 	} {

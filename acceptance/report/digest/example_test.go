@@ -10,7 +10,7 @@ import (
 
 func ExampleNew() {
 	max := 10.0
-	limits := map[string]acceptance.Limit{"overshoot_pct": {Max: &max}}
+	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &max}}
 	b := &acceptance.Batch{
 		Spec:       acceptance.SpecInfo{SpecID: "DEMO", Revision: "A"},
 		Limits:     limits,
@@ -26,7 +26,7 @@ func ExampleNew() {
 		b.Units = append(b.Units, acceptance.UnitResult{
 			Unit: fmt.Sprintf("SN-%d", i+1), Verdict: verdict,
 			Steps: []acceptance.StepResult{{Index: 1, From: 0, To: 10, Verdict: verdict,
-				Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(v)}),
+				Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(v)}),
 				Checks:  []acceptance.Check{check}}},
 		})
 	}

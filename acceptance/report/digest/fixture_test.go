@@ -12,14 +12,14 @@ func ptr(v float64) *float64 { return &v }
 
 // step is a judged step 0 → 10 with the given metrics; the checks follow
 // the limits the way acceptance.Spec.JudgeStep reports them.
-func step(index int, limits map[string]acceptance.Limit, m map[string]float64, unmeasured ...string) acceptance.StepResult {
+func step(index int, limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]float64, unmeasured ...metrics.Name) acceptance.StepResult {
 	s := acceptance.StepResult{Index: index, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Pass,
 		Metrics: acceptance.MetricsOf(nil)}
 	for k, v := range m {
-		s.Metrics.Set(metrics.Name(k), metrics.Known(v))
+		s.Metrics.Set(k, metrics.Known(v))
 	}
 	for _, k := range unmeasured {
-		s.Metrics.Set(metrics.Name(k), metrics.Unknown("the record ends before the response stays in the band"))
+		s.Metrics.Set(k, metrics.Unknown("the record ends before the response stays in the band"))
 	}
 	for _, name := range LimitedMetrics(&acceptance.Batch{Limits: limits}) {
 		l := limits[name]
@@ -27,11 +27,11 @@ func step(index int, limits map[string]acceptance.Limit, m map[string]float64, u
 		v, ok := s.Metrics.Lookup(name)
 		switch {
 		case !ok || !v.OK:
-			c.Verdict, c.Reason = acceptance.Invalid, name+" not measured at step"
+			c.Verdict, c.Reason = acceptance.Invalid, string(name)+" not measured at step"
 		case l.Max != nil && v.V > *l.Max:
-			c.Value, c.Verdict, c.Reason = ptr(v.V), acceptance.Fail, name+" > max at step"
+			c.Value, c.Verdict, c.Reason = ptr(v.V), acceptance.Fail, string(name)+" > max at step"
 		case l.Min != nil && v.V < *l.Min:
-			c.Value, c.Verdict, c.Reason = ptr(v.V), acceptance.Fail, name+" < min at step"
+			c.Value, c.Verdict, c.Reason = ptr(v.V), acceptance.Fail, string(name)+" < min at step"
 		default:
 			c.Value = ptr(v.V)
 		}
@@ -69,7 +69,7 @@ func unit(id string, steps ...acceptance.StepResult) acceptance.UnitResult {
 }
 
 // batch collects units under limits and counts their verdicts.
-func batch(limits map[string]acceptance.Limit, units ...acceptance.UnitResult) *acceptance.Batch {
+func batch(limits map[metrics.Name]acceptance.Limit, units ...acceptance.UnitResult) *acceptance.Batch {
 	b := &acceptance.Batch{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
 		Spec:       acceptance.SpecInfo{SpecID: "ACT-25", Revision: "C", SHA256: "ab"},

@@ -10,10 +10,10 @@ import (
 // Definition states how one metric (or a group measured together) is
 // measured, and the reference it follows.
 type Definition struct {
-	Metrics    []string // spec keys covered
-	Label      string   // e.g. "rise time"
-	Definition string   // as stepgate measures it, with the spec's levels
-	Reference  string   // the published definition it follows
+	Metrics    []metrics.Name // spec keys covered
+	Label      string         // e.g. "rise time"
+	Definition string         // as stepgate measures it, with the spec's levels
+	Reference  string         // the published definition it follows
 }
 
 // Levels are the measurement levels a batch was measured with, in percent.
@@ -46,22 +46,22 @@ func MeasuredLevels(b *acceptance.Batch) Levels {
 func Definitions(b *acceptance.Batch) []Definition {
 	l := MeasuredLevels(b)
 	return []Definition{
-		{[]string{string(metrics.InitialValue), string(metrics.FinalValue), string(metrics.StepSize)}, "initial and final value, step size",
+		{[]metrics.Name{metrics.InitialValue, metrics.FinalValue, metrics.StepSize}, "initial and final value, step size",
 			fmt.Sprintf("State levels: robust mean of a stable window before the step and of the last %s %% of the step's record (outliers beyond median ± 3·1.4826·MAD rejected). Step size = commanded to − from.", Num(l.FinalWindow)),
 			"IEEE Std 181-2011 (state levels)"},
-		{[]string{string(metrics.DeadTime)}, "dead time",
+		{[]metrics.Name{metrics.DeadTime}, "dead time",
 			fmt.Sprintf("From the step instant until the response has moved %s %% of the transition.", Num(l.DeadTime)),
 			"ANSI/ISA-51.1-1979 (R1993)"},
-		{[]string{string(metrics.RiseTime)}, "rise time",
+		{[]metrics.Name{metrics.RiseTime}, "rise time",
 			fmt.Sprintf("Between the first crossings of the %s %% and %s %% levels of the transition, interpolated linearly between samples.", Num(l.RiseLow), Num(l.RiseHigh)),
 			"IEEE Std 181-2011 (transition duration); ANSI/ISA-51.1"},
-		{[]string{string(metrics.PeakValue), string(metrics.PeakTime), string(metrics.Overshoot)}, "peak, overshoot",
+		{[]metrics.Name{metrics.PeakValue, metrics.PeakTime, metrics.Overshoot}, "peak, overshoot",
 			"Extreme sample in the step's direction and its time from the step instant; overshoot is its excursion beyond the final value, % of |final − initial|, 0 when none.",
 			"IEEE Std 181-2011; ANSI/ISA-51.1"},
-		{[]string{string(metrics.SettlingTime)}, "settling time",
+		{[]metrics.Name{metrics.SettlingTime}, "settling time",
 			fmt.Sprintf("From the step instant to the last exit from the ±%s %% band (of |step size|) around the final value, interpolated. IEEE Std 181-2011 measures settling from the 50 %% instant instead.", Num(l.Band)),
 			"ANSI/ISA-51.1; K. Ogata, Modern Control Engineering, 5th ed., §5-3"},
-		{[]string{string(metrics.SteadyStateError), string(metrics.SteadyStateErrorPct)}, "steady-state error",
+		{[]metrics.Name{metrics.SteadyStateError, metrics.SteadyStateErrorPct}, "steady-state error",
 			"|command − final value|, in response units and in % of |step size|.",
 			"definition from the levels above"},
 	}

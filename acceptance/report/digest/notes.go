@@ -77,7 +77,7 @@ func notes(d *Digest) []Note {
 // delayNote: overshoot above the prediction together with an identified
 // dead time above the model's.
 func delayNote(d *Digest) (Note, bool) {
-	os, ok := d.all[string(metrics.Overshoot)]
+	os, ok := d.all[metrics.Overshoot]
 	if !ok || !os.Gap.OK || os.Gap.V <= OvershootExcessPts || d.Loop == nil {
 		return Note{}, false
 	}
@@ -118,11 +118,11 @@ func frictionNote(d *Digest) (Note, bool) {
 		hit := false
 		for k := range u.Steps {
 			s := &u.Steps[k]
-			e := s.Metrics.Get(string(metrics.SteadyStateError))
+			e := s.Metrics.Get(metrics.SteadyStateError)
 			if !e.OK || s.Predicted == nil || s.Evidence == nil {
 				continue
 			}
-			p := s.Predicted.Metrics.Get(string(metrics.SteadyStateError))
+			p := s.Predicted.Metrics.Get(metrics.SteadyStateError)
 			fd := s.Evidence.FinalDrift
 			band := d.Band * math.Abs(s.To-s.From)
 			if !p.OK || !fd.OK || band == 0 {

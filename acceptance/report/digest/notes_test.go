@@ -15,11 +15,11 @@ import (
 // model's dead time is the plant's 4 ms plus the loop delay of 2 ms and
 // half the 1 ms sample period: 6.5 ms.
 func notesBatch() *acceptance.Batch {
-	limits := map[string]acceptance.Limit{"overshoot_pct": {Max: ptr(20)}, "steady_state_error": {Max: ptr(1)}}
+	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: ptr(20)}, "steady_state_error": {Max: ptr(1)}}
 	var units []acceptance.UnitResult
 	for i, wn := range []float64{12, 12.1, 11.9, 12} {
-		s := step(1, limits, map[string]float64{"overshoot_pct": 5, "steady_state_error": 0.01})
-		s.Predicted = &acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(map[string]metrics.Value{
+		s := step(1, limits, map[metrics.Name]float64{"overshoot_pct": 5, "steady_state_error": 0.01})
+		s.Predicted = &acceptance.Prediction{Kind: "realised", Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{
 			"overshoot_pct": metrics.Known(5), "steady_state_error": metrics.Known(0.01)})}
 		s.Evidence = &acceptance.StepEvidence{
 			EffortSaturatedPct: metrics.Known(10), EffortLimit: metrics.Known(100), FinalDrift: metrics.Known(0.0005)}
@@ -54,7 +54,7 @@ func TestNotes(t *testing.T) {
 	overshoot := func(v float64) func(*acceptance.Batch) {
 		return func(b *acceptance.Batch) {
 			each(b, func(_ *acceptance.UnitResult, s *acceptance.StepResult) {
-				s.Metrics.Set(metrics.Name("overshoot_pct"), metrics.Known(v))
+				s.Metrics.Set(metrics.Overshoot, metrics.Known(v))
 			})
 		}
 	}
@@ -68,7 +68,7 @@ func TestNotes(t *testing.T) {
 	offset := func(sse, drift float64) func(*acceptance.Batch) {
 		return func(b *acceptance.Batch) {
 			s := &b.Units[1].Steps[0]
-			s.Metrics.Set(metrics.Name("steady_state_error"), metrics.Known(sse))
+			s.Metrics.Set(metrics.SteadyStateError, metrics.Known(sse))
 			s.Evidence.FinalDrift = metrics.Known(drift)
 		}
 	}

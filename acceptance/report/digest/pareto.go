@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"github.com/stepgate/stepgate/metrics"
 	"sort"
 	"strings"
 
@@ -18,7 +19,7 @@ type Cause struct {
 	// of a unit-level reason such as "log cannot be read".
 	Key string
 	// Metric is the metric concerned, "" for a unit-level reason.
-	Metric string
+	Metric metrics.Name
 	// Label reads as a reason, e.g. "overshoot above its max".
 	Label string
 	// Units counts the units showing the reason.
@@ -73,10 +74,10 @@ func Pareto(b *acceptance.Batch) []Cause {
 					if side == "min" {
 						word = "below its min"
 					}
-					add(Cause{Verdict: acceptance.Fail, Key: "fail " + side + " " + c.Metric, Metric: c.Metric,
+					add(Cause{Verdict: acceptance.Fail, Key: "fail " + side + " " + string(c.Metric), Metric: c.Metric,
 						Label: MetricLabel(c.Metric) + " " + word})
 				case acceptance.Invalid:
-					add(Cause{Verdict: acceptance.Invalid, Key: "not measured " + c.Metric, Metric: c.Metric,
+					add(Cause{Verdict: acceptance.Invalid, Key: "not measured " + string(c.Metric), Metric: c.Metric,
 						Label: MetricLabel(c.Metric) + " not measured"})
 				}
 			}

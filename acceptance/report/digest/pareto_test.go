@@ -2,6 +2,7 @@ package digest
 
 import (
 	"fmt"
+	"github.com/stepgate/stepgate/metrics"
 	"strings"
 	"testing"
 
@@ -11,21 +12,21 @@ import (
 // TestPareto counts the reasons of the units that did not pass. The
 // expected counts follow from the units below by hand.
 func TestPareto(t *testing.T) {
-	limits := map[string]acceptance.Limit{
+	limits := map[metrics.Name]acceptance.Limit{
 		"overshoot_pct":   {Max: ptr(10)},
 		"rise_time_s":     {Min: ptr(0.1), Max: ptr(0.5)},
 		"settling_time_s": {Max: ptr(1)},
 	}
-	good := map[string]float64{"overshoot_pct": 5, "rise_time_s": 0.2, "settling_time_s": 0.5}
-	with := func(k string, v float64) map[string]float64 {
-		m := map[string]float64{}
+	good := map[metrics.Name]float64{"overshoot_pct": 5, "rise_time_s": 0.2, "settling_time_s": 0.5}
+	with := func(k metrics.Name, v float64) map[metrics.Name]float64 {
+		m := map[metrics.Name]float64{}
 		for a, b := range good {
 			m[a] = b
 		}
 		m[k] = v
 		return m
 	}
-	without := func(k string) map[string]float64 {
+	without := func(k metrics.Name) map[metrics.Name]float64 {
 		m := with(k, 0)
 		delete(m, k)
 		return m

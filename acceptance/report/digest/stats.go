@@ -23,9 +23,9 @@ const (
 
 // MetricStats describes one metric over the batch's measured steps.
 type MetricStats struct {
-	Metric string // spec key, e.g. "overshoot_pct"
-	Label  string // readable name, e.g. "overshoot"
-	Unit   string // "s", "%", the response unit or ""
+	Metric metrics.Name // spec key, e.g. "overshoot_pct"
+	Label  string       // readable name, e.g. "overshoot"
+	Unit   string       // "s", "%", the response unit or ""
 	// Min and Max are the spec's limits; nil where a side is unbounded or
 	// the metric is not limited.
 	Min, Max *float64
@@ -163,19 +163,19 @@ type accum struct {
 
 // statistics computes MetricStats for every metric of metrics.Names and
 // every limited name, in two passes over the batch.
-func statistics(b *acceptance.Batch, limited []string, unit string) map[string]*MetricStats {
-	names := make([]string, 0, len(metrics.Names)+len(limited))
-	seen := map[string]bool{}
+func statistics(b *acceptance.Batch, limited []metrics.Name, unit string) map[metrics.Name]*MetricStats {
+	names := make([]metrics.Name, 0, len(metrics.Names)+len(limited))
+	seen := map[metrics.Name]bool{}
 	for _, n := range metrics.Names {
-		names = append(names, string(n))
-		seen[string(n)] = true
+		names = append(names, n)
+		seen[n] = true
 	}
 	for _, n := range limited {
 		if !seen[n] {
 			names = append(names, n)
 		}
 	}
-	acc := make(map[string]*accum, len(names))
+	acc := make(map[metrics.Name]*accum, len(names))
 	for _, n := range names {
 		acc[n] = &accum{lo: math.Inf(1), hi: math.Inf(-1)}
 	}
@@ -230,7 +230,7 @@ func statistics(b *acceptance.Batch, limited []string, unit string) map[string]*
 			}
 		}
 	}
-	out := make(map[string]*MetricStats, len(names))
+	out := make(map[metrics.Name]*MetricStats, len(names))
 	for _, n := range names {
 		a := acc[n]
 		if _, lim := b.Limits[n]; a.steps == 0 && !lim {
@@ -325,7 +325,7 @@ func (a *accum) bin(v float64) int {
 	return j
 }
 
-func (a *accum) result(name string, limits map[string]acceptance.Limit, unit string) *MetricStats {
+func (a *accum) result(name metrics.Name, limits map[metrics.Name]acceptance.Limit, unit string) *MetricStats {
 	lim, limited := limits[name]
 	s := &MetricStats{
 		Metric: name, Label: MetricLabel(name), Unit: MetricUnit(name, unit),

@@ -69,19 +69,19 @@ func TestCapable(t *testing.T) {
 // sample standard deviation (n − 1) is √(32/7) = 2.1381 (definition of the
 // sample standard deviation; hand-worked).
 func TestStatistics(t *testing.T) {
-	limits := map[string]acceptance.Limit{
-		string(metrics.Overshoot):    {Max: ptr(10)},
-		string(metrics.RiseTime):     {Min: ptr(0.5), Max: ptr(2)},
-		string(metrics.SettlingTime): {Max: ptr(3)},
+	limits := map[metrics.Name]acceptance.Limit{
+		metrics.Overshoot:    {Max: ptr(10)},
+		metrics.RiseTime:     {Min: ptr(0.5), Max: ptr(2)},
+		metrics.SettlingTime: {Max: ptr(3)},
 	}
 	var units []acceptance.UnitResult
 	for i, v := range []float64{2, 4, 4, 4, 5, 5, 7, 9} {
-		s := step(1, limits, map[string]float64{"overshoot_pct": v, "rise_time_s": 1, "settling_time_s": 1 + float64(i)/10})
-		s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(4)})}
+		s := step(1, limits, map[metrics.Name]float64{"overshoot_pct": v, "rise_time_s": 1, "settling_time_s": 1 + float64(i)/10})
+		s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(4)})}
 		units = append(units, unit(string(rune('A'+i)), s))
 	}
 	// A step whose settling time was not measured counts in Steps, not N.
-	units = append(units, unit("Z", step(1, limits, map[string]float64{"overshoot_pct": 5, "rise_time_s": 1}, "settling_time_s")))
+	units = append(units, unit("Z", step(1, limits, map[metrics.Name]float64{"overshoot_pct": 5, "rise_time_s": 1}, "settling_time_s")))
 	d, err := New(batch(limits, units...))
 	if err != nil {
 		t.Fatal(err)
@@ -142,8 +142,8 @@ func TestStatistics(t *testing.T) {
 // TestStatisticsUnknown: one measured step has no standard deviation, and
 // a metric measured nowhere has unknown statistics, not zeros.
 func TestStatisticsUnknown(t *testing.T) {
-	limits := map[string]acceptance.Limit{"overshoot_pct": {Max: ptr(10)}, "settling_time_s": {Max: ptr(1)}}
-	d, err := New(batch(limits, unit("A", step(1, limits, map[string]float64{"overshoot_pct": 3}, "settling_time_s"))))
+	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: ptr(10)}, "settling_time_s": {Max: ptr(1)}}
+	d, err := New(batch(limits, unit("A", step(1, limits, map[metrics.Name]float64{"overshoot_pct": 3}, "settling_time_s"))))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -187,7 +187,7 @@ func TestBins(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			limits := map[string]acceptance.Limit{"overshoot_pct": tc.lim}
+			limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": tc.lim}
 			values := tc.values
 			if values == nil {
 				for v := 0; v <= 10; v++ {
@@ -196,7 +196,7 @@ func TestBins(t *testing.T) {
 			}
 			var units []acceptance.UnitResult
 			for i, v := range values {
-				units = append(units, unit(string(rune('A'+i)), step(1, limits, map[string]float64{"overshoot_pct": v})))
+				units = append(units, unit(string(rune('A'+i)), step(1, limits, map[metrics.Name]float64{"overshoot_pct": v})))
 			}
 			d, err := New(batch(limits, units...))
 			if err != nil {

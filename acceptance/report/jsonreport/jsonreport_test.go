@@ -17,7 +17,7 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 	step := acceptance.StepResult{
 		Index: 1, From: 0, To: 25, Verdict: acceptance.Fail,
 		Reasons: []string{"overshoot_pct 9.1 > 8 at step 1"},
-		Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(9.1), "settling_time_s": metrics.Unknown("record ends")}),
+		Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(9.1), "settling_time_s": metrics.Unknown("record ends")}),
 		Checks:  []acceptance.Check{{Metric: "overshoot_pct", Max: &limit, Verdict: acceptance.Fail}},
 	}
 	unit := func(id string) acceptance.UnitResult {
@@ -28,12 +28,12 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 		name string
 		b    acceptance.Batch
 	}{
-		{"no units", acceptance.Batch{Units: []acceptance.UnitResult{}, Limits: map[string]acceptance.Limit{}}},
+		{"no units", acceptance.Batch{Units: []acceptance.UnitResult{}, Limits: map[metrics.Name]acceptance.Limit{}}},
 		{"nil units", acceptance.Batch{}},
 		{"one unit", acceptance.Batch{Units: []acceptance.UnitResult{unit("A1")}, ReportDate: "2026-12-01"}},
 		{"three units and a model", acceptance.Batch{
 			Tool: acceptance.ToolInfo{Name: "stepgate", Version: "t"}, Units: []acceptance.UnitResult{unit("A1"), unit("A2"), unit("=1+1")},
-			Model: &acceptance.ModelSummary{Plant: "1 / s", Warnings: []string{"w"}}, Limits: map[string]acceptance.Limit{"overshoot_pct": {Max: &limit}},
+			Model: &acceptance.ModelSummary{Plant: "1 / s", Warnings: []string{"w"}}, Limits: map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &limit}},
 		}},
 	}
 	for _, c := range cases {

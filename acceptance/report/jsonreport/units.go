@@ -41,7 +41,7 @@ type unitEncoder struct {
 var metricKeys = func() []metricKey {
 	ks := make([]metricKey, len(metrics.Names))
 	for i, n := range metrics.Names {
-		ks[i] = metricKey{name: string(n), member: string(appendString(nil, string(n))) + ": ", index: i}
+		ks[i] = metricKey{name: n, member: string(appendString(nil, string(n))) + ": ", index: i}
 	}
 	slices.SortFunc(ks, func(a, b metricKey) int {
 		switch {
@@ -57,7 +57,7 @@ var metricKeys = func() []metricKey {
 
 // metricKey is one metric name and its member prefix, `"name": `.
 type metricKey struct {
-	name   string
+	name   metrics.Name
 	member string
 	index  int // position in metrics.Names
 }
@@ -140,7 +140,7 @@ func (e *unitEncoder) step(d int, s *acceptance.StepResult) {
 func (e *unitEncoder) check(d int, c *acceptance.Check) {
 	m := d + 1
 	e.open(m, `"metric": `)
-	e.str(c.Metric)
+	e.str(string(c.Metric))
 	e.member(m, `"value": `)
 	e.floatPtr(c.Value)
 	e.member(m, `"min": `)

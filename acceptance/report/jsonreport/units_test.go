@@ -184,13 +184,13 @@ func floatPtr(v float64) *float64 { return &v }
 // metricsWith returns a set with every metric measured, the i-th from vals
 // (cycled), except the metrics named in unknown, which get those reasons.
 func metricsWith(vals []float64, unknown map[metrics.Name]metrics.Value) acceptance.MetricSet {
-	m := map[string]metrics.Value{}
+	m := map[metrics.Name]metrics.Value{}
 	for i, n := range metrics.Names {
 		if v, ok := unknown[n]; ok {
-			m[string(n)] = v
+			m[n] = v
 			continue
 		}
-		m[string(n)] = metrics.Known(vals[i%len(vals)])
+		m[n] = metrics.Known(vals[i%len(vals)])
 	}
 	return acceptance.MetricsOf(m)
 }
@@ -215,12 +215,12 @@ func fixtureUnits() []acceptance.UnitResult {
 		Checks: []acceptance.Check{
 			{Metric: "overshoot_pct", Value: floatPtr(9.1), Min: floatPtr(-1e-7), Max: floatPtr(8), Verdict: acceptance.Fail, Reason: "overshoot_pct 9.1 > 8 <&>"},
 			{Metric: "settling_time_s", Verdict: acceptance.Invalid, Reason: awkward[3]},
-			{Metric: awkward[0], Value: floatPtr(5e-324), Max: floatPtr(1e21), Verdict: acceptance.Pass},
+			{Metric: metrics.Name(awkward[0]), Value: floatPtr(5e-324), Max: floatPtr(1e21), Verdict: acceptance.Pass},
 		},
 		Predicted: &acceptance.Prediction{Kind: "realised", Metrics: metricsWith([]float64{0.25, 1e-7, 3}, map[metrics.Name]metrics.Value{
 			metrics.Overshoot: metrics.Unknown("no overshoot"), metrics.DeadTime: metrics.Unknown(""),
 		})},
-		Gap: acceptance.GapsOf(map[string]*float64{
+		Gap: acceptance.GapsOf(map[metrics.Name]*float64{
 			"overshoot_pct": floatPtr(-1.7976931348623157e308), "rise_time_s": floatPtr(1e-7),
 			"dead_time_s": floatPtr(math.Copysign(0, -1)), "step_size": floatPtr(1e21), "not_a_metric": floatPtr(1),
 		}),
@@ -285,7 +285,7 @@ func TestWriteFixture(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			checkSameBytes(t, &acceptance.Batch{Units: c.units, Limits: map[string]acceptance.Limit{}})
+			checkSameBytes(t, &acceptance.Batch{Units: c.units, Limits: map[metrics.Name]acceptance.Limit{}})
 		})
 	}
 }
@@ -399,7 +399,9 @@ func TestWriteNonFinite(t *testing.T) {
 		"to":      step(func(s *acceptance.StepResult) { s.To = -inf }),
 		"metric":  step(func(s *acceptance.StepResult) { s.Metrics.Set(metrics.Overshoot, metrics.Value{V: inf, OK: true}) }),
 		"check":   step(func(s *acceptance.StepResult) { s.Checks = []acceptance.Check{{Min: &nan}} }),
-		"gap":     step(func(s *acceptance.StepResult) { s.Gap = acceptance.GapsOf(map[string]*float64{"step_size": &inf}) }),
+		"gap": step(func(s *acceptance.StepResult) {
+			s.Gap = acceptance.GapsOf(map[metrics.Name]*float64{"step_size": &inf})
+		}),
 		"prediction": step(func(s *acceptance.StepResult) {
 			s.Predicted = &acceptance.Prediction{Metrics: metricsWith([]float64{1}, map[metrics.Name]metrics.Value{metrics.PeakValue: {V: nan, OK: true}})}
 		}),
@@ -430,7 +432,7 @@ func TestWriteNonFinite(t *testing.T) {
 		})
 	}
 	t.Run("unknown", func(t *testing.T) {
-		s := acceptance.StepResult{Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": {V: nan, Why: "not finite"}})}
+		s := acceptance.StepResult{Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": {V: nan, Why: "not finite"}})}
 		ev := &acceptance.StepEvidence{EffortLimit: metrics.Value{V: inf}}
 		s.Evidence = ev
 		checkSameBytes(t, &acceptance.Batch{Units: []acceptance.UnitResult{{Steps: []acceptance.StepResult{s}}}})

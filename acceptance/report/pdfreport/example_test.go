@@ -15,14 +15,14 @@ func ExampleWrite() {
 	b := &acceptance.Batch{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
 		Spec:       acceptance.SpecInfo{SpecID: "DEMO", Revision: "A", Title: "Demo actuator", SHA256: "00"},
-		Limits:     map[string]acceptance.Limit{"overshoot_pct": {Max: &max}},
+		Limits:     map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &max}},
 		ReportDate: "2024-05-17",
 		Summary:    acceptance.Summary{Units: 1, Pass: 1},
 		Units: []acceptance.UnitResult{{
 			Unit: "SN-1", File: "SN-1.csv", SHA256: "11", Verdict: acceptance.Pass,
 			Steps: []acceptance.StepResult{{
 				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Pass,
-				Metrics: acceptance.MetricsOf(map[string]metrics.Value{"overshoot_pct": metrics.Known(9.48)}),
+				Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(9.48)}),
 			}},
 		}},
 	}

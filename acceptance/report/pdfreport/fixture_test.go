@@ -55,40 +55,40 @@ func secondOrder(zeta, wn, dt, end float64, steps, levels []float64) *metrics.Tr
 }
 
 // closedFormMetrics returns the metrics of one step of the closed loop.
-func closedFormMetrics(zeta, wn, from, to float64) map[string]metrics.Value {
+func closedFormMetrics(zeta, wn, from, to float64) map[metrics.Name]metrics.Value {
 	sigma := zeta * wn
 	wd := wn * math.Sqrt(1-zeta*zeta)
 	mp := math.Exp(-math.Pi * zeta / math.Sqrt(1-zeta*zeta))
 	size := to - from
 	beta := math.Atan2(wd, sigma)
-	return map[string]metrics.Value{
-		string(metrics.StepSize):            metrics.Known(size),
-		string(metrics.InitialValue):        metrics.Known(from),
-		string(metrics.FinalValue):          metrics.Known(to),
-		string(metrics.DeadTime):            metrics.Known(0),
-		string(metrics.RiseTime):            metrics.Known((math.Pi - beta) / wd),
-		string(metrics.PeakValue):           metrics.Known(to + mp*size),
-		string(metrics.PeakTime):            metrics.Known(math.Pi / wd),
-		string(metrics.Overshoot):           metrics.Known(100 * mp),
-		string(metrics.SettlingTime):        metrics.Known(4 / sigma),
-		string(metrics.SteadyStateError):    metrics.Known(0),
-		string(metrics.SteadyStateErrorPct): metrics.Known(0),
+	return map[metrics.Name]metrics.Value{
+		metrics.StepSize:            metrics.Known(size),
+		metrics.InitialValue:        metrics.Known(from),
+		metrics.FinalValue:          metrics.Known(to),
+		metrics.DeadTime:            metrics.Known(0),
+		metrics.RiseTime:            metrics.Known((math.Pi - beta) / wd),
+		metrics.PeakValue:           metrics.Known(to + mp*size),
+		metrics.PeakTime:            metrics.Known(math.Pi / wd),
+		metrics.Overshoot:           metrics.Known(100 * mp),
+		metrics.SettlingTime:        metrics.Known(4 / sigma),
+		metrics.SteadyStateError:    metrics.Known(0),
+		metrics.SteadyStateErrorPct: metrics.Known(0),
 	}
 }
 
 // judge applies the limits to a step's metrics, the way the acceptance
 // package reports it, so the fixture carries consistent checks.
-func judge(limits map[string]acceptance.Limit, m map[string]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []string) {
+func judge(limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []string) {
 	verdict := acceptance.Pass
 	var reasons []string
 	var checks []acceptance.Check
 	for _, name := range metrics.Names {
-		l, ok := limits[string(name)]
+		l, ok := limits[name]
 		if !ok {
 			continue
 		}
-		v := m[string(name)]
-		c := acceptance.Check{Metric: string(name), Min: l.Min, Max: l.Max, Verdict: acceptance.Pass}
+		v := m[name]
+		c := acceptance.Check{Metric: name, Min: l.Min, Max: l.Max, Verdict: acceptance.Pass}
 		switch {
 		case !v.OK:
 			c.Verdict = acceptance.Invalid
@@ -121,18 +121,18 @@ type unitSpec struct {
 	serial, file string
 	zeta, wn     float64
 	keepTrace    bool
-	unmeasured   string // metric to leave unknown
+	unmeasured   metrics.Name // metric to leave unknown
 }
 
 // testBatch builds a batch of five units: two pass, one fails on
 // overshoot, one is an unreadable file, one has an unmeasured settling time;
 // the model predicts the nominal step 0 → 10 mm.
 func testBatch() *acceptance.Batch {
-	limits := map[string]acceptance.Limit{
-		string(metrics.Overshoot):    {Max: ptr(15)},
-		string(metrics.RiseTime):     {Min: ptr(0.05), Max: ptr(0.6)},
-		string(metrics.SettlingTime): {Max: ptr(1.6)},
-		string(metrics.FinalValue):   {Min: ptr(9.9), Max: ptr(10.1)},
+	limits := map[metrics.Name]acceptance.Limit{
+		metrics.Overshoot:    {Max: ptr(15)},
+		metrics.RiseTime:     {Min: ptr(0.05), Max: ptr(0.6)},
+		metrics.SettlingTime: {Max: ptr(1.6)},
+		metrics.FinalValue:   {Min: ptr(9.9), Max: ptr(10.1)},
 	}
 	spec := &acceptance.Spec{
 		SpecID: "ACT-25", Revision: "C", Title: "Linear actuator VD-25, end-of-line step test",
@@ -167,7 +167,7 @@ func testBatch() *acceptance.Batch {
 		{serial: "SN-1001", file: "logs/SN-1001.csv", zeta: 0.6, wn: 5, keepTrace: true},
 		{serial: "SN-1002-ζ±µ→", file: "logs/SN-1002.csv", zeta: 0.25, wn: 6, keepTrace: true},
 		{serial: "SN-1003", file: "logs/SN-1003.csv", zeta: 0.7, wn: 6, keepTrace: true},
-		{serial: "SN-1005\x07", file: "logs/SN-1005.csv", zeta: 0.55, wn: 5, keepTrace: true, unmeasured: string(metrics.SettlingTime)},
+		{serial: "SN-1005\x07", file: "logs/SN-1005.csv", zeta: 0.55, wn: 5, keepTrace: true, unmeasured: metrics.SettlingTime},
 	}
 	for _, us := range units {
 		tr := secondOrder(us.zeta, us.wn, 0.002, 6, []float64{0.5, 3.5}, []float64{10, 0})
@@ -181,12 +181,12 @@ func testBatch() *acceptance.Batch {
 			if us.unmeasured != "" && k == 1 {
 				m[us.unmeasured] = metrics.Unknown("the record ends before the response stays in the band")
 			}
-			lim := map[string]acceptance.Limit{}
+			lim := map[metrics.Name]acceptance.Limit{}
 			for name, l := range limits {
 				lim[name] = l
 			}
 			if st.to < st.from { // the down-step: final value limits apply to the up-step only
-				delete(lim, string(metrics.FinalValue))
+				delete(lim, metrics.FinalValue)
 			}
 			checks, v, reasons := judge(lim, m)
 			s := acceptance.StepResult{
@@ -195,7 +195,7 @@ func testBatch() *acceptance.Batch {
 			}
 			if st.to == 10 {
 				s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(predM)}
-				gaps := map[string]*float64{}
+				gaps := map[metrics.Name]*float64{}
 				for name, pv := range predM {
 					if mv := m[name]; mv.OK && pv.OK {
 						gaps[name] = ptr(mv.V - pv.V)

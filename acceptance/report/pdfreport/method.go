@@ -61,7 +61,7 @@ func (r *report) limitsTable() {
 	var rows [][]cell
 	for _, m := range names {
 		l := r.b.Limits[m]
-		rows = append(rows, []cell{txt(digest.MetricLabel(m)), {text: m, smallerInk: true}, txt(bound(l.Min)), txt(bound(l.Max)), txt(digest.MetricUnit(m, r.unit))})
+		rows = append(rows, []cell{txt(digest.MetricLabel(m)), {text: string(m), smallerInk: true}, txt(bound(l.Min)), txt(bound(l.Max)), txt(digest.MetricUnit(m, r.unit))})
 	}
 	r.table(cols, rows)
 	r.para("— : no bound on that side.", 8, 4.2, grey)

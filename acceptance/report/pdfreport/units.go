@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -391,23 +392,19 @@ func fitText(f *acceptance.Fit, unit string) string {
 func (r *report) stepTable(s *acceptance.StepResult) {
 	title := fmt.Sprintf("Step %d: %s → %s %s at t = %s s, %s", s.Index, num(s.From), num(s.To), r.unit, num(s.StartS), verdictWord(s.Verdict))
 	r.subheading(title, 6+3*lineH)
-	checks := map[string]acceptance.Check{}
+	checks := map[metrics.Name]acceptance.Check{}
 	for _, c := range s.Checks {
 		checks[c.Metric] = c
 	}
-	names := make([]string, 0, len(metrics.Names)+len(checks))
-	seen := map[string]bool{}
-	for _, n := range metrics.Names {
-		names = append(names, string(n))
-		seen[string(n)] = true
-	}
-	var extra []string
+	names := make([]metrics.Name, 0, len(metrics.Names)+len(checks))
+	names = append(names, metrics.Names...)
+	var extra []metrics.Name
 	for k := range checks {
-		if !seen[k] {
+		if metrics.Index(k) < 0 {
 			extra = append(extra, k)
 		}
 	}
-	sort.Strings(extra)
+	slices.Sort(extra)
 	names = append(names, extra...)
 
 	havePred := s.Predicted != nil

@@ -22,8 +22,8 @@ const (
 // limits as lines drawn from points on the Limits sheet. Without a step on
 // which both were measured there is nothing to plot and no chart.
 func scatter(f *excelize.File, d *digest.Digest) error {
-	os, ok1 := d.Metric(string(metrics.Overshoot))
-	ts, ok2 := d.Metric(string(metrics.SettlingTime))
+	os, ok1 := d.Metric(metrics.Overshoot)
+	ts, ok2 := d.Metric(metrics.SettlingTime)
 	if !ok1 || !ok2 || !os.Highest.OK || !ts.Highest.OK {
 		return nil
 	}
@@ -34,7 +34,7 @@ func scatter(f *excelize.File, d *digest.Digest) error {
 	ref := func(sheet string, col, first, last int) string {
 		return fmt.Sprintf("'%s'!$%s$%d:$%s$%d", sheet, colName(col), first, colName(col), last)
 	}
-	xc, yc := unitsMetricCol(string(metrics.SettlingTime)), unitsMetricCol(string(metrics.Overshoot))
+	xc, yc := unitsMetricCol(metrics.SettlingTime), unitsMetricCol(metrics.Overshoot)
 	// excelize writes a series name as a cell reference (a c:strRef in the
 	// chart part), so every name is written to a cell of the Limits sheet
 	// and referred to.

@@ -17,7 +17,7 @@ func ExampleWrite() {
 	b := &acceptance.Batch{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
 		Spec:       acceptance.SpecInfo{SpecID: "DEMO", Revision: "A", Title: "Demo actuator"},
-		Limits:     map[string]acceptance.Limit{"overshoot_pct": {Max: &max}},
+		Limits:     map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &max}},
 		ReportDate: "2024-05-17",
 		Summary:    acceptance.Summary{Units: 1, Fail: 1},
 		Units: []acceptance.UnitResult{{
@@ -25,7 +25,7 @@ func ExampleWrite() {
 			Reasons: []string{"overshoot_pct 44.43 above max 15"},
 			Steps: []acceptance.StepResult{{
 				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Fail,
-				Metrics: acceptance.MetricsOf(map[string]metrics.Value{
+				Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{
 					"overshoot_pct":   metrics.Known(44.43),
 					"settling_time_s": metrics.Unknown("the record ends before the response settles"),
 				}),

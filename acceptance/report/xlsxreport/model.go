@@ -16,7 +16,7 @@ func limits(f *excelize.File, st *styles, d *digest.Digest) error {
 		return err
 	}
 	defs := digest.Definitions(d.Batch)
-	def := func(m string) (string, string) {
+	def := func(m metrics.Name) (string, string) {
 		for _, x := range defs {
 			for _, k := range x.Metrics {
 				if k == m {
@@ -103,17 +103,17 @@ func modelSheet(f *excelize.File, st *styles, d *digest.Digest) error {
 		w.set(i+1, h, st.header)
 	}
 	w.row++
-	cmp := map[[2]float64]map[string]digest.Comparison{}
+	cmp := map[[2]float64]map[metrics.Name]digest.Comparison{}
 	for _, x := range d.Comparisons {
 		k := [2]float64{x.From, x.To}
 		if cmp[k] == nil {
-			cmp[k] = map[string]digest.Comparison{}
+			cmp[k] = map[metrics.Name]digest.Comparison{}
 		}
 		cmp[k][x.Metric] = x
 	}
 	for _, n := range m.Nominal {
 		for _, name := range metrics.Names {
-			k := string(name)
+			k := name
 			iv, rv := n.Ideal.Metrics.Get(k), n.Realised.Metrics.Get(k)
 			compared := iv
 			if m.Realised {

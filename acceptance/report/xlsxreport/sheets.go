@@ -15,16 +15,16 @@ import (
 
 // unitColumns describes the Units sheet's columns.
 type unitColumns struct {
-	metrics   []string // every metric, report order
-	predicted []string // limited metrics with predicted and gap columns
-	meta      []string // metadata keys, sorted
+	metrics   []metrics.Name // every metric, report order
+	predicted []metrics.Name // limited metrics with predicted and gap columns
+	meta      []string       // metadata keys, sorted
 }
 
 func columnsFor(d *digest.Digest) unitColumns {
 	b := d.Batch
 	var c unitColumns
 	for _, n := range metrics.Names {
-		c.metrics = append(c.metrics, string(n))
+		c.metrics = append(c.metrics, n)
 	}
 	havePred := false
 	keys := map[string]bool{}
@@ -55,11 +55,9 @@ const (
 )
 
 // unitsMetricCol returns the Units sheet column of a metric.
-func unitsMetricCol(m string) int {
-	for i, n := range metrics.Names {
-		if string(n) == m {
-			return unitsFirstValue + i
-		}
+func unitsMetricCol(m metrics.Name) int {
+	if i := metrics.Index(m); i >= 0 {
+		return unitsFirstValue + i
 	}
 	return 0
 }
@@ -84,10 +82,10 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xl
 	cols := columnsFor(d)
 	header := []string{"unit", "file", "step", "start_s (s)", withUnit("from", unit), withUnit("to", unit), "step verdict", "unit verdict"}
 	for _, m := range cols.metrics {
-		header = append(header, withUnit(m, digest.MetricUnit(m, unit)))
+		header = append(header, withUnit(string(m), digest.MetricUnit(m, unit)))
 	}
 	for _, m := range cols.predicted {
-		header = append(header, withUnit("predicted "+m, digest.MetricUnit(m, unit)), withUnit("gap "+m, digest.MetricUnit(m, unit)))
+		header = append(header, withUnit("predicted "+string(m), digest.MetricUnit(m, unit)), withUnit("gap "+string(m), digest.MetricUnit(m, unit)))
 	}
 	header = append(header, "step reason", "unit reason")
 	for _, k := range cols.meta {
@@ -137,11 +135,11 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xl
 	}
 	metricIdx := make([]int, len(cols.metrics))
 	for i, m := range cols.metrics {
-		metricIdx[i] = metricIndex(m)
+		metricIdx[i] = metrics.Index(m)
 	}
 	predIdx := make([]int, len(cols.predicted))
 	for i, m := range cols.predicted {
-		predIdx[i] = metricIndex(m)
+		predIdx[i] = metrics.Index(m)
 	}
 	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
@@ -258,7 +256,7 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 		map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12}); err != nil {
 		return err
 	}
-	units := map[string]string{}
+	units := map[metrics.Name]string{}
 	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
 			u := &b.Units[i]
@@ -270,7 +268,7 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 					rw.Str(1, unitText)
 					rw.Str(2, fileText)
 					rw.Int(3, s.Index)
-					rw.Str(4, Text(c.Metric))
+					rw.Str(4, Text(string(c.Metric)))
 					rw.NumPtr(5, c.Value)
 					mu, ok := units[c.Metric]
 					if !ok {
@@ -296,7 +294,7 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 
 // GapRows counts the rows of the Gaps sheet: one per limited metric of
 // every step that has a prediction.
-func GapRows(b *acceptance.Batch, limited []string) int {
+func GapRows(b *acceptance.Batch, limited []metrics.Name) int {
 	n := 0
 	for i := range b.Units {
 		for k := range b.Units[i].Steps {
@@ -322,16 +320,17 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xls
 		return err
 	}
 	type column struct {
-		name, text, unit string
-		idx              int
+		name       metrics.Name
+		text, unit string
+		idx        int
 	}
 	limited := make([]column, 0, len(d.Limited))
 	for _, m := range d.Limited {
-		i := metricIndex(m)
+		i := metrics.Index(m)
 		if i < 0 {
 			return fmt.Errorf("limited metric %q is not a metric", m)
 		}
-		limited = append(limited, column{name: m, text: Text(m), unit: Text(digest.MetricUnit(m, d.ResponseUnit)), idx: i})
+		limited = append(limited, column{name: m, text: Text(string(m)), unit: Text(digest.MetricUnit(m, d.ResponseUnit)), idx: i})
 	}
 	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
@@ -398,9 +397,6 @@ func orWhy(a, b string) string {
 	}
 	return "no reason recorded"
 }
-
-// metricIndex returns the position of metric m in metrics.Names.
-func metricIndex(m string) int { return metrics.Index(metrics.Name(m)) }
 
 // openTable starts a long table sheet: the sheet, an autofilter over the
 // header and rows data rows, verdict colours on the given columns, and the

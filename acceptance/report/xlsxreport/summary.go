@@ -184,7 +184,7 @@ func summary(f *excelize.File, st *styles, d *digest.Digest) error {
 		w.set(2, string(c.Verdict), 0)
 		w.set(3, c.Units, 0)
 		w.set(4, share, st.percent)
-		w.set(5, orNil(c.Metric), 0)
+		w.set(5, orNil(string(c.Metric)), 0)
 		w.set(6, c.Key, 0)
 		w.row++
 	}

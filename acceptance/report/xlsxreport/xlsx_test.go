@@ -30,17 +30,17 @@ func overshootPct(zeta float64) float64 {
 // stepMetrics returns a full metric set for an up-step 0 → 10 of a loop
 // with damping zeta and natural frequency wn (Ogata, §5-3: peak time π/ωd,
 // settling time 4/σ); the metric named unknown is left unmeasured.
-func stepMetrics(zeta, wn float64, unknown string) (map[string]metrics.Value, map[string]string) {
+func stepMetrics(zeta, wn float64, unknown metrics.Name) (map[metrics.Name]metrics.Value, map[metrics.Name]string) {
 	wd := wn * math.Sqrt(1-zeta*zeta)
 	mp := overshootPct(zeta)
-	m := map[string]metrics.Value{
+	m := map[metrics.Name]metrics.Value{
 		"step_size": metrics.Known(10), "initial_value": metrics.Known(0), "final_value": metrics.Known(10),
 		"dead_time_s": metrics.Known(0.004), "rise_time_s": metrics.Known((math.Pi - math.Atan2(wd, zeta*wn)) / wd),
 		"peak_value": metrics.Known(10 + mp/10), "peak_time_s": metrics.Known(math.Pi / wd),
 		"overshoot_pct": metrics.Known(mp), "settling_time_s": metrics.Known(4 / (zeta * wn)),
 		"steady_state_error": metrics.Known(0.01), "steady_state_error_pct": metrics.Known(0.1),
 	}
-	unm := map[string]string{}
+	unm := map[metrics.Name]string{}
 	if unknown != "" {
 		m[unknown] = metrics.Unknown("the record ends before the response stays in the band")
 		unm[unknown] = m[unknown].Why
@@ -57,7 +57,7 @@ const (
 
 // judge applies the limits to a step the way acceptance.Spec.JudgeStep
 // reports it, in limit-name order, so the fixture carries its checks.
-func judge(limits map[string]acceptance.Limit, m map[string]metrics.Value) []acceptance.Check {
+func judge(limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]metrics.Value) []acceptance.Check {
 	var out []acceptance.Check
 	for _, name := range digest.LimitedMetrics(&acceptance.Batch{Limits: limits}) {
 		l := limits[name]
@@ -65,7 +65,7 @@ func judge(limits map[string]acceptance.Limit, m map[string]metrics.Value) []acc
 		v := m[name]
 		switch {
 		case !v.OK:
-			c.Verdict, c.Reason = acceptance.Invalid, name+" not measured at step 1: "+v.Why
+			c.Verdict, c.Reason = acceptance.Invalid, string(name)+" not measured at step 1: "+v.Why
 		case l.Max != nil && v.V > *l.Max:
 			c.Value, c.Verdict, c.Reason = ptr(v.V), acceptance.Fail, fmt.Sprintf("%s %.4g > %g at step 1", name, v.V, *l.Max)
 		case l.Min != nil && v.V < *l.Min:
@@ -81,7 +81,7 @@ func judge(limits map[string]acceptance.Limit, m map[string]metrics.Value) []acc
 // testBatch: a passing unit, a failing one with a formula-like serial, an
 // unreadable file, and a unit with an unmeasured settling time.
 func testBatch() *acceptance.Batch {
-	limits := map[string]acceptance.Limit{
+	limits := map[metrics.Name]acceptance.Limit{
 		"overshoot_pct":   {Max: ptr(15)},
 		"settling_time_s": {Max: ptr(1.6)},
 		"final_value":     {Min: ptr(9.9), Max: ptr(10.1)},
@@ -103,9 +103,9 @@ func testBatch() *acceptance.Batch {
 		},
 		TestDates: acceptance.DateRange{First: "2024-05-15", Last: "2024-05-16"},
 	}
-	mk := func(serial, file string, zeta, wn float64, unknown string, v acceptance.Verdict, reasons []string) acceptance.UnitResult {
+	mk := func(serial, file string, zeta, wn float64, unknown metrics.Name, v acceptance.Verdict, reasons []string) acceptance.UnitResult {
 		m, _ := stepMetrics(zeta, wn, unknown)
-		gap := map[string]*float64{}
+		gap := map[metrics.Name]*float64{}
 		for k, pv := range pred {
 			if mv := m[k]; mv.OK {
 				gap[k] = ptr(mv.V - pv.V)

@@ -1,0 +1,146 @@
+package metrics
+
+import "strings"
+
+// Name identifies a metric. The string is the key used in specs and reports.
+type Name string
+
+// The metrics measured on every step, in report order. Each is one row of
+// the catalogue below.
+const (
+	StepSize            Name = "step_size"
+	InitialValue        Name = "initial_value"
+	FinalValue          Name = "final_value"
+	DeadTime            Name = "dead_time_s"
+	RiseTime            Name = "rise_time_s"
+	PeakValue           Name = "peak_value"
+	PeakTime            Name = "peak_time_s"
+	Overshoot           Name = "overshoot_pct"
+	SettlingTime        Name = "settling_time_s"
+	SteadyStateError    Name = "steady_state_error"
+	SteadyStateErrorPct Name = "steady_state_error_pct"
+)
+
+// UnitKind says what a metric's values are expressed in.
+type UnitKind uint8
+
+// The unit kinds.
+const (
+	// ResponseUnit values are levels or errors in the spec's response unit.
+	ResponseUnit UnitKind = iota
+	// Seconds values are times from the step instant.
+	Seconds
+	// Percent values are percentages of the step size or the transition.
+	Percent
+)
+
+// Symbol returns the unit a value of kind k is printed with; responseUnit
+// is the spec's response unit, returned for ResponseUnit (it may be "").
+func (k UnitKind) Symbol(responseUnit string) string {
+	switch k {
+	case Seconds:
+		return "s"
+	case Percent:
+		return "%"
+	}
+	return responseUnit
+}
+
+// Metric is one row of the catalogue: everything specs, checks and reports
+// need to know about a metric besides the function that measures it.
+type Metric struct {
+	Name  Name     // key in specs, results.json and the workbook
+	Label string   // readable name as reports print it, e.g. "rise time"
+	Unit  UnitKind // what the values are expressed in
+	// NonNegative is true for a metric that cannot be below zero by
+	// definition (durations from the step instant, overshoot, the
+	// steady-state error); a negative limit on it is a mistake.
+	NonNegative bool
+
+	field func(*StepMetrics) *Value // the StepMetrics field holding it
+}
+
+// catalogue is the one table of metrics, in report order. A new metric is
+// one row here, its field in StepMetrics and the function that measures it.
+var catalogue = [...]Metric{
+	{StepSize, "step size", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.StepSize }},
+	{InitialValue, "initial value", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.InitialValue }},
+	{FinalValue, "final value", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.FinalValue }},
+	{DeadTime, "dead time", Seconds, true, func(m *StepMetrics) *Value { return &m.DeadTime }},
+	{RiseTime, "rise time", Seconds, true, func(m *StepMetrics) *Value { return &m.RiseTime }},
+	{PeakValue, "peak value", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.PeakValue }},
+	{PeakTime, "peak time", Seconds, true, func(m *StepMetrics) *Value { return &m.PeakTime }},
+	{Overshoot, "overshoot", Percent, true, func(m *StepMetrics) *Value { return &m.Overshoot }},
+	{SettlingTime, "settling time", Seconds, true, func(m *StepMetrics) *Value { return &m.SettlingTime }},
+	{SteadyStateError, "steady-state error", ResponseUnit, true, func(m *StepMetrics) *Value { return &m.SteadyStateError }},
+	{SteadyStateErrorPct, "steady-state error (rel.)", Percent, true, func(m *StepMetrics) *Value { return &m.SteadyStateErrorPct }},
+}
+
+// NumNames is the number of metrics, len(Names).
+const NumNames = len(catalogue)
+
+// Names lists every metric in report order.
+var Names = func() []Name {
+	n := make([]Name, NumNames)
+	for i, m := range catalogue {
+		n[i] = m.Name
+	}
+	return n
+}()
+
+// index maps a name to its position in Names.
+var index = func() map[Name]int {
+	x := make(map[Name]int, NumNames)
+	for i, m := range catalogue {
+		x[m.Name] = i
+	}
+	return x
+}()
+
+// Catalogue returns the row of every metric in report order. The slice is
+// a copy; changing it changes nothing.
+func Catalogue() []Metric {
+	c := catalogue
+	return c[:]
+}
+
+// Index returns the position of n in Names, or -1 for an unknown name.
+func Index(n Name) int {
+	if i, ok := index[n]; ok {
+		return i
+	}
+	return -1
+}
+
+// Lookup returns the catalogue row of n; ok is false for a name stepgate
+// does not measure.
+func Lookup(n Name) (m Metric, ok bool) {
+	i, ok := index[n]
+	if !ok {
+		return Metric{}, false
+	}
+	return catalogue[i], true
+}
+
+// At returns the catalogue row of metric i of Names.
+func At(i int) Metric { return catalogue[i] }
+
+// Label returns the readable name of n, e.g. "rise time" for rise_time_s;
+// a name stepgate does not measure is returned with its underscores as
+// spaces.
+func (n Name) Label() string {
+	if m, ok := Lookup(n); ok {
+		return m.Label
+	}
+	return strings.ReplaceAll(string(n), "_", " ")
+}
+
+// Unit returns the unit n's values are printed with: "s" for times, "%" for
+// percentages and responseUnit for levels and errors. A name stepgate does
+// not measure has no unit ("").
+func (n Name) Unit(responseUnit string) string {
+	if m, ok := Lookup(n); ok {
+		return m.Unit.Symbol(responseUnit)
+	}
+	return ""
+}
