@@ -15,6 +15,8 @@ import (
 	"os"
 
 	"github.com/spf13/cobra"
+
+	"github.com/stepgate/stepgate/templates"
 )
 
 // version is the tool version printed in reports; set with -ldflags at
@@ -68,8 +70,7 @@ every step (overshoot, rise, settling, steady-state error, dead time), judges
 each unit under test against the limits of a spec, compares the line with the
 spec's model prediction, and writes results.json, report.xlsx and report.pdf.
 
-It is not a safety certification: follow local codes, the applicable
-machinery-safety standards and competent, licensed practice.`,
+` + templates.HelpNotice,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 		Version:       version,

@@ -76,7 +76,7 @@ measures the logs, and prints the metrics. With --for-damping or
 --for-overshoot it also designs the proportional gain that meets the target,
 for the ideal and, when the spec has a loop section, the realised loop.
 
-` + gainCaution,
+` + templates.GainCaution,
 		Example: `  stepgate predict --spec vd25.yaml
   stepgate predict --spec vd25.yaml --for-overshoot 5 --to 25
   stepgate predict --spec vd25.yaml --for-damping 1 --json`,
@@ -123,7 +123,7 @@ func runPredict(s streams, o predictOptions) error {
 	if err != nil {
 		return usageErr(err)
 	}
-	out := predictOutput{Controller: spec.Model.Controller, Plant: sys.Plant().String(), Caution: gainCaution}
+	out := predictOutput{Controller: spec.Model.Controller, Plant: sys.Plant().String(), Caution: templates.GainCaution}
 	out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS, out.Step.Realisable = o.From, o.To, duration, dt, sys.Realised()
 	pr, err := sys.Predict(o.From, o.To, duration, dt)
 	if err != nil {
@@ -259,6 +259,3 @@ func fmtValue(v metrics.Value) string {
 	}
 	return fmt.Sprintf("%.6g", v.V)
 }
-
-// gainCaution is printed with every prediction and design.
-var gainCaution = templates.GainCaution
