@@ -63,7 +63,8 @@ func (c IndividualsChart) Known() bool { return c.Reason == "" }
 // centre line x̄ and the mean moving range MR̄ taken from the first baseline
 // points (2 ≤ baseline ≤ len(x)): X chart limits x̄ ± 2.66·MR̄, mR chart
 // upper limit 3.267·MR̄ (ISO 7870-2:2013; D. C. Montgomery, Introduction to
-// Statistical Quality Control, §6.4, the individuals chart). Every point,
+// Statistical Quality Control, chapter 6, charts for individual
+// measurements). Every point,
 // inside the baseline or after it, is tested for special causes with
 // SpecialCauses.
 func Individuals(x []float64, baseline int) IndividualsChart {
