@@ -75,7 +75,7 @@ func dialectFor(dsn string, busy time.Duration) (dialect, string, error) {
 	// upgrade; WAL lets readers go on while one writes.
 	ms := min(busy.Milliseconds(), 1000)
 	q := "_txlock=immediate&_pragma=busy_timeout(" + strconv.FormatInt(ms, 10) + ")" +
-		"&_pragma=journal_mode(WAL)&_pragma=synchronous(NORMAL)&_pragma=foreign_keys(1)"
+		"&_pragma=journal_mode(WAL)&_pragma=synchronous(NORMAL)&_pragma=foreign_keys(1)&_pragma=cache_size(-65536)&_pragma=temp_store(2)"
 	return sqliteDialect, abs + "?" + q, nil
 }
 

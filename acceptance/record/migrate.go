@@ -53,19 +53,19 @@ func (s *Store) migrate(ctx context.Context, target int) (int, error) {
 func (s *Store) migrateOne(ctx context.Context, tx *sql.Tx, target int) (int, bool, error) {
 	if s.d.lockStmt != "" {
 		if _, err := tx.ExecContext(ctx, s.d.lockStmt); err != nil {
-			return 0, false, fmt.Errorf("record: locking for migration: %w", err)
+			return 0, false, fmt.Errorf("locking for migration: %w", err)
 		}
 	}
 	if _, err := tx.ExecContext(ctx, s.d.render(createVersionTable)); err != nil {
-		return 0, false, fmt.Errorf("record: creating schema_version: %w", err)
+		return 0, false, fmt.Errorf("creating schema_version: %w", err)
 	}
 	var cur sql.NullInt64
 	if err := tx.QueryRowContext(ctx, "SELECT MAX(version) FROM schema_version").Scan(&cur); err != nil {
-		return 0, false, fmt.Errorf("record: reading the schema version: %w", err)
+		return 0, false, fmt.Errorf("reading the schema version: %w", err)
 	}
 	v := int(cur.Int64)
 	if v > latestVersion {
-		return v, false, fmt.Errorf("record: the database has schema version %d, newer than this stepgate knows (%d): use a newer stepgate", v, latestVersion)
+		return v, false, fmt.Errorf("the database has schema version %d, newer than this stepgate knows (%d): use a newer stepgate", v, latestVersion)
 	}
 	if v >= target {
 		return v, false, nil
@@ -73,13 +73,13 @@ func (s *Store) migrateOne(ctx context.Context, tx *sql.Tx, target int) (int, bo
 	m := migrations[v] // versions are 1, 2, ... in order
 	for i, q := range m.steps {
 		if _, err := tx.ExecContext(ctx, s.d.render(q)); err != nil {
-			return v, false, fmt.Errorf("record: migration to version %d (%s), statement %d: %w", m.version, m.what, i+1, err)
+			return v, false, fmt.Errorf("migration to version %d (%s), statement %d: %w", m.version, m.what, i+1, err)
 		}
 	}
 	_, err := tx.ExecContext(ctx, s.d.render("INSERT INTO schema_version (version, applied_at, description) VALUES (?, ?, ?)"),
 		m.version, s.d.timeArg(time.Now()), m.what)
 	if err != nil {
-		return v, false, fmt.Errorf("record: noting schema version %d: %w", m.version, err)
+		return v, false, fmt.Errorf("noting schema version %d: %w", m.version, err)
 	}
 	return m.version, true, nil
 }

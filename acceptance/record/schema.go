@@ -55,9 +55,8 @@ var schemaV1 = []string{
 	`CREATE INDEX attempt_serial ON attempt (serial, started_at)`,
 	`CREATE INDEX attempt_started ON attempt (started_at)`,
 	`CREATE INDEX attempt_spec ON attempt (spec_ref, started_at)`,
-	`CREATE INDEX attempt_path ON attempt (file_path)`,
 	`CREATE TABLE step (
-		attempt_id BIGINT NOT NULL REFERENCES attempt (id) ON DELETE CASCADE,
+		attempt_id BIGINT NOT NULL REFERENCES attempt (id) ON DELETE CASCADE DEFERRABLE INITIALLY DEFERRED,
 		step_index INTEGER NOT NULL,
 		start_s {{float}} NOT NULL,
 		from_level {{float}} NOT NULL,
@@ -81,7 +80,7 @@ var schemaV1 = []string{
 		gap {{float}},
 		gap_reason TEXT,
 		PRIMARY KEY (attempt_id, step_index, name),
-		FOREIGN KEY (attempt_id, step_index) REFERENCES step (attempt_id, step_index) ON DELETE CASCADE
+		FOREIGN KEY (attempt_id, step_index) REFERENCES step (attempt_id, step_index) ON DELETE CASCADE DEFERRABLE INITIALLY DEFERRED
 	) {{norowid}}`,
 	`CREATE TABLE step_check (
 		attempt_id BIGINT NOT NULL,
@@ -96,7 +95,7 @@ var schemaV1 = []string{
 		uncertainty {{float}},
 		decision_rule TEXT NOT NULL,
 		PRIMARY KEY (attempt_id, step_index, position),
-		FOREIGN KEY (attempt_id, step_index) REFERENCES step (attempt_id, step_index) ON DELETE CASCADE
+		FOREIGN KEY (attempt_id, step_index) REFERENCES step (attempt_id, step_index) ON DELETE CASCADE DEFERRABLE INITIALLY DEFERRED
 	) {{norowid}}`,
 }
 

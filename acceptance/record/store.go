@@ -11,7 +11,7 @@ import (
 
 // ErrBusy is wrapped by the error of a write that found the database busy
 // (held by another writer) for longer than the store's busy timeout.
-var ErrBusy = errors.New("record: database busy")
+var ErrBusy = errors.New("database busy")
 
 // DefaultBusyTimeout is how long a write waits for a busy database before
 // it gives up.
@@ -62,7 +62,7 @@ func OpenWith(ctx context.Context, dsn string, o Options) (*Store, error) {
 	s := &Store{db: db, d: d, busy: o.BusyTimeout}
 	if _, err := s.migrate(ctx, latestVersion); err != nil {
 		db.Close()
-		return nil, fmt.Errorf("%w (database %s)", err, redact(dsn))
+		return nil, fmt.Errorf("record: opening %s: %w", redact(dsn), err)
 	}
 	return s, nil
 }
@@ -119,11 +119,11 @@ func (s *Store) inTx(ctx context.Context, fn func(*sql.Tx) error) error {
 		}
 		left := time.Until(deadline)
 		if left <= 0 {
-			return fmt.Errorf("%w: gave up after %v and %d tries: %v", ErrBusy, s.busy, tries, err)
+			return fmt.Errorf("%w: another writer held it for %v (%d tries): %v", ErrBusy, s.busy, tries, err)
 		}
 		select {
 		case <-ctx.Done():
-			return fmt.Errorf("record: waiting for a busy database: %w", ctx.Err())
+			return fmt.Errorf("waiting for a busy database: %w", ctx.Err())
 		case <-time.After(min(pause, left)):
 		}
 		pause = min(2*pause, 250*time.Millisecond)
@@ -133,14 +133,14 @@ func (s *Store) inTx(ctx context.Context, fn func(*sql.Tx) error) error {
 func (s *Store) tryTx(ctx context.Context, fn func(*sql.Tx) error) error {
 	tx, err := s.db.BeginTx(ctx, nil)
 	if err != nil {
-		return fmt.Errorf("record: beginning a transaction: %w", err)
+		return fmt.Errorf("beginning a transaction: %w", err)
 	}
 	if err := fn(tx); err != nil {
 		tx.Rollback()
 		return err
 	}
 	if err := tx.Commit(); err != nil {
-		return fmt.Errorf("record: committing: %w", err)
+		return fmt.Errorf("committing: %w", err)
 	}
 	return nil
 }

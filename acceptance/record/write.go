@@ -38,37 +38,52 @@ func (s *Store) RecordRun(ctx context.Context, run Run, spec Spec, units []Unit)
 		if err != nil {
 			return err
 		}
-		for i := range units {
-			if err := s.recordUnit(w, &res, runID, specRef, &units[i]); err != nil {
-				return err
-			}
-			if s.afterUnit != nil {
-				s.afterUnit(i)
-			}
+		if err := s.recordUnits(w, &res, runID, specRef, units); err != nil {
+			return err
 		}
 		return w.flush()
 	})
 	if err != nil {
-		return Result{}, fmt.Errorf("record: run not recorded (%d units): %w", len(units), err)
+		return Result{}, fmt.Errorf("record: run of %d unit(s) not recorded: %w", len(units), err)
 	}
 	return res, nil
 }
 
-// recordUnit writes one unit, or counts it as skipped when its content is
-// already recorded under the spec.
-func (s *Store) recordUnit(w *writer, res *Result, runID, specRef int64, u *Unit) error {
-	id, ok, err := w.insertAttempt(runID, specRef, u)
-	if err != nil {
-		return fmt.Errorf("unit %q (%s): %w", u.Serial, u.File, err)
+// attemptChunk is how many attempts one multi-row INSERT writes.
+const attemptChunk = 200
+
+// recordUnits writes the units chunk by chunk, skipping those whose content
+// is already recorded under the spec, and counts what it did in res.
+func (s *Store) recordUnits(w *writer, res *Result, runID, specRef int64, units []Unit) error {
+	skipped := make([]bool, len(units))
+	seen := make(map[string]bool, len(units))
+	for start := 0; start < len(units); start += attemptChunk {
+		end := min(start+attemptChunk, len(units))
+		ids, err := w.insertAttempts(runID, specRef, units[start:end], seen)
+		if err != nil {
+			return err
+		}
+		for i, id := range ids {
+			u := &units[start+i]
+			if id == 0 {
+				skipped[start+i] = true
+				continue
+			}
+			if err := w.addSteps(id, u.Steps); err != nil {
+				return fmt.Errorf("unit %q (%s): %w", u.Serial, u.File, err)
+			}
+			if s.afterUnit != nil {
+				s.afterUnit(start + i)
+			}
+		}
 	}
-	if !ok {
-		res.Skipped++
-		res.Skips = append(res.Skips, u.File)
-		return nil
-	}
-	res.Recorded++
-	if err := w.addSteps(id, u.Steps); err != nil {
-		return fmt.Errorf("unit %q (%s): %w", u.Serial, u.File, err)
+	for i, skip := range skipped {
+		if skip {
+			res.Skipped++
+			res.Skips = append(res.Skips, units[i].File)
+		} else {
+			res.Recorded++
+		}
 	}
 	return nil
 }

@@ -6,7 +6,6 @@ import (
 	"database/sql"
 	"encoding/hex"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"strings"
 )
@@ -65,30 +64,90 @@ func (w *writer) upsertSpec(sp Spec) (int64, error) {
 	return id, nil
 }
 
-// insertAttempt inserts a unit's attempt row; ok is false when the same
-// content is already recorded under the spec.
-func (w *writer) insertAttempt(runID, specRef int64, u *Unit) (id int64, ok bool, err error) {
-	meta, err := json.Marshal(u.Metadata)
+var attemptInsertCols = []string{"run_id", "spec_ref", "serial", "file_path", "file_sha256", "file_mtime",
+	"metadata", "station", "operator", "lot", "shift", "started_at", "verdict", "reasons"}
+
+// insertAttempts inserts the attempt rows of a chunk of units and returns
+// their ids, 0 for a unit whose content is already recorded under the spec
+// (by an earlier run, earlier in this run, or by a concurrent writer). seen
+// holds the content hashes met so far in this run.
+func (w *writer) insertAttempts(runID, specRef int64, units []Unit, seen map[string]bool) ([]int64, error) {
+	ids := make([]int64, len(units))
+	known, err := w.recorded(specRef, units)
 	if err != nil {
-		return 0, false, fmt.Errorf("metadata: %w", err)
+		return nil, err
 	}
-	if u.Metadata == nil {
-		meta = []byte("{}")
+	b := newBatch(w.d, "attempt", attemptInsertCols...)
+	for i := range units {
+		u := &units[i]
+		if known[u.FileSHA256] || seen[u.FileSHA256] {
+			continue
+		}
+		seen[u.FileSHA256] = true
+		meta := "{}"
+		if len(u.Metadata) > 0 {
+			m, err := json.Marshal(u.Metadata)
+			if err != nil {
+				return nil, fmt.Errorf("unit %q (%s): metadata: %w", u.Serial, u.File, err)
+			}
+			meta = string(m)
+		}
+		b.add(runID, specRef, u.Serial, u.File, u.FileSHA256, w.d.timeArg(u.FileModTime), meta,
+			u.Station, u.Operator, u.Lot, u.Shift, w.d.timeArg(u.StartedAt), u.Verdict, jsonList(u.Reasons))
 	}
-	err = w.tx.QueryRowContext(w.ctx, w.d.render(
-		`INSERT INTO attempt (run_id, spec_ref, serial, file_path, file_sha256, file_mtime, metadata,
-		 station, operator, lot, shift, started_at, verdict, reasons)
-		 VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
-		 ON CONFLICT (file_sha256, spec_ref) DO NOTHING RETURNING id`),
-		runID, specRef, u.Serial, u.File, u.FileSHA256, w.d.timeArg(u.FileModTime), string(meta),
-		u.Station, u.Operator, u.Lot, u.Shift, w.d.timeArg(u.StartedAt), u.Verdict, jsonList(u.Reasons)).Scan(&id)
-	if errors.Is(err, sql.ErrNoRows) {
-		return 0, false, nil
+	if len(b.args) == 0 {
+		return ids, nil
 	}
+	got, err := w.returning(b.statement(len(b.args)/len(attemptInsertCols))+
+		" ON CONFLICT (file_sha256, spec_ref) DO NOTHING RETURNING file_sha256, id", b.args)
 	if err != nil {
-		return 0, false, fmt.Errorf("inserting the attempt: %w", err)
+		return nil, fmt.Errorf("inserting %d attempts: %w", len(b.args)/len(attemptInsertCols), err)
 	}
-	return id, true, nil
+	for i := range units {
+		if id, ok := got[units[i].FileSHA256]; ok {
+			ids[i] = id
+			delete(got, units[i].FileSHA256) // a repeat later in the chunk is skipped
+		}
+	}
+	return ids, nil
+}
+
+// recorded returns which of the units' content hashes are already recorded
+// under the spec.
+func (w *writer) recorded(specRef int64, units []Unit) (map[string]bool, error) {
+	args := []any{specRef}
+	for i := range units {
+		args = append(args, units[i].FileSHA256)
+	}
+	q := w.d.render("SELECT file_sha256, 0 FROM attempt WHERE spec_ref = ? AND file_sha256 IN (" + marks(len(units)) + ")")
+	got, err := w.returning(q, args)
+	if err != nil {
+		return nil, fmt.Errorf("looking up recorded files: %w", err)
+	}
+	known := make(map[string]bool, len(got))
+	for sha := range got {
+		known[sha] = true
+	}
+	return known, nil
+}
+
+// returning runs a rendered query whose rows are (text, integer) pairs.
+func (w *writer) returning(q string, args []any) (map[string]int64, error) {
+	rows, err := w.tx.QueryContext(w.ctx, q, args...)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	out := map[string]int64{}
+	for rows.Next() {
+		var k string
+		var v int64
+		if err := rows.Scan(&k, &v); err != nil {
+			return nil, err
+		}
+		out[k] = v
+	}
+	return out, rows.Err()
 }
 
 // addSteps buffers the rows of a unit's steps.
@@ -107,16 +166,20 @@ func (w *writer) addSteps(id int64, steps []Step) error {
 			w.checks.add(id, st.Index, i+1, c.Metric, c.Value.driverValue(), c.Min.driverValue(),
 				c.Max.driverValue(), c.Verdict, c.Reason, c.U.driverValue(), c.Rule)
 		}
-		if w.steps.full() || w.metrics.full() || w.checks.full() {
-			if err := w.flush(); err != nil {
-				return err
+		// Each table is written when its batch is full; the foreign keys
+		// between them are checked at commit (DEFERRABLE INITIALLY DEFERRED).
+		for _, b := range []*batch{w.steps, w.metrics, w.checks} {
+			if b.isFull() {
+				if err := b.flush(w.ctx, w.tx); err != nil {
+					return err
+				}
 			}
 		}
 	}
 	return nil
 }
 
-// flush writes the buffered rows, steps first (metrics and checks refer to them).
+// flush writes the rows still buffered.
 func (w *writer) flush() error {
 	for _, b := range []*batch{w.steps, w.metrics, w.checks} {
 		if err := b.flush(w.ctx, w.tx); err != nil {
@@ -182,6 +245,7 @@ type batch struct {
 	cols    []string
 	args    []any
 	maxRows int
+	full    *sql.Stmt // the statement for maxRows rows, prepared once per transaction
 }
 
 func newBatch(d dialect, table string, cols ...string) *batch {
@@ -190,13 +254,13 @@ func newBatch(d dialect, table string, cols ...string) *batch {
 
 func (b *batch) add(vals ...any) { b.args = append(b.args, vals...) }
 
-func (b *batch) full() bool { return len(b.args) >= b.maxRows*len(b.cols) }
+func (b *batch) isFull() bool { return len(b.args) >= b.maxRows*len(b.cols) }
 
 func (b *batch) flush(ctx context.Context, tx *sql.Tx) error {
 	width := len(b.cols)
 	for rest := b.args; len(rest) > 0; {
 		n := min(len(rest)/width, b.maxRows)
-		if _, err := tx.ExecContext(ctx, b.statement(n), rest[:n*width]...); err != nil {
+		if err := b.exec(ctx, tx, n, rest[:n*width]); err != nil {
 			return fmt.Errorf("inserting %d %s rows: %w", n, b.table, err)
 		}
 		rest = rest[n*width:]
@@ -204,6 +268,23 @@ func (b *batch) flush(ctx context.Context, tx *sql.Tx) error {
 	clear(b.args)
 	b.args = b.args[:0]
 	return nil
+}
+
+// exec inserts n rows; a full chunk reuses the prepared statement.
+func (b *batch) exec(ctx context.Context, tx *sql.Tx, n int, args []any) error {
+	if n < b.maxRows {
+		_, err := tx.ExecContext(ctx, b.statement(n), args...)
+		return err
+	}
+	if b.full == nil {
+		st, err := tx.PrepareContext(ctx, b.statement(n))
+		if err != nil {
+			return err
+		}
+		b.full = st
+	}
+	_, err := b.full.ExecContext(ctx, args...)
+	return err
 }
 
 func (b *batch) statement(rows int) string {
