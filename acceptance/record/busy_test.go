@@ -1,0 +1,125 @@
+package record
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"sync"
+	"testing"
+	"time"
+)
+
+// Several stores (as several stations or processes would) record runs into
+// one database at once; every unit is recorded exactly once.
+func TestConcurrentWriters(t *testing.T) {
+	eachBackend(t, func(t *testing.T, b backend) {
+		dsn := b.fresh(t)
+		open(t, dsn) // migrate once, so that the writers race on data, not schema
+		const writers, runs, perRun = 4, 6, 5
+		var wg sync.WaitGroup
+		errs := make(chan error, writers*runs)
+		for w := range writers {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				s, err := Open(context.Background(), dsn)
+				if err != nil {
+					errs <- err
+					return
+				}
+				defer s.Close()
+				for r := range runs {
+					var units []Unit
+					for i := range perRun {
+						units = append(units, testUnit(fmt.Sprintf("SN-W%d", w), r*perRun+i, t0.Add(time.Duration(i)*time.Minute)))
+					}
+					// Every writer also offers one unit that all writers share.
+					units = append(units, testUnit("SN-SHARED", r, t0))
+					if _, err := s.RecordRun(context.Background(), testRun(t0), testSpec("A"), units); err != nil {
+						errs <- err
+					}
+				}
+			}()
+		}
+		wg.Wait()
+		close(errs)
+		for err := range errs {
+			t.Errorf("writer: %v", err)
+		}
+		c := counts(t, open(t, dsn))
+		if want := writers*runs*perRun + runs; c["attempt"] != want || c["run"] != writers*runs {
+			t.Errorf("after concurrent writers: %v, want %d attempts and %d runs", c, want, writers*runs)
+		}
+	})
+}
+
+// holdWriteLock takes SQLite's write lock on the database from another
+// connection and releases it when the returned function is called.
+func holdWriteLock(t *testing.T, path string) (release func()) {
+	t.Helper()
+	db, err := sql.Open("sqlite", path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	conn, err := db.Conn(context.Background())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := conn.ExecContext(context.Background(), "BEGIN IMMEDIATE"); err != nil {
+		t.Fatal(err)
+	}
+	return func() {
+		conn.ExecContext(context.Background(), "ROLLBACK")
+		conn.Close()
+		db.Close()
+	}
+}
+
+// A writer that finds the SQLite file locked by another writer waits and
+// tries again (SQLITE_BUSY) until its busy timeout; past it, it gives up
+// with an error wrapping ErrBusy and writes nothing.
+func TestSQLiteBusyRetry(t *testing.T) {
+	path := freshSQLite(t)
+	open(t, path)
+	ctx := context.Background()
+	cases := []struct {
+		name    string
+		hold    time.Duration
+		timeout time.Duration
+		wantErr bool
+	}{
+		{"lock released within the timeout", 1500 * time.Millisecond, 10 * time.Second, false},
+		{"lock held past the timeout", 3 * time.Second, 400 * time.Millisecond, true},
+	}
+	for i, c := range cases {
+		s, err := OpenWith(ctx, path, Options{BusyTimeout: c.timeout})
+		if err != nil {
+			t.Fatal(err)
+		}
+		release := holdWriteLock(t, path)
+		timer := time.AfterFunc(c.hold, release)
+		start := time.Now()
+		res, err := s.RecordRun(ctx, testRun(t0), testSpec("A"), []Unit{testUnit("SN-B", i, t0)})
+		took := time.Since(start)
+		timer.Stop()
+		release()
+		switch {
+		case c.wantErr && !errors.Is(err, ErrBusy):
+			t.Errorf("%s: err = %v, want ErrBusy", c.name, err)
+		case c.wantErr && (took < c.timeout || took > c.hold):
+			t.Errorf("%s: gave up after %v, want between %v and %v", c.name, took, c.timeout, c.hold)
+		case !c.wantErr && (err != nil || res.Recorded != 1):
+			t.Errorf("%s: %+v, %v", c.name, res, err)
+		case !c.wantErr && took < c.hold:
+			t.Errorf("%s: recorded after %v while the lock was held for %v", c.name, took, c.hold)
+		}
+		if c.wantErr && err != nil {
+			t.Logf("the error a user sees: %v", err)
+		}
+		s.Close()
+	}
+	if c := counts(t, open(t, path)); c["attempt"] != 1 {
+		t.Errorf("attempts after the busy cases: %d, want 1", c["attempt"])
+	}
+}
