@@ -21,7 +21,13 @@
 //   - the encoder: Gaussian noise from a seeded math/rand/v2 source and
 //     quantisation to a count;
 //   - command profiles: steps, ramps, trapezoidal and jerk-limited
-//     (S-curve) moves, and sequences such as moves out and back.
+//     (S-curve) moves, and sequences such as moves out and back;
+//   - lots of units with a seeded spread of their parameters and named
+//     injected causes (loop delay, static friction, effort saturation,
+//     gain spread, and pairs of them), for tests that tabulate which
+//     causes a reader of the records names;
+//   - writing a record as a delimited log in the layouts rigs use
+//     (delimiter, decimal comma, header names, metadata lines).
 //
 // The tests check it against closed forms from the literature: the
 // second-order step and ramp responses (K. Ogata, Modern Control
