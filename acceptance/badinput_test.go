@@ -20,6 +20,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -297,9 +298,9 @@ func TestLogLimitsBoundMemory(t *testing.T) {
 }
 
 // TestBadSpecs checks the spec files of the corpus. The rules themselves are
-// tested case by case in specload_test.go (TestParseSpecRules: "limit min
+// tested case by case in acceptance/spec (TestParseRules: "limit min
 // above max", "band 0", "band 100", "band 150", "unknown metric";
-// TestParseSpecModelRules: "improper"); here each is read from a file on
+// TestParseModelRules: "improper"); here each is read from a file on
 // disk, where the position must point at the offending key, and the model
 // package's own rules become spec problems too.
 func TestBadSpecs(t *testing.T) {
@@ -323,10 +324,10 @@ func TestBadSpecs(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.file, func(t *testing.T) {
 			path := filepath.Join(badDir, "specs", c.file)
-			_, err := acceptance.LoadSpec(path)
-			var se *acceptance.SpecError
+			_, err := spec.Load(path)
+			var se *spec.Error
 			if !errors.As(err, &se) {
-				t.Fatalf("err = %v, want a *SpecError", err)
+				t.Fatalf("err = %v, want a *spec.Error", err)
 			}
 			if len(se.Problems) != 1 {
 				t.Fatalf("want 1 problem, got %v", se.Problems)
@@ -418,9 +419,9 @@ func TestUnstableModel(t *testing.T) {
 }
 
 // loadCorpusSpec loads a spec of the corpus.
-func loadCorpusSpec(t *testing.T, name string) *acceptance.Spec {
+func loadCorpusSpec(t *testing.T, name string) *spec.Spec {
 	t.Helper()
-	s, err := acceptance.LoadSpec(filepath.Join(badDir, "specs", name))
+	s, err := spec.Load(filepath.Join(badDir, "specs", name))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -428,7 +429,7 @@ func loadCorpusSpec(t *testing.T, name string) *acceptance.Spec {
 }
 
 // runBatch runs the real batch runner on files with two workers.
-func runBatch(t *testing.T, spec *acceptance.Spec, files []string) *acceptance.Batch {
+func runBatch(t *testing.T, spec *spec.Spec, files []string) *acceptance.Batch {
 	t.Helper()
 	b, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{Workers: 2, Traces: acceptance.KeepNoTraces})
 	if err != nil {

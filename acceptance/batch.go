@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"io"
 	"os"
 	"path/filepath"
@@ -70,7 +71,7 @@ func DefaultRunOptions() RunOptions {
 // batch ordered by unit id, then file. A file that cannot be read becomes an
 // invalid unit with the reason; it never stops the batch. Run returns an
 // error only when ctx is cancelled.
-func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch, error) {
+func Run(ctx context.Context, sp *spec.Spec, files []string, o RunOptions) (*Batch, error) {
 	workers := o.Workers
 	if workers <= 0 {
 		workers = runtime.NumCPU()
@@ -78,10 +79,10 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 	if workers > len(files) && len(files) > 0 {
 		workers = len(files)
 	}
-	format := spec.Format()
-	opts := spec.Options()
-	pred, predErr := newPredictor(spec)
-	sampler := newCurveSampler(spec, len(files))
+	format := sp.Format()
+	opts := sp.Options()
+	pred, predErr := newPredictor(sp)
+	sampler := newCurveSampler(sp, len(files))
 	var pages *pageKeeper
 	if o.Traces == KeepPageTraces {
 		limit := o.MaxUnitPages
@@ -104,7 +105,7 @@ func Run(ctx context.Context, spec *Spec, files []string, o RunOptions) (*Batch,
 			// worker's reader lends its buffers instead of copying them.
 			rd := rigdata.NewReader(format).Shared()
 			for i := range jobs {
-				u, n, tr := judgeFile(rd, spec, opts, pred, sampler, files[i], o.Traces)
+				u, n, tr := judgeFile(rd, sp, opts, pred, sampler, files[i], o.Traces)
 				// Every unit takes its place among those with a page, with
 				// or without a record to draw; a record is copied out of
 				// the reader's buffers before the next file is read.
@@ -153,14 +154,14 @@ feed:
 
 	b := &Batch{
 		Tool:    o.Tool,
-		Spec:    SpecInfo{SpecID: spec.SpecID, Revision: spec.Revision, SHA256: spec.SHA256, Title: spec.Title},
+		Spec:    SpecInfo{SpecID: sp.SpecID, Revision: sp.Revision, SHA256: sp.SHA256, Title: sp.Title},
 		Summary: Count(results),
 		Units:   results,
-		Limits:  spec.Limits,
-		SpecDoc: spec,
+		Limits:  sp.Limits,
+		SpecDoc: sp,
 	}
 	if b.Limits == nil {
-		b.Limits = map[metrics.Name]Limit{}
+		b.Limits = map[metrics.Name]spec.Limit{}
 	}
 	b.Notice = Notice
 	b.TestDates = testDates(results)
@@ -176,7 +177,7 @@ feed:
 	if pred != nil {
 		b.Model = pred.summary()
 	} else if predErr != nil {
-		b.Model = &ModelSummary{Config: *spec.Model, Warnings: []string{predErr.Error()}}
+		b.Model = &ModelSummary{Config: *sp.Model, Warnings: []string{predErr.Error()}}
 	}
 	return b, nil
 }
@@ -185,7 +186,7 @@ feed:
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
+func judgeFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
@@ -193,13 +194,13 @@ func judgeFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predi
 			n, tr = 0, nil
 		}
 	}()
-	return processFile(rd, spec, opts, pred, cs, path, policy)
+	return processFile(rd, sp, opts, pred, cs, path, policy)
 }
 
 // processFile reads and judges one file; it returns the unit, the bytes
 // read and the record measured (nil when none was), which lives in the
 // reader's buffers until its next file.
-func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
+func processFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
 	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []string{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
@@ -233,22 +234,22 @@ func processFile(rd *rigdata.Reader, spec *Spec, opts metrics.Options, pred *pre
 		u.Reasons = []string{fmt.Sprintf("log cannot be measured: %v", verr)}
 		return u, lg.Size, nil
 	}
-	steps := metrics.FindSteps(tr, spec.Steps.MinChange)
+	steps := metrics.FindSteps(tr, sp.Steps.MinChange)
 	u.Steps = make([]StepResult, 0, len(steps))
 	limit := metrics.Unknown("the log has no effort column")
 	if tr.Effort != nil {
-		limit = effortLimit(tr, spec)
+		limit = effortLimit(tr, sp)
 	}
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
-		sr := spec.JudgeStep(m)
+		sr := JudgeStep(sp, m)
 		sr.Evidence = stepEvidence(tr, m, opts, limit)
 		if pred != nil {
 			pred.attach(&sr, m, tr)
 		}
 		u.Steps = append(u.Steps, sr)
 	}
-	u.Verdict, u.Reasons = spec.JudgeUnit(u.Steps)
+	u.Verdict, u.Reasons = JudgeUnit(sp, u.Steps)
 	for i, st := range steps {
 		if cs.keep(path, st.Index, u.Steps[i].Verdict) {
 			u.Steps[i].Curve = normalisedCurve(tr, st, cs.window)

@@ -9,18 +9,19 @@ import (
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/report"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
 // benchBatch writes n demo units of 6 s (three steps at 1 kHz) once per
 // benchmark or test and returns the spec, the files and their bytes.
-func benchBatch(b testing.TB, n int) (*acceptance.Spec, []string, int64) {
+func benchBatch(b testing.TB, n int) (*spec.Spec, []string, int64) {
 	b.Helper()
 	dir := b.TempDir()
 	specPath, logDir, err := demo.Write(dir, demo.Options{Units: n, Duration: 6})
 	if err != nil {
 		b.Fatal(err)
 	}
-	spec, err := acceptance.LoadSpec(specPath)
+	spec, err := spec.Load(specPath)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -1,6 +1,7 @@
 package acceptance
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 
 	"github.com/stepgate/stepgate/acceptance/model"
@@ -26,7 +27,7 @@ type Batch struct {
 	Units   []UnitResult  `json:"units"`
 	Model   *ModelSummary `json:"model,omitempty"`
 	// Limits repeats the spec's limits for consumers that read only results.
-	Limits map[metrics.Name]Limit `json:"limits"`
+	Limits map[metrics.Name]spec.Limit `json:"limits"`
 	// ReportDate is the date the reports carry (RFC 3339 date).
 	ReportDate string `json:"report_date"`
 	// Notice says what the batch's verdicts are and are not.
@@ -36,7 +37,7 @@ type Batch struct {
 	TestDates DateRange `json:"test_dates"`
 
 	// SpecDoc is the full spec the batch ran under.
-	SpecDoc *Spec `json:"-"`
+	SpecDoc *spec.Spec `json:"-"`
 	// MaxPages caps the units with a detail page; 0 means no cap (see
 	// PageUnits and RunOptions.MaxUnitPages).
 	MaxPages int `json:"-"`

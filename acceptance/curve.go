@@ -1,6 +1,7 @@
 package acceptance
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"hash/fnv"
 	"math"
 
@@ -33,7 +34,7 @@ type curveSampler struct {
 	threshold uint64  // keep a passed step when its hash is below this
 }
 
-func newCurveSampler(spec *Spec, files int) *curveSampler {
+func newCurveSampler(spec *spec.Spec, files int) *curveSampler {
 	cs := &curveSampler{window: OverlayWindow(spec), threshold: math.MaxUint64}
 	if n := files * curvesPerFile; n > curvesWanted {
 		cs.threshold = uint64(float64(math.MaxUint64) * (float64(curvesWanted) / float64(n)))
@@ -53,7 +54,7 @@ func (cs *curveSampler) keep(path string, index int, v Verdict) bool {
 
 // OverlayWindow is the time window of the overlay chart: 1.5 times the
 // settling-time limit, else 2 s.
-func OverlayWindow(spec *Spec) float64 {
+func OverlayWindow(spec *spec.Spec) float64 {
 	if l, ok := spec.Limits[metrics.SettlingTime]; ok && l.Max != nil && *l.Max > 0 {
 		return OverlayWindowOverSettling * *l.Max
 	}

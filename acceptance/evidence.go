@@ -2,6 +2,7 @@ package acceptance
 
 import (
 	"fmt"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 
 	"github.com/stepgate/stepgate/metrics"
@@ -66,7 +67,7 @@ func stepEvidence(tr metrics.Trace, m metrics.StepMetrics, o metrics.Options, li
 
 // effortLimit is the spec's actuator effort limit, else the largest |effort|
 // of the record when the record holds it flat for flatRun samples or more.
-func effortLimit(tr metrics.Trace, spec *Spec) metrics.Value {
+func effortLimit(tr metrics.Trace, spec *spec.Spec) metrics.Value {
 	if spec.Model != nil && spec.Model.Actuator != nil && spec.Model.Actuator.EffortLimit > 0 {
 		return metrics.Known(spec.Model.Actuator.EffortLimit)
 	}

@@ -1,6 +1,7 @@
 package acceptance
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"testing"
 
@@ -31,14 +32,14 @@ func TestStepEvidenceSaturation(t *testing.T) {
 		tr.Response = append(tr.Response, y)
 		tr.Effort = append(tr.Effort, e)
 	}
-	spec := &Spec{Steps: StepRules{MinChange: 0.5}}
+	sp := &spec.Spec{Steps: spec.StepRules{MinChange: 0.5}}
 	cases := []struct {
 		name   string
-		spec   *Spec
+		spec   *spec.Spec
 		want   float64
 		wantOK bool
 	}{
-		{"limit found as the flat top", spec, 50, true},
+		{"limit found as the flat top", sp, 50, true},
 	}
 	for _, c := range cases {
 		steps := metrics.FindSteps(tr, 0.5)
@@ -53,7 +54,7 @@ func TestStepEvidenceSaturation(t *testing.T) {
 	}
 	tr.Effort = nil
 	steps := metrics.FindSteps(tr, 0.5)
-	ev := stepEvidence(tr, metrics.MeasureStep(tr, steps[0], spec.Options()), spec.Options(), metrics.Unknown("the log has no effort column"))
+	ev := stepEvidence(tr, metrics.MeasureStep(tr, steps[0], sp.Options()), sp.Options(), metrics.Unknown("the log has no effort column"))
 	if ev.EffortSaturatedPct.OK || ev.EffortSaturatedPct.Why == "" {
 		t.Errorf("no effort column: got %+v, want unknown with a reason", ev.EffortSaturatedPct)
 	}

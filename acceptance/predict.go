@@ -2,6 +2,7 @@ package acceptance
 
 import (
 	"fmt"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"sort"
 	"strings"
@@ -16,7 +17,7 @@ import (
 // sample period, so it is computed once per distinct step and shared.
 type predictor struct {
 	sys      *model.System
-	spec     *Spec
+	spec     *spec.Spec
 	opts     metrics.Options
 	realised bool
 
@@ -41,7 +42,7 @@ type predEntry struct {
 // newPredictor builds the spec's model; it returns nil and no error when the
 // spec has no model, and nil with the error when the model cannot be built
 // (the batch then reports the error and judges units without predictions).
-func newPredictor(spec *Spec) (*predictor, error) {
+func newPredictor(spec *spec.Spec) (*predictor, error) {
 	if spec.Model == nil {
 		return nil, nil
 	}

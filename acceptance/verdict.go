@@ -2,6 +2,7 @@ package acceptance
 
 import (
 	"fmt"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"strconv"
 	"strings"
@@ -9,7 +10,7 @@ import (
 	"github.com/stepgate/stepgate/metrics"
 )
 
-// JudgeStep applies the spec's limits to one step's metrics. The result
+// JudgeStep applies the limits of spec s's limits to one step's metrics. The result
 // carries every metric (null when unmeasured, with the reason in
 // Unmeasured) and one check per limit, in LimitNames order.
 //
@@ -22,7 +23,7 @@ import (
 // slow. The step fails when any check fails, else is invalid when any check
 // is invalid, else passes. Reasons list the failures first, then the
 // invalid checks.
-func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
+func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
 	r := StepResult{
 		Index:   m.Step.Index,
 		StartS:  m.Start,
@@ -37,7 +38,7 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 	r.Checks = make([]Check, 0, len(s.Limits))
 	values := make([]float64, len(s.Limits))
 	judge := func(name metrics.Name) {
-		c := s.judgeCheck(name, m, &values[len(r.Checks)])
+		c := judgeCheck(s, name, m, &values[len(r.Checks)])
 		r.Checks = append(r.Checks, c)
 		switch c.Verdict {
 		case Fail:
@@ -73,7 +74,7 @@ func (s *Spec) JudgeStep(m metrics.StepMetrics) StepResult {
 
 // judgeCheck applies one limit to one step; a known value is stored in
 // *slot, which the check's Value then points to.
-func (s *Spec) judgeCheck(name metrics.Name, m metrics.StepMetrics, slot *float64) Check {
+func judgeCheck(s *spec.Spec, name metrics.Name, m metrics.StepMetrics, slot *float64) Check {
 	lim := s.Limits[name]
 	// The bounds are the spec's own, shared by every check of the batch and
 	// never written through.
@@ -89,7 +90,7 @@ func (s *Spec) judgeCheck(name metrics.Name, m metrics.StepMetrics, slot *float6
 		if name == metrics.SettlingTime && lim.Max != nil && m.LastOutside.OK && m.LastOutside.V > *lim.Max {
 			c.Verdict = Fail
 			c.Reason = fmt.Sprintf("%s > %s at step %d: still outside the ±%s %% band %s s after the step",
-				name, specFormatFloat(*lim.Max), step, specPct(s.Options().Band), verdictNumber(m.LastOutside.V, *lim.Max))
+				name, formatFloat(*lim.Max), step, pct(s.Options().Band), verdictNumber(m.LastOutside.V, *lim.Max))
 			return c
 		}
 		c.Verdict = Invalid
@@ -101,10 +102,10 @@ func (s *Spec) judgeCheck(name metrics.Name, m metrics.StepMetrics, slot *float6
 	switch {
 	case lim.Min != nil && v.V < *lim.Min:
 		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("%s %s < %s at step %d", name, verdictNumber(v.V, *lim.Min), specFormatFloat(*lim.Min), step)
+		c.Reason = fmt.Sprintf("%s %s < %s at step %d", name, verdictNumber(v.V, *lim.Min), formatFloat(*lim.Min), step)
 	case lim.Max != nil && v.V > *lim.Max:
 		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("%s %s > %s at step %d", name, verdictNumber(v.V, *lim.Max), specFormatFloat(*lim.Max), step)
+		c.Reason = fmt.Sprintf("%s %s > %s at step %d", name, verdictNumber(v.V, *lim.Max), formatFloat(*lim.Max), step)
 	default:
 		c.Verdict = Pass
 	}
@@ -114,10 +115,10 @@ func (s *Spec) judgeCheck(name metrics.Name, m metrics.StepMetrics, slot *float6
 // JudgeUnit combines a unit's step results: invalid when no step was found,
 // fail when any step fails, else invalid when any step is invalid, else
 // pass. The reasons are every step's reasons, in step order.
-func (s *Spec) JudgeUnit(steps []StepResult) (Verdict, []string) {
+func JudgeUnit(s *spec.Spec, steps []StepResult) (Verdict, []string) {
 	if len(steps) == 0 {
 		return Invalid, []string{fmt.Sprintf("no step found: the command never changed by min_change %s%s",
-			specFormatFloat(s.Steps.MinChange), specUnitSuffix(s.ResponseUnit))}
+			formatFloat(s.Steps.MinChange), unitSuffix(s.ResponseUnit))}
 	}
 	reasons := []string{}
 	anyFail, anyInvalid := false, false
@@ -170,13 +171,13 @@ func verdictWhy(v metrics.Value) string {
 // adding digits only when 4 would make it read the same as the limit it is
 // compared with.
 func verdictNumber(v, limit float64) string {
-	lim := specFormatFloat(limit)
+	lim := formatFloat(limit)
 	for digits := 4; digits < 17; digits++ {
 		if s := verdictSig(v, digits); s != lim || v == limit {
 			return s
 		}
 	}
-	return specFormatFloat(v)
+	return formatFloat(v)
 }
 
 // verdictSig writes v rounded to the given significant digits, in plain
@@ -201,4 +202,23 @@ func verdictSig(v float64, digits int) string {
 		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
 	}
 	return s
+}
+
+// formatFloat writes a number as the shortest text that reads back to it,
+// so a limit appears as written in the spec.
+func formatFloat(f float64) string {
+	return strconv.FormatFloat(f, 'g', -1, 64)
+}
+
+// pct writes a fraction as a percentage without float noise.
+func pct(f float64) string {
+	return strconv.FormatFloat(f*100, 'g', 10, 64)
+}
+
+// unitSuffix is " u", or "" without a unit.
+func unitSuffix(u string) string {
+	if u == "" {
+		return ""
+	}
+	return " " + u
 }

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -58,93 +59,93 @@ func TestJudgeStep(t *testing.T) {
 	noLast := unk("step has no samples")
 	cases := []struct {
 		name    string
-		limits  map[metrics.Name]acceptance.Limit
+		limits  map[metrics.Name]spec.Limit
 		over    map[metrics.Name]metrics.Value
 		last    metrics.Value
 		verdict acceptance.Verdict
 		reasons []string
 	}{
-		{"max only, inside", map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: verdictF(8)}},
+		{"max only, inside", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
 			nil, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"max only, on the limit", map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: verdictF(8)}},
+		{"max only, on the limit", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
 			map[metrics.Name]metrics.Value{metrics.Overshoot: metrics.Known(8)}, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"max only, above", map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: verdictF(8)}},
+		{"max only, above", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
 			map[metrics.Name]metrics.Value{metrics.Overshoot: metrics.Known(9.1)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"overshoot_pct 9.1 > 8 at step 2"}},
-		{"min only, inside", map[metrics.Name]acceptance.Limit{"dead_time_s": {Min: verdictF(0.001)}},
+		{"min only, inside", map[metrics.Name]spec.Limit{"dead_time_s": {Min: verdictF(0.001)}},
 			nil, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"min only, on the limit", map[metrics.Name]acceptance.Limit{"dead_time_s": {Min: verdictF(0.001)}},
+		{"min only, on the limit", map[metrics.Name]spec.Limit{"dead_time_s": {Min: verdictF(0.001)}},
 			map[metrics.Name]metrics.Value{metrics.DeadTime: metrics.Known(0.001)}, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"min only, below", map[metrics.Name]acceptance.Limit{"dead_time_s": {Min: verdictF(0.001)}},
+		{"min only, below", map[metrics.Name]spec.Limit{"dead_time_s": {Min: verdictF(0.001)}},
 			map[metrics.Name]metrics.Value{metrics.DeadTime: metrics.Known(0.0005)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"dead_time_s 0.0005 < 0.001 at step 2"}},
-		{"both, inside", map[metrics.Name]acceptance.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
+		{"both, inside", map[metrics.Name]spec.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
 			nil, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"both, on min", map[metrics.Name]acceptance.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
+		{"both, on min", map[metrics.Name]spec.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
 			map[metrics.Name]metrics.Value{metrics.FinalValue: metrics.Known(9.9)}, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"both, on max", map[metrics.Name]acceptance.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
+		{"both, on max", map[metrics.Name]spec.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
 			map[metrics.Name]metrics.Value{metrics.FinalValue: metrics.Known(10.1)}, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"both, below", map[metrics.Name]acceptance.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
+		{"both, below", map[metrics.Name]spec.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
 			map[metrics.Name]metrics.Value{metrics.FinalValue: metrics.Known(9.87654)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"final_value 9.877 < 9.9 at step 2"}},
-		{"both, above", map[metrics.Name]acceptance.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
+		{"both, above", map[metrics.Name]spec.Limit{"final_value": {Min: verdictF(9.9), Max: verdictF(10.1)}},
 			map[metrics.Name]metrics.Value{metrics.FinalValue: metrics.Known(10.25)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"final_value 10.25 > 10.1 at step 2"}},
-		{"four significant digits", map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: verdictF(0.12)}},
+		{"four significant digits", map[metrics.Name]spec.Limit{"rise_time_s": {Max: verdictF(0.12)}},
 			map[metrics.Name]metrics.Value{metrics.RiseTime: metrics.Known(0.123456)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"rise_time_s 0.1235 > 0.12 at step 2"}},
-		{"digits added to tell value from limit", map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: verdictF(8)}},
+		{"digits added to tell value from limit", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
 			map[metrics.Name]metrics.Value{metrics.Overshoot: metrics.Known(8.00001)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"overshoot_pct 8.00001 > 8 at step 2"}},
-		{"limited null is invalid", map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: verdictF(0.12)}},
+		{"limited null is invalid", map[metrics.Name]spec.Limit{"rise_time_s": {Max: verdictF(0.12)}},
 			map[metrics.Name]metrics.Value{metrics.RiseTime: unk("initial value unknown: only 2 samples before the step")}, metrics.Known(0.2),
 			acceptance.Invalid, []string{"rise_time_s not measured at step 2: initial value unknown: only 2 samples before the step"}},
-		{"null without a reason", map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: verdictF(0.12)}},
+		{"null without a reason", map[metrics.Name]spec.Limit{"rise_time_s": {Max: verdictF(0.12)}},
 			map[metrics.Name]metrics.Value{metrics.RiseTime: {}}, metrics.Known(0.2),
 			acceptance.Invalid, []string{"rise_time_s not measured at step 2: no reason recorded"}},
-		{"unlimited null does not matter", map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: verdictF(8)}},
+		{"unlimited null does not matter", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
 			map[metrics.Name]metrics.Value{metrics.PeakTime: unk("x"), metrics.SettlingTime: unk("y")}, metrics.Known(0.2), acceptance.Pass, []string{}},
-		{"settling proven too slow", map[metrics.Name]acceptance.Limit{"settling_time_s": {Max: verdictF(0.35)}},
+		{"settling proven too slow", map[metrics.Name]spec.Limit{"settling_time_s": {Max: verdictF(0.35)}},
 			map[metrics.Name]metrics.Value{metrics.SettlingTime: unk("still outside the band at the end of the record")}, metrics.Known(0.52),
 			acceptance.Fail, []string{"settling_time_s > 0.35 at step 2: still outside the ±2 % band 0.52 s after the step"}},
-		{"settling unknown, last outside within max", map[metrics.Name]acceptance.Limit{"settling_time_s": {Max: verdictF(0.35)}},
+		{"settling unknown, last outside within max", map[metrics.Name]spec.Limit{"settling_time_s": {Max: verdictF(0.35)}},
 			map[metrics.Name]metrics.Value{metrics.SettlingTime: unk("final value unknown: record ends too early")}, metrics.Known(0.3),
 			acceptance.Invalid, []string{"settling_time_s not measured at step 2: final value unknown: record ends too early"}},
-		{"settling unknown, last outside equals max", map[metrics.Name]acceptance.Limit{"settling_time_s": {Max: verdictF(0.35)}},
+		{"settling unknown, last outside equals max", map[metrics.Name]spec.Limit{"settling_time_s": {Max: verdictF(0.35)}},
 			map[metrics.Name]metrics.Value{metrics.SettlingTime: unk("z")}, metrics.Known(0.35),
 			acceptance.Invalid, []string{"settling_time_s not measured at step 2: z"}},
-		{"settling unknown, last outside unknown", map[metrics.Name]acceptance.Limit{"settling_time_s": {Max: verdictF(0.35)}},
+		{"settling unknown, last outside unknown", map[metrics.Name]spec.Limit{"settling_time_s": {Max: verdictF(0.35)}},
 			map[metrics.Name]metrics.Value{metrics.SettlingTime: unk("z")}, noLast,
 			acceptance.Invalid, []string{"settling_time_s not measured at step 2: z"}},
-		{"settling unknown, min only: no proof", map[metrics.Name]acceptance.Limit{"settling_time_s": {Min: verdictF(0.01)}},
+		{"settling unknown, min only: no proof", map[metrics.Name]spec.Limit{"settling_time_s": {Min: verdictF(0.01)}},
 			map[metrics.Name]metrics.Value{metrics.SettlingTime: unk("z")}, metrics.Known(0.9),
 			acceptance.Invalid, []string{"settling_time_s not measured at step 2: z"}},
-		{"other metric unknown, no settling proof", map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: verdictF(0.35)}},
+		{"other metric unknown, no settling proof", map[metrics.Name]spec.Limit{"rise_time_s": {Max: verdictF(0.35)}},
 			map[metrics.Name]metrics.Value{metrics.RiseTime: unk("z")}, metrics.Known(0.9),
 			acceptance.Invalid, []string{"rise_time_s not measured at step 2: z"}},
 		{"fail and invalid: fail, failures first",
-			map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: verdictF(0.12)}, "overshoot_pct": {Max: verdictF(8)}, "dead_time_s": {Max: verdictF(0.01)}},
+			map[metrics.Name]spec.Limit{"rise_time_s": {Max: verdictF(0.12)}, "overshoot_pct": {Max: verdictF(8)}, "dead_time_s": {Max: verdictF(0.01)}},
 			map[metrics.Name]metrics.Value{metrics.DeadTime: unk("a"), metrics.RiseTime: metrics.Known(0.2), metrics.Overshoot: metrics.Known(12)}, metrics.Known(0.2),
 			acceptance.Fail, []string{"rise_time_s 0.2 > 0.12 at step 2", "overshoot_pct 12 > 8 at step 2", "dead_time_s not measured at step 2: a"}},
 		{"pass and invalid: invalid",
-			map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: verdictF(0.12)}, "overshoot_pct": {Max: verdictF(8)}},
+			map[metrics.Name]spec.Limit{"rise_time_s": {Max: verdictF(0.12)}, "overshoot_pct": {Max: verdictF(8)}},
 			map[metrics.Name]metrics.Value{metrics.Overshoot: unk("b")}, metrics.Known(0.2),
 			acceptance.Invalid, []string{"overshoot_pct not measured at step 2: b"}},
-		{"large value", map[metrics.Name]acceptance.Limit{"peak_value": {Max: verdictF(12000)}},
+		{"large value", map[metrics.Name]spec.Limit{"peak_value": {Max: verdictF(12000)}},
 			map[metrics.Name]metrics.Value{metrics.PeakValue: metrics.Known(12345.6)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"peak_value 12350 > 12000 at step 2"}},
-		{"tiny value", map[metrics.Name]acceptance.Limit{"dead_time_s": {Max: verdictF(0.00001)}},
+		{"tiny value", map[metrics.Name]spec.Limit{"dead_time_s": {Max: verdictF(0.00001)}},
 			map[metrics.Name]metrics.Value{metrics.DeadTime: metrics.Known(0.0000456)}, metrics.Known(0.2), acceptance.Fail,
 			[]string{"dead_time_s 4.56e-05 > 1e-05 at step 2"}},
-		{"limit on a name that is not a metric", map[metrics.Name]acceptance.Limit{"jerk": {Max: verdictF(1)}},
+		{"limit on a name that is not a metric", map[metrics.Name]spec.Limit{"jerk": {Max: verdictF(1)}},
 			nil, metrics.Known(0.2), acceptance.Invalid, []string{"jerk is not a metric stepgate measures (step 2)"}},
 		{"no limits", nil, nil, metrics.Known(0.2), acceptance.Pass, []string{}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			s := &acceptance.Spec{Limits: c.limits, Metrics: acceptance.MetricRules{SettlingBandPct: 2}}
+			s := &spec.Spec{Limits: c.limits, Metrics: spec.MetricRules{SettlingBandPct: 2}}
 			m := verdictStep(c.over, c.last)
-			r := s.JudgeStep(m)
+			r := acceptance.JudgeStep(s, m)
 			if r.Verdict != c.verdict {
 				t.Errorf("verdict = %s, want %s", r.Verdict, c.verdict)
 			}
@@ -194,9 +195,9 @@ func TestJudgeStep(t *testing.T) {
 // TestJudgeStepJSON checks that an unmeasured metric is written as null with
 // its reason beside it, never as 0.
 func TestJudgeStepJSON(t *testing.T) {
-	s := &acceptance.Spec{Limits: map[metrics.Name]acceptance.Limit{"settling_time_s": {Max: verdictF(0.35)}}}
+	s := &spec.Spec{Limits: map[metrics.Name]spec.Limit{"settling_time_s": {Max: verdictF(0.35)}}}
 	m := verdictStep(map[metrics.Name]metrics.Value{metrics.SettlingTime: metrics.Unknown("record too short")}, metrics.Known(0.1))
-	b, err := json.Marshal(s.JudgeStep(m))
+	b, err := json.Marshal(acceptance.JudgeStep(s, m))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -232,10 +233,10 @@ func TestJudgeUnit(t *testing.T) {
 			acceptance.Fail, []string{"i1", "f2a", "f2b"}},
 		{"unset verdict is not a pass", []acceptance.StepResult{step(1, "")}, acceptance.Invalid, []string{}},
 	}
-	s := &acceptance.Spec{Steps: acceptance.StepRules{MinChange: 0.5}, ResponseUnit: "mm"}
+	s := &spec.Spec{Steps: spec.StepRules{MinChange: 0.5}, ResponseUnit: "mm"}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			v, reasons := s.JudgeUnit(c.steps)
+			v, reasons := acceptance.JudgeUnit(s, c.steps)
 			if v != c.verdict || !reflect.DeepEqual(reasons, c.reasons) {
 				t.Errorf("JudgeUnit = %s %q, want %s %q", v, reasons, c.verdict, c.reasons)
 			}

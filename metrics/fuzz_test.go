@@ -8,6 +8,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -62,7 +63,7 @@ func fuzzSeeds(f *testing.F) [][]byte {
 		{"../testdata/specs/vd25.yaml", "../testdata/logs/vd25-000123.csv"},
 		{"../testdata/specs/plant_loop.yaml", "../testdata/logs/vd25-000124.csv"},
 	} {
-		spec, err := acceptance.LoadSpec(set.spec)
+		spec, err := spec.Load(set.spec)
 		if err != nil {
 			f.Fatal(err)
 		}
@@ -135,11 +136,11 @@ func measureOne(t *testing.T, data []byte, minChange, band, window, lo, hi float
 			m = metrics.MeasureStep(tr, s, o)
 		}
 		checkMetrics(t, tr, s, m, o)
-		r := spec.JudgeStep(m)
+		r := acceptance.JudgeStep(spec, m)
 		checkVerdict(t, spec, m, r)
 		results = append(results, r)
 	}
-	v, reasons := spec.JudgeUnit(results)
+	v, reasons := acceptance.JudgeUnit(spec, results)
 	switch {
 	case len(results) == 0 && v != acceptance.Invalid:
 		t.Fatalf("unit without steps is %s", v)
@@ -164,14 +165,14 @@ func measureOne(t *testing.T, data []byte, minChange, band, window, lo, hi float
 // fuzzSpec limits every metric, alternately from below by lo and from above
 // by hi (the settling time from above, so that the record's evidence rule
 // is exercised).
-func fuzzSpec(lo, hi float64) *acceptance.Spec {
-	s := &acceptance.Spec{Limits: map[metrics.Name]acceptance.Limit{}}
+func fuzzSpec(lo, hi float64) *spec.Spec {
+	s := &spec.Spec{Limits: map[metrics.Name]spec.Limit{}}
 	for i, n := range metrics.Names {
 		l, h := lo, hi
 		if i%2 == 0 && n != metrics.SettlingTime {
-			s.Limits[n] = acceptance.Limit{Min: &l}
+			s.Limits[n] = spec.Limit{Min: &l}
 		} else {
-			s.Limits[n] = acceptance.Limit{Max: &h}
+			s.Limits[n] = spec.Limit{Max: &h}
 		}
 	}
 	return s
@@ -273,7 +274,7 @@ func checkValue(t *testing.T, name string, v metrics.Value) {
 }
 
 // checkVerdict checks the decision rule on one judged step.
-func checkVerdict(t *testing.T, spec *acceptance.Spec, m metrics.StepMetrics, r acceptance.StepResult) {
+func checkVerdict(t *testing.T, spec *spec.Spec, m metrics.StepMetrics, r acceptance.StepResult) {
 	for _, name := range spec.LimitNames() {
 		v, _ := m.Get(name)
 		l := spec.Limits[name]
@@ -307,7 +308,7 @@ func within(v, lo, hi float64) bool {
 // TestFuzzSeedsDecode checks the fuzz encoding on the test data: a seed
 // decodes to the record it was made from, to float32 precision.
 func TestFuzzSeedsDecode(t *testing.T) {
-	spec, err := acceptance.LoadSpec("../testdata/bad/specs/corpus.yaml")
+	spec, err := spec.Load("../testdata/bad/specs/corpus.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -16,6 +16,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/report"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
 // The fault tests run stepgate as a user does, as a separate process, so
@@ -290,7 +291,7 @@ func TestVanishingInput(t *testing.T) {
 		os.WriteFile(p, data, 0o644)
 		files = append(files, p)
 	}
-	spec, err := acceptance.LoadSpec("../../testdata/e2e/spec.yaml")
+	spec, err := spec.Load("../../testdata/e2e/spec.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -8,9 +8,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -132,7 +132,7 @@ func (o identifyOptions) logFormat() (rigdata.Format, float64, error) {
 	minChange := defaultMinChange
 	var f rigdata.Format
 	if o.Spec != "" {
-		spec, err := acceptance.LoadSpec(o.Spec)
+		spec, err := spec.Load(o.Spec)
 		if err != nil {
 			return f, 0, err
 		}

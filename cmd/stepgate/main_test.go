@@ -10,7 +10,7 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
-	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
 // captureRun runs the command line with stdout and stderr captured.
@@ -274,7 +274,7 @@ func TestSpecInitParses(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d", code)
 	}
-	if _, err := acceptance.ParseSpec([]byte(stdout), "template.yaml"); err != nil {
+	if _, err := spec.Parse([]byte(stdout), "template.yaml"); err != nil {
 		t.Fatalf("template does not parse: %v", err)
 	}
 }

@@ -10,6 +10,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 	"github.com/stepgate/stepgate/templates"
 )
@@ -149,8 +150,8 @@ func runPredict(s streams, o predictOptions) error {
 }
 
 // loadModel loads the spec and builds its model.
-func loadModel(path string) (*acceptance.Spec, *model.System, error) {
-	spec, err := acceptance.LoadSpec(path)
+func loadModel(path string) (*spec.Spec, *model.System, error) {
+	spec, err := spec.Load(path)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -168,7 +169,7 @@ func loadModel(path string) (*acceptance.Spec, *model.System, error) {
 // twice the model's settling horizon, so that the final window of the
 // metrics lies well inside the settled response, and 1 ms or the loop's
 // sample period when that is shorter.
-func (o predictOptions) timing(spec *acceptance.Spec, sys *model.System) (duration, dt float64, err error) {
+func (o predictOptions) timing(spec *spec.Spec, sys *model.System) (duration, dt float64, err error) {
 	duration, dt = o.Duration, o.Sample
 	if duration == 0 {
 		if duration, err = sys.SuggestedDuration(); err != nil {
@@ -226,7 +227,7 @@ func abs(x float64) float64 {
 	return x
 }
 
-func printPrediction(w io.Writer, spec *acceptance.Spec, out predictOutput) {
+func printPrediction(w io.Writer, spec *spec.Spec, out predictOutput) {
 	c := out.Controller
 	fmt.Fprintf(w, "%s rev %s model\n  plant: %s\n  controller: kp %g, ki %g, kd %g\n", spec.SpecID, spec.Revision, out.Plant, c.Kp, c.Ki, c.Kd)
 	fmt.Fprintf(w, "  step %g → %g, %.4g s after the step, sampled every %g s\n\n", out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS)

@@ -13,6 +13,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance/report"
 	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
 // runOptions are the options of `stepgate run`, one field per flag with the
@@ -78,7 +79,7 @@ func newRunCmd() *cobra.Command {
 
 // runInputs is what a run has resolved before it reads a log.
 type runInputs struct {
-	spec   *acceptance.Spec
+	spec   *spec.Spec
 	date   string // the report date given, or ""
 	outAbs string // the output directory, absolute
 	files  []string
@@ -149,7 +150,7 @@ func (o runOptions) check() (date string, err error) {
 func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 	in := runInputs{date: date}
 	var err error
-	if in.spec, err = acceptance.LoadSpec(o.Spec); err != nil {
+	if in.spec, err = spec.Load(o.Spec); err != nil {
 		return in, err
 	}
 	if in.outAbs, err = filepath.Abs(o.Out); err != nil {

@@ -5,7 +5,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/templates"
 )
 
@@ -50,7 +50,7 @@ func specInit(s streams) error {
 
 // specCheck loads o.File and prints its digest and what it will do.
 func specCheck(s streams, o specCheckOptions) error {
-	spec, err := acceptance.LoadSpec(o.File)
+	spec, err := spec.Load(o.File)
 	if err != nil {
 		return usageErr(err)
 	}

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/plot/vg/recorder"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -157,11 +158,11 @@ func TestDownsampleKeepsPeak(t *testing.T) {
 // without, a settling-time limit and an ideal prediction.
 func overlayBatch() *acceptance.Batch {
 	b := &acceptance.Batch{
-		Limits: map[metrics.Name]acceptance.Limit{metrics.SettlingTime: {Max: ptr(1.2)}},
+		Limits: map[metrics.Name]spec.Limit{metrics.SettlingTime: {Max: ptr(1.2)}},
 		Model: &acceptance.ModelSummary{Nominal: []acceptance.NominalPrediction{{
 			From: 0, To: 10, IdealTrace: secondOrder(0.6, 5, 0.002, 4, 0, 0, 10),
 		}}},
-		SpecDoc: &acceptance.Spec{Metrics: acceptance.MetricRules{SettlingBandPct: 5}},
+		SpecDoc: &spec.Spec{Metrics: spec.MetricRules{SettlingBandPct: 5}},
 	}
 	add := func(name string, v acceptance.Verdict, zeta float64, keep bool) {
 		u := acceptance.UnitResult{Unit: name, Verdict: v, Steps: []acceptance.StepResult{
@@ -230,7 +231,7 @@ func TestForBatch(t *testing.T) {
 }
 
 func TestThin(t *testing.T) {
-	b := &acceptance.Batch{Limits: map[metrics.Name]acceptance.Limit{}}
+	b := &acceptance.Batch{Limits: map[metrics.Name]spec.Limit{}}
 	tr := secondOrder(0.7, 5, 0.05, 2, 0.5, 0, 1)
 	for i := 0; i < MaxCurves+100; i++ {
 		v := acceptance.Pass

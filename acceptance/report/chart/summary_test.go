@@ -12,6 +12,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -108,8 +109,8 @@ func unitBatch(steps int) *acceptance.Batch {
 	}
 	return &acceptance.Batch{
 		Units:   []acceptance.UnitResult{u},
-		Limits:  map[metrics.Name]acceptance.Limit{"rise_time_s": {Max: ptr(0.6)}, "settling_time_s": {Max: ptr(1.6)}, "overshoot_pct": {Max: ptr(20)}},
-		SpecDoc: &acceptance.Spec{ResponseUnit: "mm"},
+		Limits:  map[metrics.Name]spec.Limit{"rise_time_s": {Max: ptr(0.6)}, "settling_time_s": {Max: ptr(1.6)}, "overshoot_pct": {Max: ptr(20)}},
+		SpecDoc: &spec.Spec{ResponseUnit: "mm"},
 		Model: &acceptance.ModelSummary{Nominal: []acceptance.NominalPrediction{{
 			From: 0, To: 10, IdealTrace: secondOrder(0.6, 5, 0.002, 3, 0.1, 0, 10)}}},
 	}

@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"regexp"
 	"testing"
@@ -14,7 +15,7 @@ import (
 // 5th ed., §5-3), and a model predicting ζ = 0.6, 9.48 % (Ogata Example
 // 5-1, from memory).
 func compareBatch() *acceptance.Batch {
-	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: ptr(15)}}
+	limits := map[metrics.Name]spec.Limit{"overshoot_pct": {Max: ptr(15)}}
 	os := func(z float64) float64 { return 100 * math.Exp(-math.Pi*z/math.Sqrt(1-z*z)) }
 	var units []acceptance.UnitResult
 	for i, z := range []float64{0.6, 0.25, 0.7} {

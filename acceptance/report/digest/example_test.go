@@ -5,12 +5,13 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
 func ExampleNew() {
 	max := 10.0
-	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &max}}
+	limits := map[metrics.Name]spec.Limit{"overshoot_pct": {Max: &max}}
 	b := &acceptance.Batch{
 		Spec:       acceptance.SpecInfo{SpecID: "DEMO", Revision: "A"},
 		Limits:     limits,

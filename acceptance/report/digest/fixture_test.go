@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 
 	"github.com/stepgate/stepgate/acceptance"
@@ -11,8 +12,8 @@ import (
 func ptr(v float64) *float64 { return &v }
 
 // step is a judged step 0 → 10 with the given metrics; the checks follow
-// the limits the way acceptance.Spec.JudgeStep reports them.
-func step(index int, limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]float64, unmeasured ...metrics.Name) acceptance.StepResult {
+// the limits the way acceptance.JudgeStep reports them.
+func step(index int, limits map[metrics.Name]spec.Limit, m map[metrics.Name]float64, unmeasured ...metrics.Name) acceptance.StepResult {
 	s := acceptance.StepResult{Index: index, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Pass,
 		Metrics: acceptance.MetricsOf(nil)}
 	for k, v := range m {
@@ -49,7 +50,7 @@ func step(index int, limits map[metrics.Name]acceptance.Limit, m map[metrics.Nam
 	return s
 }
 
-// unit wraps steps into a unit judged the way acceptance.Spec.JudgeUnit
+// unit wraps steps into a unit judged the way acceptance.JudgeUnit
 // does: fail when a step fails, else invalid when one is invalid.
 func unit(id string, steps ...acceptance.StepResult) acceptance.UnitResult {
 	u := acceptance.UnitResult{Unit: id, File: id + ".csv", SHA256: "00" + id, Verdict: acceptance.Pass, Steps: steps, Reasons: []string{}}
@@ -69,7 +70,7 @@ func unit(id string, steps ...acceptance.StepResult) acceptance.UnitResult {
 }
 
 // batch collects units under limits and counts their verdicts.
-func batch(limits map[metrics.Name]acceptance.Limit, units ...acceptance.UnitResult) *acceptance.Batch {
+func batch(limits map[metrics.Name]spec.Limit, units ...acceptance.UnitResult) *acceptance.Batch {
 	b := &acceptance.Batch{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
 		Spec:       acceptance.SpecInfo{SpecID: "ACT-25", Revision: "C", SHA256: "ab"},
@@ -77,7 +78,7 @@ func batch(limits map[metrics.Name]acceptance.Limit, units ...acceptance.UnitRes
 		ReportDate: "2024-05-17",
 		Units:      units,
 		Summary:    acceptance.Count(units),
-		SpecDoc:    &acceptance.Spec{ResponseUnit: "mm", Limits: limits},
+		SpecDoc:    &spec.Spec{ResponseUnit: "mm", Limits: limits},
 	}
 	return b
 }

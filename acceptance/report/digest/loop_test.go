@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"strings"
 	"testing"
@@ -48,7 +49,7 @@ func TestLoopModel(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			b := batch(map[metrics.Name]acceptance.Limit{})
+			b := batch(map[metrics.Name]spec.Limit{})
 			b.Model = &acceptance.ModelSummary{Config: tc.cfg, Realised: tc.realised}
 			l := summariseLoop(b)
 			check := func(what string, v metrics.Value, want float64) {
@@ -94,7 +95,7 @@ func TestLoopModel(t *testing.T) {
 // ζ = 0.6, ωn = 5 rad/s behind a 20 ms dead time (Ogata, 5th ed., §5-3), so
 // the fit must return those values.
 func TestLoopModelFit(t *testing.T) {
-	b := batch(map[metrics.Name]acceptance.Limit{})
+	b := batch(map[metrics.Name]spec.Limit{})
 	b.SpecDoc.Steps.MinChange = 1
 	b.Model = &acceptance.ModelSummary{Config: plantModel(25, 6, 1), Nominal: []acceptance.NominalPrediction{{
 		From: 0, To: 10, IdealTrace: closedForm(1, 0.6, 5, 0.02, 10, 0.5, 0.002, 4),
@@ -125,7 +126,7 @@ func TestLoopModelFit(t *testing.T) {
 
 // TestLoopBatch: the statistics of the units' fits over known values.
 func TestLoopBatch(t *testing.T) {
-	b := batch(map[metrics.Name]acceptance.Limit{})
+	b := batch(map[metrics.Name]spec.Limit{})
 	b.Model = &acceptance.ModelSummary{Config: plantModel(48.4, 19.8, 4.5)}
 	for i, wn := range []float64{10, 12, 14} {
 		u := unit(string(rune('A' + i)))

@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"strings"
 	"testing"
 
@@ -15,7 +16,7 @@ import (
 // model's dead time is the plant's 4 ms plus the loop delay of 2 ms and
 // half the 1 ms sample period: 6.5 ms.
 func notesBatch() *acceptance.Batch {
-	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: ptr(20)}, "steady_state_error": {Max: ptr(1)}}
+	limits := map[metrics.Name]spec.Limit{"overshoot_pct": {Max: ptr(20)}, "steady_state_error": {Max: ptr(1)}}
 	var units []acceptance.UnitResult
 	for i, wn := range []float64{12, 12.1, 11.9, 12} {
 		s := step(1, limits, map[metrics.Name]float64{"overshoot_pct": 5, "steady_state_error": 0.01})

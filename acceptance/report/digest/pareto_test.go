@@ -2,17 +2,18 @@ package digest
 
 import (
 	"fmt"
-	"github.com/stepgate/stepgate/metrics"
 	"strings"
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
+	"github.com/stepgate/stepgate/metrics"
 )
 
 // TestPareto counts the reasons of the units that did not pass. The
 // expected counts follow from the units below by hand.
 func TestPareto(t *testing.T) {
-	limits := map[metrics.Name]acceptance.Limit{
+	limits := map[metrics.Name]spec.Limit{
 		"overshoot_pct":   {Max: ptr(10)},
 		"rise_time_s":     {Min: ptr(0.1), Max: ptr(0.5)},
 		"settling_time_s": {Max: ptr(1)},

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -242,7 +243,7 @@ func statistics(b *acceptance.Batch, limited []metrics.Name, unit string) map[me
 }
 
 // binning lays out the histogram bins over the measured range.
-func (a *accum) binning(lim acceptance.Limit) {
+func (a *accum) binning(lim spec.Limit) {
 	k := int(math.Ceil(2 * math.Sqrt(float64(a.n))))
 	k = min(max(k, MinBins), MaxBins)
 	lo, hi := a.lo, a.hi
@@ -288,7 +289,7 @@ func (a *accum) binning(lim acceptance.Limit) {
 }
 
 // markOutside flags the bins that can hold only values outside the limits.
-func (a *accum) markOutside(lim acceptance.Limit) {
+func (a *accum) markOutside(lim spec.Limit) {
 	for j := range a.bins {
 		bn := &a.bins[j]
 		above := lim.Max != nil && (bn.Lo > *lim.Max || (bn.Lo == *lim.Max && a.rightClosed))
@@ -325,7 +326,7 @@ func (a *accum) bin(v float64) int {
 	return j
 }
 
-func (a *accum) result(name metrics.Name, limits map[metrics.Name]acceptance.Limit, unit string) *MetricStats {
+func (a *accum) result(name metrics.Name, limits map[metrics.Name]spec.Limit, unit string) *MetricStats {
 	lim, limited := limits[name]
 	s := &MetricStats{
 		Metric: name, Label: MetricLabel(name), Unit: MetricUnit(name, unit),

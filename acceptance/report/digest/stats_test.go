@@ -1,6 +1,7 @@
 package digest
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"strings"
 	"testing"
@@ -69,7 +70,7 @@ func TestCapable(t *testing.T) {
 // sample standard deviation (n − 1) is √(32/7) = 2.1381 (definition of the
 // sample standard deviation; hand-worked).
 func TestStatistics(t *testing.T) {
-	limits := map[metrics.Name]acceptance.Limit{
+	limits := map[metrics.Name]spec.Limit{
 		metrics.Overshoot:    {Max: ptr(10)},
 		metrics.RiseTime:     {Min: ptr(0.5), Max: ptr(2)},
 		metrics.SettlingTime: {Max: ptr(3)},
@@ -142,7 +143,7 @@ func TestStatistics(t *testing.T) {
 // TestStatisticsUnknown: one measured step has no standard deviation, and
 // a metric measured nowhere has unknown statistics, not zeros.
 func TestStatisticsUnknown(t *testing.T) {
-	limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: ptr(10)}, "settling_time_s": {Max: ptr(1)}}
+	limits := map[metrics.Name]spec.Limit{"overshoot_pct": {Max: ptr(10)}, "settling_time_s": {Max: ptr(1)}}
 	d, err := New(batch(limits, unit("A", step(1, limits, map[metrics.Name]float64{"overshoot_pct": 3}, "settling_time_s"))))
 	if err != nil {
 		t.Fatal(err)
@@ -163,31 +164,31 @@ func TestStatisticsUnknown(t *testing.T) {
 func TestBins(t *testing.T) {
 	tests := []struct {
 		name     string
-		lim      acceptance.Limit
+		lim      spec.Limit
 		values   []float64
 		lo       float64 // first edge
 		counts   []int
 		outside  []bool
 		rightCls bool
 	}{
-		{"maximum 4.5", acceptance.Limit{Max: ptr(4.5)}, nil, -0.5,
+		{"maximum 4.5", spec.Limit{Max: ptr(4.5)}, nil, -0.5,
 			[]int{1, 2, 1, 1, 1, 2, 1, 1, 1}, []bool{false, false, false, false, true, true, true, true, true}, true},
 		// A value exactly on the maximum 5 passes: it lies in (3.75, 5].
-		{"maximum on a value", acceptance.Limit{Max: ptr(5)}, nil, 0,
+		{"maximum on a value", spec.Limit{Max: ptr(5)}, nil, 0,
 			[]int{2, 1, 1, 2, 1, 1, 1, 2}, []bool{false, false, false, false, true, true, true, true}, true},
 		// A minimum of 2 holds 2 in [2, 3.25), the passing side; 7 lies on
 		// the edge of [7, 8.25).
-		{"minimum 2", acceptance.Limit{Min: ptr(2)}, nil, -0.5,
+		{"minimum 2", spec.Limit{Min: ptr(2)}, nil, -0.5,
 			[]int{1, 1, 2, 1, 1, 1, 2, 1, 1}, []bool{true, true, false, false, false, false, false, false, false}, false},
 		// The bin (2, 3.25] straddles the minimum 2.2 and counts as inside.
-		{"both limits: the edge goes on the maximum", acceptance.Limit{Min: ptr(2.2), Max: ptr(4.5)}, nil, -0.5,
+		{"both limits: the edge goes on the maximum", spec.Limit{Min: ptr(2.2), Max: ptr(4.5)}, nil, -0.5,
 			[]int{1, 2, 1, 1, 1, 2, 1, 1, 1}, []bool{true, true, false, false, true, true, true, true, true}, true},
-		{"one value", acceptance.Limit{Max: ptr(1)}, []float64{5, 5, 5}, 4.95,
+		{"one value", spec.Limit{Max: ptr(1)}, []float64{5, 5, 5}, 4.95,
 			[]int{3}, []bool{true}, false},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			limits := map[metrics.Name]acceptance.Limit{"overshoot_pct": tc.lim}
+			limits := map[metrics.Name]spec.Limit{"overshoot_pct": tc.lim}
 			values := tc.values
 			if values == nil {
 				for v := 0; v <= 10; v++ {

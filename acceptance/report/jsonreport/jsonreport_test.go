@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -28,12 +29,12 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 		name string
 		b    acceptance.Batch
 	}{
-		{"no units", acceptance.Batch{Units: []acceptance.UnitResult{}, Limits: map[metrics.Name]acceptance.Limit{}}},
+		{"no units", acceptance.Batch{Units: []acceptance.UnitResult{}, Limits: map[metrics.Name]spec.Limit{}}},
 		{"nil units", acceptance.Batch{}},
 		{"one unit", acceptance.Batch{Units: []acceptance.UnitResult{unit("A1")}, ReportDate: "2026-12-01"}},
 		{"three units and a model", acceptance.Batch{
 			Tool: acceptance.ToolInfo{Name: "stepgate", Version: "t"}, Units: []acceptance.UnitResult{unit("A1"), unit("A2"), unit("=1+1")},
-			Model: &acceptance.ModelSummary{Plant: "1 / s", Warnings: []string{"w"}}, Limits: map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &limit}},
+			Model: &acceptance.ModelSummary{Plant: "1 / s", Warnings: []string{"w"}}, Limits: map[metrics.Name]spec.Limit{"overshoot_pct": {Max: &limit}},
 		}},
 	}
 	for _, c := range cases {

@@ -19,6 +19,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -73,7 +74,7 @@ var demoBatch = sync.OnceValues(func() (*acceptance.Batch, error) {
 	if err != nil {
 		return nil, err
 	}
-	spec, err := acceptance.LoadSpec(specPath)
+	spec, err := spec.Load(specPath)
 	if err != nil {
 		return nil, err
 	}
@@ -285,7 +286,7 @@ func TestWriteFixture(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			checkSameBytes(t, &acceptance.Batch{Units: c.units, Limits: map[metrics.Name]acceptance.Limit{}})
+			checkSameBytes(t, &acceptance.Batch{Units: c.units, Limits: map[metrics.Name]spec.Limit{}})
 		})
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
 // benchDigest judges n demo units of 6 s (three steps at 1 kHz) the way the
@@ -20,7 +21,7 @@ func benchDigest(b testing.TB, n int) *digest.Digest {
 	if err != nil {
 		b.Fatal(err)
 	}
-	spec, err := acceptance.LoadSpec(specPath)
+	spec, err := spec.Load(specPath)
 	if err != nil {
 		b.Fatal(err)
 	}

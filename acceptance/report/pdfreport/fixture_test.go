@@ -10,6 +10,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -78,7 +79,7 @@ func closedFormMetrics(zeta, wn, from, to float64) map[metrics.Name]metrics.Valu
 
 // judge applies the limits to a step's metrics, the way the acceptance
 // package reports it, so the fixture carries consistent checks.
-func judge(limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []string) {
+func judge(limits map[metrics.Name]spec.Limit, m map[metrics.Name]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []string) {
 	verdict := acceptance.Pass
 	var reasons []string
 	var checks []acceptance.Check
@@ -128,33 +129,33 @@ type unitSpec struct {
 // overshoot, one is an unreadable file, one has an unmeasured settling time;
 // the model predicts the nominal step 0 → 10 mm.
 func testBatch() *acceptance.Batch {
-	limits := map[metrics.Name]acceptance.Limit{
+	limits := map[metrics.Name]spec.Limit{
 		metrics.Overshoot:    {Max: ptr(15)},
 		metrics.RiseTime:     {Min: ptr(0.05), Max: ptr(0.6)},
 		metrics.SettlingTime: {Max: ptr(1.6)},
 		metrics.FinalValue:   {Min: ptr(9.9), Max: ptr(10.1)},
 	}
-	spec := &acceptance.Spec{
+	sd := &spec.Spec{
 		SpecID: "ACT-25", Revision: "C", Title: "Linear actuator VD-25, end-of-line step test",
 		ResponseUnit: "mm", Limits: limits, Source: "/specs/act-25.yaml", SHA256: sha("spec ACT-25 C"),
-		Report: acceptance.ReportInfo{
+		Report: spec.ReportInfo{
 			Company: "Example Motion Works", Site: "Line 3 test bay", Address: "1 Test Street", Customer: "Vent Systems Ltd",
-			PreparedBy: acceptance.Signatory{Name: "A. Engineer", Role: "Test engineer"},
-			ApprovedBy: acceptance.Signatory{Name: "Q. Lead", Role: "QA lead"},
+			PreparedBy: spec.Signatory{Name: "A. Engineer", Role: "Test engineer"},
+			ApprovedBy: spec.Signatory{Name: "Q. Lead", Role: "QA lead"},
 		},
 		Model: &model.Config{ReferenceTest: &model.ReferenceTest{Gain: 1, StaticGain: 1, Damping: 0.6, NaturalFrequency: 5}},
 	}
 	b := &acceptance.Batch{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
-		Spec:       acceptance.SpecInfo{SpecID: spec.SpecID, Revision: spec.Revision, SHA256: spec.SHA256, Title: spec.Title},
+		Spec:       acceptance.SpecInfo{SpecID: sd.SpecID, Revision: sd.Revision, SHA256: sd.SHA256, Title: sd.Title},
 		Limits:     limits,
 		ReportDate: "2024-05-17",
 		TestDates:  acceptance.DateRange{First: "2024-05-15", Last: "2024-05-16"},
-		SpecDoc:    spec,
+		SpecDoc:    sd,
 	}
 	predM := closedFormMetrics(0.6, 5, 0, 10)
 	b.Model = &acceptance.ModelSummary{
-		Config: *spec.Model, Plant: "25/(s² + 6 s)", Realised: false,
+		Config: *sd.Model, Plant: "25/(s² + 6 s)", Realised: false,
 		Nominal: []acceptance.NominalPrediction{{
 			From: 0, To: 10,
 			Ideal:      acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(predM)},
@@ -181,7 +182,7 @@ func testBatch() *acceptance.Batch {
 			if us.unmeasured != "" && k == 1 {
 				m[us.unmeasured] = metrics.Unknown("the record ends before the response stays in the band")
 			}
-			lim := map[metrics.Name]acceptance.Limit{}
+			lim := map[metrics.Name]spec.Limit{}
 			for name, l := range limits {
 				lim[name] = l
 			}

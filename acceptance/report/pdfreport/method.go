@@ -1,9 +1,9 @@
 package pdfreport
 
 import (
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"strings"
 
-	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 )
 
@@ -70,9 +70,9 @@ func (r *report) limitsTable() {
 // authorisation prints the sign-off block: prepared, reviewed and approved,
 // each with name, role, and blank lines for signature and date.
 func (r *report) authorisation() {
-	var sig [3]acceptance.Signatory
+	var sig [3]spec.Signatory
 	if d := r.b.SpecDoc; d != nil {
-		sig = [3]acceptance.Signatory{d.Report.PreparedBy, d.Report.ReviewedBy, d.Report.ApprovedBy}
+		sig = [3]spec.Signatory{d.Report.PreparedBy, d.Report.ReviewedBy, d.Report.ApprovedBy}
 	}
 	titles := [3]string{"Prepared by", "Reviewed by", "Approved by"}
 	r.heading("Authorisation", 34)

@@ -9,6 +9,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/report/xlsxreport"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -17,7 +18,7 @@ func ExampleWrite() {
 	b := &acceptance.Batch{
 		Tool:       acceptance.ToolInfo{Name: "stepgate", Version: "0.1.0"},
 		Spec:       acceptance.SpecInfo{SpecID: "DEMO", Revision: "A", Title: "Demo actuator"},
-		Limits:     map[metrics.Name]acceptance.Limit{"overshoot_pct": {Max: &max}},
+		Limits:     map[metrics.Name]spec.Limit{"overshoot_pct": {Max: &max}},
 		ReportDate: "2024-05-17",
 		Summary:    acceptance.Summary{Units: 1, Fail: 1},
 		Units: []acceptance.UnitResult{{

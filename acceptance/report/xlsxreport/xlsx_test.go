@@ -15,6 +15,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -55,9 +56,9 @@ const (
 	formulaMeta   = `=HYPERLINK("http://example.invalid","x")`
 )
 
-// judge applies the limits to a step the way acceptance.Spec.JudgeStep
+// judge applies the limits to a step the way acceptance.JudgeStep
 // reports it, in limit-name order, so the fixture carries its checks.
-func judge(limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]metrics.Value) []acceptance.Check {
+func judge(limits map[metrics.Name]spec.Limit, m map[metrics.Name]metrics.Value) []acceptance.Check {
 	var out []acceptance.Check
 	for _, name := range digest.LimitedMetrics(&acceptance.Batch{Limits: limits}) {
 		l := limits[name]
@@ -81,7 +82,7 @@ func judge(limits map[metrics.Name]acceptance.Limit, m map[metrics.Name]metrics.
 // testBatch: a passing unit, a failing one with a formula-like serial, an
 // unreadable file, and a unit with an unmeasured settling time.
 func testBatch() *acceptance.Batch {
-	limits := map[metrics.Name]acceptance.Limit{
+	limits := map[metrics.Name]spec.Limit{
 		"overshoot_pct":   {Max: ptr(15)},
 		"settling_time_s": {Max: ptr(1.6)},
 		"final_value":     {Min: ptr(9.9), Max: ptr(10.1)},
@@ -92,7 +93,7 @@ func testBatch() *acceptance.Batch {
 		Spec:       acceptance.SpecInfo{SpecID: "ACT-25", Revision: "C", SHA256: strings.Repeat("ab", 32), Title: "Linear actuator VD-25"},
 		Limits:     limits,
 		ReportDate: "2024-05-17",
-		SpecDoc:    &acceptance.Spec{SpecID: "ACT-25", Revision: "C", ResponseUnit: "mm", Limits: limits},
+		SpecDoc:    &spec.Spec{SpecID: "ACT-25", Revision: "C", ResponseUnit: "mm", Limits: limits},
 		Model: &acceptance.ModelSummary{
 			Config: model.Config{Plant: &model.TransferFunc{Numerator: []float64{25}, Denominator: []float64{1, 6, 0}}, Controller: model.Controller{Kp: 1}},
 			Plant:  "25/(s² + 6 s)",

@@ -1,25 +1,17 @@
-package acceptance_test
+package spec_test
 
 import (
-	"crypto/sha256"
-	"encoding/hex"
 	"errors"
-	"io/fs"
-	"math"
-	"os"
 	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
 
-	"github.com/stepgate/stepgate/acceptance"
-	"github.com/stepgate/stepgate/acceptance/model"
-	"github.com/stepgate/stepgate/metrics"
-	"github.com/stepgate/stepgate/templates"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
-// specloadBase is the smallest valid spec; the rule cases edit it.
-const specloadBase = `spec_id: T-1
+// baseSpec is the smallest valid spec; the rule cases edit it.
+const baseSpec = `spec_id: T-1
 revision: A
 signals:
   time: t
@@ -31,42 +23,42 @@ limits:
   overshoot_pct: {max: 8}
 `
 
-// specloadEdit returns specloadBase with old replaced by new (old must
+// editSpec returns baseSpec with old replaced by new (old must
 // occur), or with new appended when old is empty.
-func specloadEdit(t *testing.T, old, new string) string {
+func editSpec(t *testing.T, old, new string) string {
 	t.Helper()
 	if old == "" {
-		return specloadBase + new
+		return baseSpec + new
 	}
-	if !strings.Contains(specloadBase, old) {
+	if !strings.Contains(baseSpec, old) {
 		t.Fatalf("base spec has no %q", old)
 	}
-	return strings.Replace(specloadBase, old, new, 1)
+	return strings.Replace(baseSpec, old, new, 1)
 }
 
-// specloadProblems parses doc and returns its problems (none for a valid
-// spec), failing the test when the error is not a *SpecError.
-func specloadProblems(t *testing.T, doc string) []acceptance.Problem {
+// problemsOf parses doc and returns its problems (none for a valid
+// spec), failing the test when the error is not a *Error.
+func problemsOf(t *testing.T, doc string) []spec.Problem {
 	t.Helper()
-	_, err := acceptance.ParseSpec([]byte(doc), "t.yaml")
+	_, err := spec.Parse([]byte(doc), "t.yaml")
 	if err == nil {
 		return nil
 	}
-	var se *acceptance.SpecError
+	var se *spec.Error
 	if !errors.As(err, &se) {
-		t.Fatalf("error is %T, want *acceptance.SpecError: %v", err, err)
+		t.Fatalf("error is %T, want *spec.Error: %v", err, err)
 	}
 	if se.File != "t.yaml" {
-		t.Errorf("SpecError.File = %q, want t.yaml", se.File)
+		t.Errorf("Error.File = %q, want t.yaml", se.File)
 	}
 	return se.Problems
 }
 
-// TestParseSpecRules checks every validation rule of the spec format, one
+// TestParseRules checks every validation rule of the spec format, one
 // case accepting a boundary value where the rule has one. The rules are
 // stepgate's spec format; where a rule follows from an outside definition,
 // the case says which.
-func TestParseSpecRules(t *testing.T) {
+func TestParseRules(t *testing.T) {
 	type edit struct{ old, new string }
 	cases := []struct {
 		name string
@@ -181,8 +173,8 @@ func TestParseSpecRules(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			doc := specloadEdit(t, c.edit.old, c.edit.new)
-			probs := specloadProblems(t, doc)
+			doc := editSpec(t, c.edit.old, c.edit.new)
+			probs := problemsOf(t, doc)
 			if c.key == "" {
 				if len(probs) != 0 {
 					t.Fatalf("want a valid spec, got %v", probs)
@@ -203,12 +195,12 @@ func TestParseSpecRules(t *testing.T) {
 	}
 }
 
-// TestParseSpecModelRules checks the structural rules of the model section.
+// TestParseModelRules checks the structural rules of the model section.
 // A physical plant's transfer function is proper, numerator degree ≤
 // denominator degree (K. Ogata, Modern Control Engineering, 5th ed., §2-3,
 // from memory); the reference-test parameters of G·ωn²/(s² + 2ζωn s + ωn²)
 // are positive for a stable, moving loop (references.md §2 and §4).
-func TestParseSpecModelRules(t *testing.T) {
+func TestParseModelRules(t *testing.T) {
 	const ref = "model:\n  reference_test: {gain: 1, static_gain: 1, damping: 0.45, natural_frequency_rad_s: 22}\n  controller: {kp: 0.55}\n"
 	cases := []struct {
 		name  string
@@ -254,7 +246,7 @@ func TestParseSpecModelRules(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			probs := specloadProblems(t, specloadBase+c.model)
+			probs := problemsOf(t, baseSpec+c.model)
 			if c.key == "" {
 				if len(probs) != 0 {
 					t.Fatalf("want a valid spec, got %v", probs)
@@ -271,8 +263,8 @@ func TestParseSpecModelRules(t *testing.T) {
 	}
 }
 
-// TestParseSpecDocumentProblems checks problems with the file as a whole.
-func TestParseSpecDocumentProblems(t *testing.T) {
+// TestParseDocumentProblems checks problems with the file as a whole.
+func TestParseDocumentProblems(t *testing.T) {
 	cases := []struct {
 		name string
 		doc  string
@@ -286,11 +278,11 @@ func TestParseSpecDocumentProblems(t *testing.T) {
 		{"not a mapping", "- a\n- b\n", "t.yaml:1:1: a spec must be a mapping of keys (spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, model, report), got a list"},
 		{"unclosed brace", "spec_id: T-1\nlimits: {overshoot_pct: {max: 8}\n", "t.yaml:2: invalid YAML: did not find expected ',' or '}' in the part that starts on this line"},
 		{"tab indent", "spec_id: T-1\nsignals:\n\ttime: t\n", "t.yaml:3: invalid YAML: found character that cannot start any token"},
-		{"two documents", specloadBase + "---\nspec_id: T-2\n", "t.yaml:11:1: only one YAML document is allowed; remove the '---' separator and what follows"},
+		{"two documents", baseSpec + "---\nspec_id: T-2\n", "t.yaml:11:1: only one YAML document is allowed; remove the '---' separator and what follows"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			s, err := acceptance.ParseSpec([]byte(c.doc), "t.yaml")
+			s, err := spec.Parse([]byte(c.doc), "t.yaml")
 			if err == nil {
 				t.Fatalf("want an error, got spec %+v", s)
 			}
@@ -304,11 +296,11 @@ func TestParseSpecDocumentProblems(t *testing.T) {
 	}
 }
 
-// TestParseSpecAllProblems checks that every problem in a file is reported,
+// TestParseAllProblems checks that every problem in a file is reported,
 // one per line, in file order, with file, line, column and key path.
-func TestParseSpecAllProblems(t *testing.T) {
-	path := filepath.Join("..", "testdata", "specs", "invalid_many.yaml")
-	_, err := acceptance.LoadSpec(path)
+func TestParseAllProblems(t *testing.T) {
+	path := filepath.Join("..", "..", "testdata", "specs", "invalid_many.yaml")
+	_, err := spec.Load(path)
 	if err == nil {
 		t.Fatal("want an error")
 	}
@@ -337,16 +329,16 @@ func TestParseSpecAllProblems(t *testing.T) {
 	if !reflect.DeepEqual(got, want) {
 		t.Errorf("error lines:\n%s\nwant:\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
 	}
-	var se *acceptance.SpecError
+	var se *spec.Error
 	if !errors.As(err, &se) || len(se.Problems) != len(want) {
-		t.Fatalf("want a *SpecError with %d problems, got %#v", len(want), err)
+		t.Fatalf("want a *Error with %d problems, got %#v", len(want), err)
 	}
 }
 
-// TestParseSpecKeepsChecking checks that a rejected value does not hide the
+// TestParseKeepsChecking checks that a rejected value does not hide the
 // file's other problems, nor raise false ones about the section it was in.
-func TestParseSpecKeepsChecking(t *testing.T) {
-	doc := specloadEdit(t, "min_change: 0.5", "min_change: half") +
+func TestParseKeepsChecking(t *testing.T) {
+	doc := editSpec(t, "min_change: 0.5", "min_change: half") +
 		"time_unit: min\nmetrics: {rise_levels_pct: [10, x]}\nmodel:\n  plant: [1, 2]\n  controller: {kp: -1, ki: 1}\n"
 	doc = strings.Replace(doc, "overshoot_pct: {max: 8}", "overshoot_pct: 8", 1)
 	want := []string{
@@ -357,7 +349,7 @@ func TestParseSpecKeepsChecking(t *testing.T) {
 		"t.yaml:14:10: model.plant: must be a mapping with keys numerator, denominator; got a list",
 		"t.yaml:15:20: model.controller.kp: must be ≥ 0, got -1",
 	}
-	_, err := acceptance.ParseSpec([]byte(doc), "t.yaml")
+	_, err := spec.Parse([]byte(doc), "t.yaml")
 	if err == nil {
 		t.Fatal("want an error")
 	}
@@ -366,17 +358,17 @@ func TestParseSpecKeepsChecking(t *testing.T) {
 	}
 }
 
-// TestParseSpecAnchors checks YAML anchors, aliases and merge keys (YAML
+// TestParseAnchors checks YAML anchors, aliases and merge keys (YAML
 // 1.1 merge key type, yaml.org/type/merge.html): keys of the mapping itself
 // override merged ones, and problems inside merged mappings are found.
-func TestParseSpecAnchors(t *testing.T) {
-	doc := specloadBase + "x_unused: &tight {max: 0.1}\n"
-	if probs := specloadProblems(t, doc); len(probs) != 1 || probs[0].Key != "x_unused" {
+func TestParseAnchors(t *testing.T) {
+	doc := baseSpec + "x_unused: &tight {max: 0.1}\n"
+	if probs := problemsOf(t, doc); len(probs) != 1 || probs[0].Key != "x_unused" {
 		t.Errorf("anchor on an unknown key: %v", probs)
 	}
-	doc = strings.Replace(specloadBase, "  overshoot_pct: {max: 8}\n",
+	doc = strings.Replace(baseSpec, "  overshoot_pct: {max: 8}\n",
 		"  rise_time_s: &fast {max: 0.1}\n  dead_time_s: *fast\n  settling_time_s:\n    <<: *fast\n    max: 0.3\n", 1)
-	s, err := acceptance.ParseSpec([]byte(doc), "t.yaml")
+	s, err := spec.Parse([]byte(doc), "t.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -386,317 +378,14 @@ func TestParseSpecAnchors(t *testing.T) {
 	if got := *s.Limits["settling_time_s"].Max; got != 0.3 {
 		t.Errorf("merge override: settling_time_s max = %v, want 0.3", got)
 	}
-	doc = strings.Replace(specloadBase, "  overshoot_pct: {max: 8}\n",
+	doc = strings.Replace(baseSpec, "  overshoot_pct: {max: 8}\n",
 		"  rise_time_s: &fast {maxi: 0.1}\n  settling_time_s:\n    <<: *fast\n    max: 0.3\n", 1)
-	probs := specloadProblems(t, doc)
+	probs := problemsOf(t, doc)
 	keys := []string{}
 	for _, p := range probs {
 		keys = append(keys, p.Key)
 	}
 	if !reflect.DeepEqual(keys, []string{"limits.rise_time_s.maxi", "limits.settling_time_s.maxi"}) {
 		t.Errorf("problems in a merged mapping: %v", probs)
-	}
-}
-
-// TestLoadSpecFiles loads the example specs and checks what they say, the
-// defaults, and the digest. SHA-256 is FIPS 180-4; the digest is recomputed
-// here from the file bytes.
-func TestLoadSpecFiles(t *testing.T) {
-	path := filepath.Join("..", "testdata", "specs", "vd25.yaml")
-	s, err := acceptance.LoadSpec(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	data, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	sum := sha256.Sum256(data)
-	if s.SHA256 != hex.EncodeToString(sum[:]) || len(s.SHA256) != 64 {
-		t.Errorf("SHA256 = %q, want the file digest", s.SHA256)
-	}
-	if s.Source != path {
-		t.Errorf("Source = %q, want %q", s.Source, path)
-	}
-	if s.SpecID != "VD25-EOL" || s.Revision != "B" || s.Signals != (acceptance.Signals{Time: "t", Command: "target", Response: "position", Effort: "drive"}) {
-		t.Errorf("identity or signals wrong: %+v", s)
-	}
-	if s.Steps.MinChange != 0.5 || s.ResponseUnit != "mm" {
-		t.Errorf("steps or unit wrong: %+v %q", s.Steps, s.ResponseUnit)
-	}
-	wantRef := &model.ReferenceTest{Gain: 1, StaticGain: 1, Damping: 0.45, NaturalFrequency: 22}
-	if s.Model == nil || !reflect.DeepEqual(s.Model.ReferenceTest, wantRef) || s.Model.Plant != nil {
-		t.Fatalf("model = %+v", s.Model)
-	}
-	if s.Model.Controller.Kp != 0.55 || s.Model.Loop == nil || *s.Model.Loop != (model.Loop{SamplePeriod: 0.001, Delay: 0.002}) ||
-		s.Model.Actuator == nil || s.Model.Actuator.EffortLimit != 100 {
-		t.Errorf("controller, loop or actuator wrong: %+v", s.Model)
-	}
-	if got, want := s.LimitNames(), []metrics.Name{"rise_time_s", "overshoot_pct", "settling_time_s", "steady_state_error"}; !reflect.DeepEqual(got, want) {
-		t.Errorf("LimitNames = %v, want %v (metrics.Names order)", got, want)
-	}
-	if l := s.Limits["overshoot_pct"]; l.Min != nil || l.Max == nil || *l.Max != 8 {
-		t.Errorf("overshoot limit = %+v", l)
-	}
-	// Defaults the file leaves out.
-	if s.Metrics.DeadTimeLevelPct != 2 || s.Metrics.FinalWindowPct != 20 || s.Log.Delimiter != "auto" {
-		t.Errorf("defaults not applied: %+v %+v", s.Metrics, s.Log)
-	}
-
-	// The second example sets a logo that exists beside it.
-	path = filepath.Join("..", "testdata", "specs", "plant_loop.yaml")
-	s, err = acceptance.LoadSpec(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if s.Model == nil || s.Model.Plant == nil || !reflect.DeepEqual(s.Model.Plant.Denominator, []float64{1, 20, 0}) {
-		t.Errorf("plant = %+v", s.Model)
-	}
-	if got, want := s.LogoPath(), filepath.Join("..", "testdata", "specs", "logo.png"); got != want {
-		t.Errorf("LogoPath = %q, want %q", got, want)
-	}
-	if s.TimeUnit != "ms" || !s.Log.DecimalComma || s.Log.Delimiter != "semicolon" || s.Revision != "3" {
-		t.Errorf("format wrong: %q %+v %q", s.TimeUnit, s.Log, s.Revision)
-	}
-}
-
-// TestLoadSpecLogo checks that LoadSpec resolves the logo against the spec's
-// folder and reports a missing one together with the other problems.
-func TestLoadSpecLogo(t *testing.T) {
-	dir := t.TempDir()
-	write := func(name, text string) string {
-		p := filepath.Join(dir, name)
-		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
-	write("art/logo.png", "\x89PNG\r\n\x1a\n")
-	cases := []struct {
-		name, spec string
-		want       string // "" for success, else the whole error text
-	}{
-		{"present", "report: {logo: art/logo.png}\n", ""},
-		{"missing", "report: {logo: art/missing.png}\n",
-			"s.yaml:11:16: report.logo: cannot use logo " + filepath.Join(dir, "art", "missing.png") + " (paths are relative to the spec file): no such file"},
-		{"folder", "report: {logo: art.png}\n",
-			"s.yaml:11:16: report.logo: " + filepath.Join(dir, "art.png") + " is a folder, not an image file"},
-		{"missing with other problems", "report: {logo: art/missing.png}\ntime_unit: min\n",
-			"s.yaml:11:16: report.logo: cannot use logo " + filepath.Join(dir, "art", "missing.png") + " (paths are relative to the spec file): no such file\n" +
-				`s.yaml:12:12: time_unit: must be one of s, ms, us; got "min"`},
-	}
-	if err := os.MkdirAll(filepath.Join(dir, "art.png"), 0o755); err != nil {
-		t.Fatal(err)
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			p := write("s.yaml", specloadBase+c.spec)
-			s, err := acceptance.LoadSpec(p)
-			if c.want == "" {
-				if err != nil {
-					t.Fatal(err)
-				}
-				if s.LogoPath() != filepath.Join(dir, "art", "logo.png") {
-					t.Errorf("LogoPath = %q", s.LogoPath())
-				}
-				return
-			}
-			if err == nil {
-				t.Fatal("want an error")
-			}
-			if got := strings.ReplaceAll(err.Error(), p, "s.yaml"); got != c.want {
-				t.Errorf("error:\n%s\nwant:\n%s", got, c.want)
-			}
-		})
-	}
-
-	_, err := acceptance.LoadSpec(filepath.Join(dir, "nope.yaml"))
-	if !errors.Is(err, fs.ErrNotExist) || !strings.Contains(err.Error(), "nope.yaml") {
-		t.Errorf("missing file: err = %v, want one naming the file and wrapping fs.ErrNotExist", err)
-	}
-}
-
-// TestSpecDefaultsAndOptions checks the defaults and their conversion to
-// fractions (1 % = 0.01; BIPM SI Brochure, 9th ed., 2019, §5.4.7, from
-// memory). The default levels: 10 % and 90 % reference levels (IEEE Std
-// 181-2011, references.md §1); a 2 % settling band (K. Ogata, Modern Control
-// Engineering, 5th ed., §5-3); the 2 % dead-time level and 20 % final window
-// are stepgate's (common practice, no source).
-func TestSpecDefaultsAndOptions(t *testing.T) {
-	cases := []struct {
-		name, extra string
-		want        metrics.Options
-	}{
-		{"defaults", "", metrics.Options{RiseLow: 0.10, RiseHigh: 0.90, Band: 0.02, DeadTimeLevel: 0.02, FinalWindow: 0.20, MinSamples: 10}},
-		{"set", "metrics: {rise_levels_pct: [5, 95], settling_band_pct: 5, dead_time_level_pct: 1, final_window_pct: 100}\n",
-			metrics.Options{RiseLow: 0.05, RiseHigh: 0.95, Band: 0.05, DeadTimeLevel: 0.01, FinalWindow: 1, MinSamples: 10}},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			s, err := acceptance.ParseSpec([]byte(specloadBase+c.extra), "t.yaml")
-			if err != nil {
-				t.Fatal(err)
-			}
-			o := s.Options()
-			for _, f := range []struct {
-				name      string
-				got, want float64
-			}{
-				{"RiseLow", o.RiseLow, c.want.RiseLow}, {"RiseHigh", o.RiseHigh, c.want.RiseHigh},
-				{"Band", o.Band, c.want.Band}, {"DeadTimeLevel", o.DeadTimeLevel, c.want.DeadTimeLevel},
-				{"FinalWindow", o.FinalWindow, c.want.FinalWindow},
-			} {
-				if math.Abs(f.got-f.want) > 1e-15 {
-					t.Errorf("%s = %v, want %v", f.name, f.got, f.want)
-				}
-			}
-			if o.MinSamples != c.want.MinSamples {
-				t.Errorf("MinSamples = %d, want %d", o.MinSamples, c.want.MinSamples)
-			}
-		})
-	}
-	s, err := acceptance.ParseSpec([]byte(specloadBase), "t.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if s.TimeUnit != "s" || s.Log.Delimiter != "auto" || !reflect.DeepEqual(s.Metrics.RiseLevelsPct, []float64{10, 90}) ||
-		s.Metrics.SettlingBandPct != 2 || s.Metrics.DeadTimeLevelPct != 2 || s.Metrics.FinalWindowPct != 20 || s.Model != nil {
-		t.Errorf("defaults: %+v %+v %q", s.Metrics, s.Log, s.TimeUnit)
-	}
-}
-
-// TestTimeScale checks the conversion of the time column to seconds: SI
-// prefixes milli = 10⁻³ and micro = 10⁻⁶ (BIPM, The International System of
-// Units, 9th ed., 2019, Table 7).
-func TestTimeScale(t *testing.T) {
-	cases := []struct {
-		unit string
-		want float64
-	}{
-		{"s", 1}, {"", 1}, {"ms", 1e-3}, {"us", 1e-6},
-	}
-	for _, c := range cases {
-		s := &acceptance.Spec{TimeUnit: c.unit}
-		if got := s.TimeScale(); got != c.want {
-			t.Errorf("TimeScale(%q) = %v, want %v", c.unit, got, c.want)
-		}
-	}
-	if got := (&acceptance.Spec{TimeUnit: "min"}).TimeScale(); !math.IsNaN(got) {
-		t.Errorf("TimeScale(min) = %v, want NaN for a unit the spec format rejects", got)
-	}
-}
-
-// TestLimitNames checks that limits come in report order, metrics.Names.
-func TestLimitNames(t *testing.T) {
-	v := 1.0
-	s := &acceptance.Spec{Limits: map[metrics.Name]acceptance.Limit{
-		"steady_state_error_pct": {Max: &v}, "step_size": {Min: &v}, "overshoot_pct": {Max: &v}, "dead_time_s": {Max: &v},
-	}}
-	want := []metrics.Name{"step_size", "dead_time_s", "overshoot_pct", "steady_state_error_pct"}
-	for i := 0; i < 5; i++ { // map order must not leak
-		if got := s.LimitNames(); !reflect.DeepEqual(got, want) {
-			t.Fatalf("LimitNames = %v, want %v", got, want)
-		}
-	}
-}
-
-// TestExplain checks the spec summary's wording of limits, levels and model.
-func TestExplain(t *testing.T) {
-	cases := []struct {
-		name, file string
-		want       []string
-	}{
-		{"vd25", "vd25.yaml", []string{
-			"Spec VD25-EOL revision B: VD-25 vent drive, end-of-line step test",
-			`  time      column "t", in s`,
-			`  response  column "position", in mm`,
-			"a step is a change of the command by at least 0.5 mm",
-			"rise time between 10 % and 90 % of the transition",
-			"settling band ±2 % of the step size around the final value",
-			"  overshoot_pct ≤ 8 %\n",
-			"  rise_time_s ≤ 0.12 s\n",
-			"  settling_time_s ≤ 0.35 s\n",
-			"  steady_state_error ≤ 0.05 mm\n",
-			"G = 1, ζ = 0.45, ωn = 22 rad/s",
-			"controller kp = 0.55, ki = 0, kd = 0",
-			"loop sampled every 0.001 s, controller output delayed 0.002 s",
-		}},
-		{"plant", "plant_loop.yaml", []string{
-			`  time      column "zeit_ms", in ms`,
-			"fields separated by: semicolon; decimal mark: comma (1,5)",
-			"  effort    not read (signals.effort not set)",
-			"  0 ≤ dead_time_s ≤ 0.01 s\n",
-			"  9.9 ≤ final_value ≤ 10.1 mm\n",
-			"plant (200) / (s^2 + 20·s)",
-			"plant dead time 0.001 s",
-			"derivative filtered at 200 Hz",
-			"actuator: effort limited to ±24, deadband 0.2",
-		}},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			s, err := acceptance.LoadSpec(filepath.Join("..", "testdata", "specs", c.file))
-			if err != nil {
-				t.Fatal(err)
-			}
-			out := s.Explain()
-			for _, w := range c.want {
-				if !strings.Contains(out, w) {
-					t.Errorf("Explain lacks %q:\n%s", w, out)
-				}
-			}
-			if out != s.Explain() {
-				t.Error("Explain is not deterministic")
-			}
-		})
-	}
-	min := 0.001
-	s := &acceptance.Spec{SpecID: "X", Revision: "1", Limits: map[metrics.Name]acceptance.Limit{"dead_time_s": {Min: &min}}}
-	if out := s.Explain(); !strings.Contains(out, "  dead_time_s ≥ 0.001 s\n") || !strings.Contains(out, "Model: none") {
-		t.Errorf("min-only limit or no model not worded:\n%s", out)
-	}
-}
-
-// TestSpecTemplate checks that the template printed by `stepgate spec init`
-// is a valid spec and documents every key and metric name.
-func TestSpecTemplate(t *testing.T) {
-	s, err := acceptance.ParseSpec([]byte(templates.SpecTemplate), "spec.yaml")
-	if err != nil {
-		t.Fatalf("template does not parse:\n%v", err)
-	}
-	if s.Model == nil || s.Model.ReferenceTest == nil || len(s.Limits) == 0 {
-		t.Errorf("template lacks the model or limits: %+v", s)
-	}
-	var keys []string
-	var collect func(reflect.Type)
-	collect = func(t reflect.Type) {
-		for t.Kind() == reflect.Pointer || t.Kind() == reflect.Slice || t.Kind() == reflect.Map {
-			t = t.Elem()
-		}
-		if t.Kind() != reflect.Struct {
-			return
-		}
-		for i := 0; i < t.NumField(); i++ {
-			name, _, _ := strings.Cut(t.Field(i).Tag.Get("yaml"), ",")
-			if name == "" || name == "-" {
-				continue
-			}
-			keys = append(keys, name)
-			collect(t.Field(i).Type)
-		}
-	}
-	collect(reflect.TypeOf(acceptance.Spec{}))
-	for _, k := range keys {
-		if !strings.Contains(templates.SpecTemplate, k+":") {
-			t.Errorf("template does not document key %s", k)
-		}
-	}
-	for _, n := range metrics.Names {
-		if !strings.Contains(templates.SpecTemplate, "#   "+string(n)+" ") {
-			t.Errorf("template does not list metric %s", n)
-		}
 	}
 }

@@ -1,4 +1,4 @@
-package acceptance_test
+package spec_test
 
 import (
 	"errors"
@@ -7,14 +7,14 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 	"github.com/stepgate/stepgate/templates"
 )
 
-// FuzzParseSpec checks the spec parser on arbitrary bytes. It never panics
-// and is deterministic. A refused spec is a *SpecError whose every problem
+// FuzzParse checks the spec parser on arbitrary bytes. It never panics
+// and is deterministic. A refused spec is a *Error whose every problem
 // has a message and a position that exists in the file (1-based line and
 // column, or 0 when not known). An accepted spec keeps every rule the
 // loader promises: an identity, three distinct signal columns, a positive
@@ -22,9 +22,9 @@ import (
 // format the reader accepts, limits on known metrics with min ≤ max and a
 // bound each, and a model the model package builds. Its summary can be
 // written, and parsing its own bytes again gives the same digest.
-func FuzzParseSpec(f *testing.F) {
+func FuzzParse(f *testing.F) {
 	f.Add([]byte(templates.SpecTemplate))
-	for _, glob := range []string{"../testdata/specs/*.yaml", "../testdata/e2e/*.yaml", "../testdata/bad/specs/*.yaml"} {
+	for _, glob := range []string{"../../testdata/specs/*.yaml", "../../testdata/e2e/*.yaml", "../../testdata/bad/specs/*.yaml"} {
 		paths, _ := filepath.Glob(glob)
 		for _, p := range paths {
 			data, err := os.ReadFile(p)
@@ -39,15 +39,15 @@ func FuzzParseSpec(f *testing.F) {
 	f.Add([]byte("- [\n"))
 
 	f.Fuzz(func(t *testing.T, data []byte) {
-		s, err := acceptance.ParseSpec(data, "f.yaml")
-		_, err2 := acceptance.ParseSpec(data, "f.yaml")
+		s, err := spec.Parse(data, "f.yaml")
+		_, err2 := spec.Parse(data, "f.yaml")
 		if (err == nil) != (err2 == nil) || (err != nil && err.Error() != err2.Error()) {
 			t.Fatalf("two parses differ: %v / %v", err, err2)
 		}
 		if err != nil {
-			var se *acceptance.SpecError
+			var se *spec.Error
 			if !errors.As(err, &se) {
-				t.Fatalf("error %T is not a *SpecError: %v", err, err)
+				t.Fatalf("error %T is not a *Error: %v", err, err)
 			}
 			if s != nil {
 				t.Fatal("spec returned with an error")
@@ -68,7 +68,7 @@ func FuzzParseSpec(f *testing.F) {
 }
 
 // checkAcceptedSpec checks the rules an accepted spec keeps.
-func checkAcceptedSpec(t *testing.T, s *acceptance.Spec) {
+func checkAcceptedSpec(t *testing.T, s *spec.Spec) {
 	t.Helper()
 	if strings.TrimSpace(s.SpecID) == "" || strings.TrimSpace(s.Revision) == "" {
 		t.Fatalf("accepted without an identity: %q %q", s.SpecID, s.Revision)

@@ -1,6 +1,11 @@
-package acceptance
+package spec
 
 import (
+	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"math"
+	"path/filepath"
+	"slices"
+
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -23,7 +28,7 @@ type Spec struct {
 	Report       ReportInfo             `yaml:"report"`
 
 	// Source is the file the spec was read from; SHA256 the hex digest of its
-	// bytes. Set by LoadSpec, not read from YAML.
+	// bytes. Set by Load, not read from YAML.
 	Source string `yaml:"-"`
 	SHA256 string `yaml:"-"`
 }
@@ -77,4 +82,105 @@ type ReportInfo struct {
 type Signatory struct {
 	Name string `yaml:"name"`
 	Role string `yaml:"role"`
+}
+
+// Spec defaults, applied by Parse to keys the file leaves out.
+const (
+	DefaultTimeUnit         = "s"
+	DefaultRiseLowPct       = 10.0
+	DefaultRiseHighPct      = 90.0
+	DefaultSettlingBandPct  = 2.0
+	DefaultDeadTimeLevelPct = 2.0
+	DefaultFinalWindowPct   = 20.0
+	DefaultDelimiter        = "auto"
+)
+
+// LogoPath returns the report logo's path resolved against the folder of
+// the spec file (Source), or "" when the spec sets no logo.
+func (s *Spec) LogoPath() string {
+	if s.Report.Logo == "" {
+		return ""
+	}
+	if filepath.IsAbs(s.Report.Logo) || s.Source == "" {
+		return s.Report.Logo
+	}
+	return filepath.Join(filepath.Dir(s.Source), s.Report.Logo)
+}
+
+// Options returns the measurement levels as fractions (the spec holds
+// percentages). A level the spec leaves unset takes the default.
+func (s *Spec) Options() metrics.Options {
+	o := metrics.DefaultOptions()
+	m := s.Metrics
+	if len(m.RiseLevelsPct) == 2 {
+		o.RiseLow = m.RiseLevelsPct[0] / 100
+		o.RiseHigh = m.RiseLevelsPct[1] / 100
+	}
+	if m.SettlingBandPct > 0 {
+		o.Band = m.SettlingBandPct / 100
+	}
+	if m.DeadTimeLevelPct > 0 {
+		o.DeadTimeLevel = m.DeadTimeLevelPct / 100
+	}
+	if m.FinalWindowPct > 0 {
+		o.FinalWindow = m.FinalWindowPct / 100
+	}
+	return o
+}
+
+// TimeScale returns the factor that converts the log's time column to
+// seconds: 1 for s (and for an unset unit), 1e-3 for ms, 1e-6 for us. A
+// unit Parse would reject gives NaN, so that no time is silently
+// misread.
+func (s *Spec) TimeScale() float64 {
+	switch s.TimeUnit {
+	case "", "s":
+		return 1
+	case "ms":
+		return 1e-3
+	case "us":
+		return 1e-6
+	}
+	return math.NaN()
+}
+
+// LimitNames returns the limited metric names in metrics.Names order. Names
+// that are not metrics (possible only in a spec that was not validated)
+// follow, sorted.
+func (s *Spec) LimitNames() []metrics.Name {
+	out := make([]metrics.Name, 0, len(s.Limits))
+	for _, n := range metrics.Names {
+		if _, ok := s.Limits[n]; ok {
+			out = append(out, n)
+		}
+	}
+	var rest []metrics.Name
+	for k := range s.Limits {
+		if metrics.Index(k) < 0 {
+			rest = append(rest, k)
+		}
+	}
+	slices.Sort(rest)
+	return append(out, rest...)
+}
+
+// Format returns how the spec says logs are written, for the log reader.
+func (s *Spec) Format() rigdata.Format {
+	f := rigdata.Format{
+		Time:         s.Signals.Time,
+		Command:      s.Signals.Command,
+		Response:     s.Signals.Response,
+		Effort:       s.Signals.Effort,
+		TimeScale:    s.TimeScale(),
+		DecimalComma: s.Log.DecimalComma,
+	}
+	switch s.Log.Delimiter {
+	case "comma":
+		f.Delimiter = ','
+	case "semicolon":
+		f.Delimiter = ';'
+	case "tab":
+		f.Delimiter = '\t'
+	}
+	return f
 }

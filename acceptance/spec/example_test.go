@@ -1,15 +1,14 @@
-package acceptance_test
+package spec_test
 
 import (
 	"fmt"
 
-	"github.com/stepgate/stepgate/acceptance"
-	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
 // A small spec: three columns, one limit, no model.
-func ExampleParseSpec() {
-	spec := []byte(`spec_id: LA-40-EOL
+func ExampleParse() {
+	doc := []byte(`spec_id: LA-40-EOL
 revision: A
 signals: {time: t_ms, command: setpoint, response: position}
 time_unit: ms
@@ -19,7 +18,7 @@ limits:
   overshoot_pct: {max: 8}
   final_value: {min: 9.95, max: 10.05}
 `)
-	s, err := acceptance.ParseSpec(spec, "la40.yaml")
+	s, err := spec.Parse(doc, "la40.yaml")
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -55,8 +54,8 @@ limits:
 }
 
 // Every problem in a spec is reported at once, with line, column and key.
-func ExampleParseSpec_problems() {
-	spec := []byte(`spec_id: LA-40-EOL
+func ExampleParse_problems() {
+	doc := []byte(`spec_id: LA-40-EOL
 revision: A
 signals: {time: t, command: setpoint, response: setpoint}
 steps: {min_change: 0.5}
@@ -65,44 +64,11 @@ limits:
   overshoot_pct: {max: -3}
   rise_tme_s: {max: 0.1}
 `)
-	_, err := acceptance.ParseSpec(spec, "la40.yaml")
+	_, err := spec.Parse(doc, "la40.yaml")
 	fmt.Println(err)
 	// Output:
 	// la40.yaml:3:49: signals.response: must differ from signals.command (both are "setpoint")
 	// la40.yaml:5:30: metrics.settling_band_pct: must be > 0 and < 100, got 0
 	// la40.yaml:7:24: limits.overshoot_pct.max: must be ≥ 0, got -3
 	// la40.yaml:8:3: limits.rise_tme_s: unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct
-}
-
-// A step whose record ends before the response settles: the settling time
-// is unknown, but the last sample outside the band is later than the limit,
-// so the step fails rather than being invalid.
-func ExampleSpec_JudgeStep() {
-	s, err := acceptance.ParseSpec([]byte(`spec_id: LA-40-EOL
-revision: A
-signals: {time: t, command: setpoint, response: position}
-steps: {min_change: 0.5}
-limits:
-  overshoot_pct: {max: 8}
-  settling_time_s: {max: 0.35}
-`), "la40.yaml")
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	m := metrics.StepMetrics{
-		Step:         metrics.Step{Index: 1, From: 0, To: 10},
-		Overshoot:    metrics.Known(6.2),
-		SettlingTime: metrics.Unknown("still outside the band at the end of the record"),
-		LastOutside:  metrics.Known(0.52),
-	}
-	r := s.JudgeStep(m)
-	for _, c := range r.Checks {
-		fmt.Println(c.Metric, c.Verdict)
-	}
-	fmt.Println(r.Verdict, r.Reasons)
-	// Output:
-	// overshoot_pct pass
-	// settling_time_s fail
-	// fail [settling_time_s > 0.35 at step 1: still outside the ±2 % band 0.52 s after the step]
 }

@@ -1,0 +1,218 @@
+package spec
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/metrics"
+)
+
+// Explain returns a readable summary of what the spec makes stepgate do:
+// the columns read from each log, how steps are found, the measurement
+// levels, every limit in words and the model, if any.
+func (s *Spec) Explain() string {
+	var b strings.Builder
+	line := func(format string, a ...any) { fmt.Fprintf(&b, format+"\n", a...) }
+	ru := unitSuffix(s.ResponseUnit)
+	head := fmt.Sprintf("Spec %s revision %s", s.SpecID, s.Revision)
+	if s.Title != "" {
+		head += ": " + s.Title
+	}
+	line("%s", head)
+	line("")
+	line("Read from each log:")
+	tu := s.TimeUnit
+	if tu == "" {
+		tu = DefaultTimeUnit
+	}
+	line("  time      column %q, in %s", s.Signals.Time, tu)
+	line("  command   column %q%s", s.Signals.Command, inUnit(s.ResponseUnit))
+	line("  response  column %q%s", s.Signals.Response, inUnit(s.ResponseUnit))
+	if s.Signals.Effort != "" {
+		line("  effort    column %q%s", s.Signals.Effort, inUnit(s.EffortUnit))
+	} else {
+		line("  effort    not read (signals.effort not set)")
+	}
+	delim := map[string]string{
+		"": "detected from the header row", "auto": "detected from the header row",
+		"comma": "comma", "semicolon": "semicolon", "tab": "tab",
+	}[s.Log.Delimiter]
+	if delim == "" {
+		delim = s.Log.Delimiter
+	}
+	mark := "point (1.5)"
+	if s.Log.DecimalComma {
+		mark = "comma (1,5)"
+	}
+	line("  fields separated by: %s; decimal mark: %s", delim, mark)
+	line("")
+	line("Steps:")
+	line("  a step is a change of the command by at least %s%s; each step is", formatFloat(s.Steps.MinChange), ru)
+	line("  measured from its step instant (the first sample at the new command)")
+	line("  to the next step or the end of the record")
+	line("")
+	o := s.Options()
+	line("Measurement levels:")
+	line("  rise time between %s %% and %s %% of the transition", pct(o.RiseLow), pct(o.RiseHigh))
+	line("  settling band ±%s %% of the step size around the final value", pct(o.Band))
+	line("  dead time ends when the response has moved %s %% of the transition", pct(o.DeadTimeLevel))
+	line("  final value taken from the last %s %% of each step's record", pct(o.FinalWindow))
+	line("")
+	line("Limits (a unit passes only when every limited metric of every step is")
+	line("measured and within its limits; a value on a limit passes):")
+	names := s.LimitNames()
+	if len(names) == 0 {
+		line("  none")
+	}
+	for _, n := range names {
+		line("  %s", s.describeLimit(n))
+	}
+	line("")
+	if s.Model == nil {
+		line("Model: none (no prediction, no comparison with a model)")
+	} else {
+		line("Model:")
+		for _, l := range explainModel(s.Model, ru) {
+			line("  %s", l)
+		}
+	}
+	if r := s.Report; r.Company != "" || r.Site != "" || r.Customer != "" || r.Logo != "" {
+		line("")
+		line("Report:")
+		for _, kv := range [][2]string{{"company", r.Company}, {"site", r.Site}, {"address", r.Address}, {"customer", r.Customer}, {"logo", r.Logo}} {
+			if kv[1] != "" {
+				line("  %-9s %s", kv[0], kv[1])
+			}
+		}
+	}
+	return b.String()
+}
+
+// describeLimit words one limit, e.g. "overshoot_pct ≤ 8 %".
+func (s *Spec) describeLimit(name metrics.Name) string {
+	l := s.Limits[name]
+	u := unitSuffix(name.Unit(s.ResponseUnit))
+	switch {
+	case l.Min != nil && l.Max != nil:
+		return fmt.Sprintf("%s ≤ %s ≤ %s%s", formatFloat(*l.Min), name, formatFloat(*l.Max), u)
+	case l.Max != nil:
+		return fmt.Sprintf("%s ≤ %s%s", name, formatFloat(*l.Max), u)
+	case l.Min != nil:
+		return fmt.Sprintf("%s ≥ %s%s", name, formatFloat(*l.Min), u)
+	}
+	return string(name) + ": no bound"
+}
+
+// explainModel words the model section.
+func explainModel(m *model.Config, ru string) []string {
+	var out []string
+	switch {
+	case m.ReferenceTest != nil:
+		r := m.ReferenceTest
+		out = append(out, fmt.Sprintf("plant backed out of a closed-loop reference test at proportional gain %s:", formatFloat(r.Gain)),
+			fmt.Sprintf("  G·ωn²/(s² + 2ζωn s + ωn²) with G = %s, ζ = %s, ωn = %s rad/s",
+				formatFloat(r.StaticGain), formatFloat(r.Damping), formatFloat(r.NaturalFrequency)))
+	case m.Plant != nil:
+		out = append(out, fmt.Sprintf("plant (%s) / (%s)", poly(m.Plant.Numerator), poly(m.Plant.Denominator)))
+	}
+	if m.PlantDeadTime > 0 {
+		out = append(out, fmt.Sprintf("plant dead time %s s", formatFloat(m.PlantDeadTime)))
+	}
+	c := m.Controller
+	ctl := fmt.Sprintf("controller kp = %s, ki = %s, kd = %s", formatFloat(c.Kp), formatFloat(c.Ki), formatFloat(c.Kd))
+	if c.Kd > 0 {
+		if c.DerivativeFilterHz > 0 {
+			ctl += fmt.Sprintf(", derivative filtered at %s Hz", formatFloat(c.DerivativeFilterHz))
+		} else {
+			ctl += ", derivative unfiltered"
+		}
+	}
+	out = append(out, ctl)
+	if m.Loop != nil {
+		out = append(out, fmt.Sprintf("loop sampled every %s s, controller output delayed %s s", formatFloat(m.Loop.SamplePeriod), formatFloat(m.Loop.Delay)))
+	} else {
+		out = append(out, "loop continuous (no sampling or delay given)")
+	}
+	if a := m.Actuator; a != nil {
+		lim := "no effort limit"
+		if a.EffortLimit > 0 {
+			lim = "effort limited to ±" + formatFloat(a.EffortLimit)
+		}
+		db := "no deadband"
+		if a.Deadband > 0 {
+			db = "deadband " + formatFloat(a.Deadband)
+		}
+		out = append(out, "actuator: "+lim+", "+db)
+	}
+	if m.Loop != nil || m.Actuator != nil || m.PlantDeadTime > 0 {
+		out = append(out, "each step is predicted ideal (continuous, linear) and realised (as above)")
+	} else {
+		out = append(out, "each step is predicted ideal (continuous, linear)")
+	}
+	return out
+}
+
+// poly writes coefficients, highest power first, as a polynomial in s,
+// e.g. [1, 20, 0] → "s^2 + 20·s".
+func poly(c []float64) string {
+	var b strings.Builder
+	for i, v := range c {
+		p := len(c) - 1 - i
+		if v == 0 {
+			continue
+		}
+		a := math.Abs(v)
+		switch {
+		case b.Len() == 0 && v < 0:
+			b.WriteString("−")
+		case b.Len() > 0 && v < 0:
+			b.WriteString(" − ")
+		case b.Len() > 0:
+			b.WriteString(" + ")
+		}
+		if a != 1 || p == 0 {
+			b.WriteString(formatFloat(a))
+			if p > 0 {
+				b.WriteString("·")
+			}
+		}
+		switch {
+		case p == 1:
+			b.WriteString("s")
+		case p > 1:
+			b.WriteString("s^" + strconv.Itoa(p))
+		}
+	}
+	if b.Len() == 0 {
+		return "0"
+	}
+	return b.String()
+}
+
+func unitSuffix(u string) string {
+	if u == "" {
+		return ""
+	}
+	return " " + u
+}
+
+func inUnit(u string) string {
+	if u == "" {
+		return ""
+	}
+	return ", in " + u
+}
+
+// pct writes a fraction as a percentage without float noise.
+func pct(f float64) string {
+	return strconv.FormatFloat(f*100, 'g', 10, 64)
+}
+
+// formatFloat writes a number as the shortest text that reads back to
+// it, so a limit appears as written in the spec.
+func formatFloat(f float64) string {
+	return strconv.FormatFloat(f, 'g', -1, 64)
+}
