@@ -152,3 +152,25 @@ func TestLotUnitsShowTheirCause(t *testing.T) {
 		t.Errorf("delayed unit leaves %d samples after its clean twin, want the injected 8 (9 with the encoder's count)", d)
 	}
 }
+
+func TestMakeLotRefusesBadSpecs(t *testing.T) {
+	noLimit := nominalRig()
+	noLimit.Loop.EffortLimit = 0
+	tf := nominalRig()
+	tf.Plant = TransferFunc{Num: []float64{1}, Den: []float64{1, 1}}
+	for _, c := range []struct {
+		name string
+		spec LotSpec
+	}{
+		{"transfer-function plant", LotSpec{Nominal: tf, Units: 3}},
+		{"no units", LotSpec{Nominal: nominalRig()}},
+		{"share above one", LotSpec{Nominal: nominalRig(), Units: 3, Share: 1.5}},
+		{"spread of 100 %", LotSpec{Nominal: nominalRig(), Units: 3, Spread: Spread{Gain: 1}}},
+		{"saturation without a limit", LotSpec{Nominal: noLimit, Units: 3, Inject: EffortSaturation}},
+		{"unknown cause", LotSpec{Nominal: nominalRig(), Units: 3, Inject: 1 << 6}},
+	} {
+		if _, err := MakeLot(c.spec); err == nil {
+			t.Errorf("%s: accepted", c.name)
+		}
+	}
+}
