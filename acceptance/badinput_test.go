@@ -239,7 +239,7 @@ func TestBadInputCorpus(t *testing.T) {
 				if u.Verdict != c.verdict {
 					t.Errorf("%s: verdict %s, want %s; reasons %q", u.File, u.Verdict, c.verdict, u.Reasons)
 				}
-				if c.verdict != acceptance.Pass && (len(u.Reasons) == 0 || !strings.Contains(u.Reasons[0], reason)) {
+				if c.verdict != acceptance.Pass && (len(u.Reasons) == 0 || !strings.Contains(u.Reasons[0].Text, reason)) {
 					t.Errorf("%s: first reason %q, want one containing %q", u.File, first(u.Reasons), reason)
 				}
 				if c.check != nil {
@@ -448,11 +448,11 @@ func unitJSON(t *testing.T, u acceptance.UnitResult) []byte {
 	return data
 }
 
-func first(s []string) string {
+func first(s []acceptance.Reason) string {
 	if len(s) == 0 {
 		return ""
 	}
-	return s[0]
+	return s[0].Text
 }
 
 // closeToClosedForm checks a passing unit's single step against the

@@ -190,7 +190,7 @@ func judgeFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *pr
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
-				Reasons: []string{fmt.Sprintf("stepgate failed while judging this log (internal error: %v); please report it with the log", r)}}
+				Reasons: []Reason{internalReason(r)}}
 			n, tr = 0, nil
 		}
 	}()
@@ -201,7 +201,7 @@ func judgeFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *pr
 // read and the record measured (nil when none was), which lives in the
 // reader's buffers until its next file.
 func processFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
-	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []string{}, Steps: []StepResult{}}
+	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []Reason{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
 		u.SHA256 = lg.SHA256
@@ -214,7 +214,7 @@ func processFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *
 	}
 	if err != nil {
 		u.Verdict = Invalid
-		u.Reasons = []string{"log cannot be read: " + readReason(err)}
+		u.Reasons = []Reason{unreadableReason(readReason(err))}
 		if u.SHA256 == "" {
 			// The digest identifies the file even when it cannot be parsed.
 			u.SHA256 = fileDigest(path)
@@ -231,7 +231,7 @@ func processFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *
 	tr := lg.Trace
 	if verr := tr.Validate(); verr != nil {
 		u.Verdict = Invalid
-		u.Reasons = []string{fmt.Sprintf("log cannot be measured: %v", verr)}
+		u.Reasons = []Reason{unusableReason(verr)}
 		return u, lg.Size, nil
 	}
 	steps := metrics.FindSteps(tr, sp.Steps.MinChange)
@@ -369,7 +369,7 @@ func flagDuplicateSerials(units []UnitResult) {
 						others = append(others, units[m].File)
 					}
 				}
-				units[k].Reasons = append(units[k].Reasons, fmt.Sprintf("unit id %q also appears in %s", units[k].Unit, strings.Join(others, ", ")))
+				units[k].Reasons = append(units[k].Reasons, duplicateReason(units[k].Unit, others))
 				if units[k].Verdict == Pass {
 					units[k].Verdict = Invalid
 				}

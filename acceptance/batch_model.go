@@ -103,7 +103,7 @@ type UnitResult struct {
 	SHA256   string            `json:"sha256"`
 	Metadata map[string]string `json:"metadata"`
 	Verdict  Verdict           `json:"verdict"`
-	Reasons  []string          `json:"reasons"`
+	Reasons  []Reason          `json:"reasons"`
 	Steps    []StepResult      `json:"steps"`
 	// Samples is the number of data rows read.
 	Samples int `json:"samples"`
@@ -122,7 +122,7 @@ type StepResult struct {
 	From    float64   `json:"from"`
 	To      float64   `json:"to"`
 	Verdict Verdict   `json:"verdict"`
-	Reasons []string  `json:"reasons"`
+	Reasons []Reason  `json:"reasons"`
 	Metrics MetricSet `json:"metrics"`
 	Checks  []Check   `json:"checks"`
 

@@ -1,7 +1,6 @@
 package acceptance
 
 import (
-	"fmt"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"strconv"
@@ -29,22 +28,22 @@ func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
 		StartS:  m.Start,
 		From:    m.Step.From,
 		To:      m.Step.To,
-		Reasons: []string{},
+		Reasons: []Reason{},
 		Metrics: metricSetOf(m),
 	}
-	var fails, invalids []string
+	var fails, invalids []Reason
 	// The checks' values live in one array per step rather than one
 	// allocation per check.
 	r.Checks = make([]Check, 0, len(s.Limits))
 	values := make([]float64, len(s.Limits))
 	judge := func(name metrics.Name) {
-		c := judgeCheck(s, name, m, &values[len(r.Checks)])
+		c, why := judgeCheck(s, name, m, &values[len(r.Checks)])
 		r.Checks = append(r.Checks, c)
 		switch c.Verdict {
 		case Fail:
-			fails = append(fails, c.Reason)
+			fails = append(fails, why)
 		case Invalid:
-			invalids = append(invalids, c.Reason)
+			invalids = append(invalids, why)
 		}
 	}
 	// In LimitNames order, without building the list for every step: the
@@ -73,54 +72,45 @@ func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
 }
 
 // judgeCheck applies one limit to one step; a known value is stored in
-// *slot, which the check's Value then points to.
-func judgeCheck(s *spec.Spec, name metrics.Name, m metrics.StepMetrics, slot *float64) Check {
+// *slot, which the check's Value then points to. A check that does not
+// pass comes with its reason, whose text is also the check's Reason.
+func judgeCheck(s *spec.Spec, name metrics.Name, m metrics.StepMetrics, slot *float64) (Check, Reason) {
 	lim := s.Limits[name]
 	// The bounds are the spec's own, shared by every check of the batch and
 	// never written through.
-	c := Check{Metric: name, Min: lim.Min, Max: lim.Max}
+	c := Check{Metric: name, Min: lim.Min, Max: lim.Max, Verdict: Pass}
 	step := m.Step.Index
 	v, known := m.Get(name)
-	if !known {
-		c.Verdict = Invalid
-		c.Reason = fmt.Sprintf("%s is not a metric stepgate measures (step %d)", name, step)
-		return c
-	}
-	if !v.OK {
-		if name == metrics.SettlingTime && lim.Max != nil && m.LastOutside.OK && m.LastOutside.V > *lim.Max {
-			c.Verdict = Fail
-			c.Reason = fmt.Sprintf("%s > %s at step %d: still outside the ±%s %% band %s s after the step",
-				name, formatFloat(*lim.Max), step, pct(s.Options().Band), verdictNumber(m.LastOutside.V, *lim.Max))
-			return c
-		}
-		c.Verdict = Invalid
-		c.Reason = fmt.Sprintf("%s not measured at step %d: %s", name, step, verdictWhy(v))
-		return c
-	}
-	*slot = v.V
-	c.Value = slot
+	var why Reason
 	switch {
-	case lim.Min != nil && v.V < *lim.Min:
-		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("%s %s < %s at step %d", name, verdictNumber(v.V, *lim.Min), formatFloat(*lim.Min), step)
-	case lim.Max != nil && v.V > *lim.Max:
-		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("%s %s > %s at step %d", name, verdictNumber(v.V, *lim.Max), formatFloat(*lim.Max), step)
+	case !known:
+		c.Verdict, why = Invalid, notAMetricReason(name, step)
+	case !v.OK && name == metrics.SettlingTime && lim.Max != nil && m.LastOutside.OK && m.LastOutside.V > *lim.Max:
+		c.Verdict, why = Fail, stillOutsideReason(name, step, m.LastOutside.V, *lim.Max, s.Options().Band)
+	case !v.OK:
+		c.Verdict, why = Invalid, notMeasuredReason(name, step, v)
 	default:
-		c.Verdict = Pass
+		*slot = v.V
+		c.Value = slot
+		switch {
+		case lim.Min != nil && v.V < *lim.Min:
+			c.Verdict, why = Fail, limitReason(BelowMin, name, step, v.V, *lim.Min)
+		case lim.Max != nil && v.V > *lim.Max:
+			c.Verdict, why = Fail, limitReason(AboveMax, name, step, v.V, *lim.Max)
+		}
 	}
-	return c
+	c.Reason = why.Text
+	return c, why
 }
 
 // JudgeUnit combines a unit's step results: invalid when no step was found,
 // fail when any step fails, else invalid when any step is invalid, else
 // pass. The reasons are every step's reasons, in step order.
-func JudgeUnit(s *spec.Spec, steps []StepResult) (Verdict, []string) {
+func JudgeUnit(s *spec.Spec, steps []StepResult) (Verdict, []Reason) {
 	if len(steps) == 0 {
-		return Invalid, []string{fmt.Sprintf("no step found: the command never changed by min_change %s%s",
-			formatFloat(s.Steps.MinChange), unitSuffix(s.ResponseUnit))}
+		return Invalid, []Reason{noStepReason(s.Steps.MinChange, s.ResponseUnit)}
 	}
-	reasons := []string{}
+	reasons := []Reason{}
 	anyFail, anyInvalid := false, false
 	for _, st := range steps {
 		reasons = append(reasons, st.Reasons...)

@@ -149,8 +149,8 @@ func TestJudgeStep(t *testing.T) {
 			if r.Verdict != c.verdict {
 				t.Errorf("verdict = %s, want %s", r.Verdict, c.verdict)
 			}
-			if !reflect.DeepEqual(r.Reasons, c.reasons) {
-				t.Errorf("reasons = %q, want %q", r.Reasons, c.reasons)
+			if got := acceptance.ReasonTexts(r.Reasons); !reflect.DeepEqual(got, c.reasons) {
+				t.Errorf("reasons = %q, want %q", got, c.reasons)
 			}
 			if r.Index != 2 || r.StartS != 0.5 || r.From != 0 || r.To != 10 {
 				t.Errorf("identity = %d %v %v→%v", r.Index, r.StartS, r.From, r.To)
@@ -214,10 +214,7 @@ func TestJudgeStepJSON(t *testing.T) {
 // failing step fails it, even beside invalid ones.
 func TestJudgeUnit(t *testing.T) {
 	step := func(i int, v acceptance.Verdict, reasons ...string) acceptance.StepResult {
-		if reasons == nil {
-			reasons = []string{}
-		}
-		return acceptance.StepResult{Index: i, Verdict: v, Reasons: reasons}
+		return acceptance.StepResult{Index: i, Verdict: v, Reasons: acceptance.TextReasons(reasons...)}
 	}
 	cases := []struct {
 		name    string
@@ -237,8 +234,8 @@ func TestJudgeUnit(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			v, reasons := acceptance.JudgeUnit(s, c.steps)
-			if v != c.verdict || !reflect.DeepEqual(reasons, c.reasons) {
-				t.Errorf("JudgeUnit = %s %q, want %s %q", v, reasons, c.verdict, c.reasons)
+			if got := acceptance.ReasonTexts(reasons); v != c.verdict || !reflect.DeepEqual(got, c.reasons) {
+				t.Errorf("JudgeUnit = %s %q, want %s %q", v, got, c.verdict, c.reasons)
 			}
 		})
 	}

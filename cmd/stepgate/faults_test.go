@@ -315,7 +315,7 @@ func TestVanishingInput(t *testing.T) {
 	for _, u := range b.Units {
 		switch u.File {
 		case gone:
-			if u.Verdict != acceptance.Invalid || len(u.Reasons) != 1 || !strings.Contains(u.Reasons[0], "log cannot be read: read log: stat "+gone+": no such file or directory") {
+			if u.Verdict != acceptance.Invalid || len(u.Reasons) != 1 || !strings.Contains(u.Reasons[0].Text, "log cannot be read: read log: stat "+gone+": no such file or directory") {
 				t.Errorf("vanished log: %s %q", u.Verdict, u.Reasons)
 			}
 		case files[0]:

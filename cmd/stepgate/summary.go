@@ -37,13 +37,13 @@ func printSummary(w io.Writer, b *acceptance.Batch, verbose bool) {
 		}
 		reason := ""
 		if len(u.Reasons) > 0 {
-			reason = u.Reasons[0]
+			reason = u.Reasons[0].Text
 		}
 		pad := strings.Repeat(" ", width-utf8.RuneCountInString(ids[i]))
 		fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, oneLine(reason, 100))
 		if verbose {
 			for _, r := range u.Reasons[min(1, len(u.Reasons)):] {
-				fmt.Fprintf(w, "%s  %-7s  %s\n", strings.Repeat(" ", width), "", oneLine(r, 100))
+				fmt.Fprintf(w, "%s  %-7s  %s\n", strings.Repeat(" ", width), "", oneLine(r.Text, 100))
 			}
 		}
 	}

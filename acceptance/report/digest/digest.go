@@ -218,11 +218,11 @@ func Yield(s acceptance.Summary) (y float64, ok bool) {
 // first step that has one, or "" when nothing was reported.
 func FirstReason(u *acceptance.UnitResult) string {
 	if len(u.Reasons) > 0 {
-		return u.Reasons[0]
+		return u.Reasons[0].Text
 	}
 	for _, s := range u.Steps {
 		if len(s.Reasons) > 0 {
-			return s.Reasons[0]
+			return s.Reasons[0].Text
 		}
 	}
 	return ""

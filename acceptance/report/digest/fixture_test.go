@@ -38,7 +38,7 @@ func step(index int, limits map[metrics.Name]spec.Limit, m map[metrics.Name]floa
 		}
 		s.Checks = append(s.Checks, c)
 		if c.Reason != "" {
-			s.Reasons = append(s.Reasons, c.Reason)
+			s.Reasons = append(s.Reasons, acceptance.Reason{Metric: name, Step: index, Text: c.Reason})
 		}
 		switch {
 		case c.Verdict == acceptance.Fail:
@@ -53,7 +53,7 @@ func step(index int, limits map[metrics.Name]spec.Limit, m map[metrics.Name]floa
 // unit wraps steps into a unit judged the way acceptance.JudgeUnit
 // does: fail when a step fails, else invalid when one is invalid.
 func unit(id string, steps ...acceptance.StepResult) acceptance.UnitResult {
-	u := acceptance.UnitResult{Unit: id, File: id + ".csv", SHA256: "00" + id, Verdict: acceptance.Pass, Steps: steps, Reasons: []string{}}
+	u := acceptance.UnitResult{Unit: id, File: id + ".csv", SHA256: "00" + id, Verdict: acceptance.Pass, Steps: steps, Reasons: []acceptance.Reason{}}
 	for _, s := range steps {
 		u.Reasons = append(u.Reasons, s.Reasons...)
 		switch {

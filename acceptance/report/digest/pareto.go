@@ -29,10 +29,9 @@ type Cause struct {
 // Pareto counts, over the units that did not pass, every reason they show:
 // each metric that exceeded its maximum or fell below its minimum on any
 // step, each limited metric that could not be measured, and each kind of
-// unit-level reason ("log cannot be read", "no step found", "unit id in
-// more than one file", or the text before the first colon of another
-// reason). A unit counts once under each reason it shows, so the bars can
-// add up to more than the units that did not pass. The result is sorted by
+// unit-level reason (UnitReasonLabel). A unit counts once under each reason
+// it shows, so the bars can add up to more than the units that did not
+// pass. The result is sorted by
 // count, most first, then failures before invalid reasons, then by key.
 func Pareto(b *acceptance.Batch) []Cause {
 	count := map[string]*Cause{}
@@ -54,11 +53,13 @@ func Pareto(b *acceptance.Batch) []Cause {
 			c.Units = 1
 			count[c.Key] = &c
 		}
-		stepReasons := map[string]bool{}
+		stepText := map[string]bool{} // texts of step reasons read back without their kind
 		for k := range u.Steps {
 			s := &u.Steps[k]
 			for _, r := range s.Reasons {
-				stepReasons[r] = true
+				if r.Kind == acceptance.OtherReason {
+					stepText[r.Text] = true
+				}
 			}
 			for _, c := range s.Checks {
 				switch c.Verdict {
@@ -83,14 +84,12 @@ func Pareto(b *acceptance.Batch) []Cause {
 			}
 		}
 		for _, r := range u.Reasons {
-			if stepReasons[r] {
-				continue
+			if r.Step > 0 || stepText[r.Text] {
+				continue // a step's reason, counted from its check above
 			}
-			kind := ReasonKind(r)
-			if kind == "" {
-				continue
+			if kind := UnitReasonLabel(r); kind != "" {
+				add(Cause{Verdict: acceptance.Invalid, Key: kind, Label: kind})
 			}
-			add(Cause{Verdict: acceptance.Invalid, Key: kind, Label: kind})
 		}
 	}
 	out := make([]Cause, 0, len(count))
@@ -110,34 +109,33 @@ func Pareto(b *acceptance.Batch) []Cause {
 	return out
 }
 
-// ReasonKind groups a unit-level reason: "log cannot be read", "no step
-// found", "unit id in more than one file", "record not usable" for a log
-// whose samples are not a usable record, "problem in the log file" for a
-// reason that starts with a file position (path:line:column), else the
-// text before the first colon (at most 60 characters); "" for an empty
-// reason.
-func ReasonKind(r string) string {
-	r = strings.TrimSpace(r)
-	switch {
-	case r == "":
-		return ""
-	case strings.HasPrefix(r, "log cannot be read"):
+// UnitReasonLabel names the kind of a unit-level reason as the Pareto
+// shows it: "log cannot be read", "record not usable", "no step found",
+// "unit id in more than one file". Any other reason (an internal error, or
+// a reason read back from the text of results.json or built outside the
+// runner, whose kind is not known) is shown by its text up to the first
+// colon, at most 60 characters, or "problem in the log file" when that text
+// names a file; "" for an empty one.
+func UnitReasonLabel(r acceptance.Reason) string {
+	switch r.Kind {
+	case acceptance.Unreadable:
 		return "log cannot be read"
-	case strings.HasPrefix(r, "no step found"):
-		return "no step found"
-	case strings.HasPrefix(r, "unit id ") && strings.Contains(r, " also appears in "):
-		return "unit id in more than one file"
-	case strings.HasPrefix(r, "log "):
+	case acceptance.Unusable:
 		return "record not usable"
+	case acceptance.NoStep:
+		return "no step found"
+	case acceptance.DuplicateUnit:
+		return "unit id in more than one file"
 	}
-	if i := strings.Index(r, ":"); i > 0 {
-		r = r[:i]
+	t := strings.TrimSpace(r.Text)
+	if i := strings.Index(t, ":"); i > 0 {
+		t = t[:i]
 	}
-	if strings.ContainsAny(r, `/\`) || strings.HasSuffix(r, ".csv") || strings.HasSuffix(r, ".tsv") || strings.HasSuffix(r, ".txt") {
+	if strings.ContainsAny(t, `/\`) || strings.HasSuffix(t, ".csv") || strings.HasSuffix(t, ".tsv") || strings.HasSuffix(t, ".txt") {
 		return "problem in the log file"
 	}
-	if rs := []rune(r); len(rs) > 60 {
-		r = strings.TrimSpace(string(rs[:59])) + "…"
+	if rs := []rune(t); len(rs) > 60 {
+		t = strings.TrimSpace(string(rs[:59])) + "…"
 	}
-	return r
+	return t
 }

@@ -32,13 +32,13 @@ func TestPareto(t *testing.T) {
 		delete(m, k)
 		return m
 	}
-	noSteps := func(id, reason string) acceptance.UnitResult {
+	noSteps := func(id string, kind acceptance.ReasonKind, text string) acceptance.UnitResult {
 		u := unit(id)
-		u.Reasons = []string{reason}
+		u.Reasons = []acceptance.Reason{{Kind: kind, Text: text}}
 		return u
 	}
 	dup := unit("D", step(1, limits, good))
-	dup.Reasons = append(dup.Reasons, `unit id "D" also appears in other/D.csv`)
+	dup.Reasons = append(dup.Reasons, acceptance.Reason{Kind: acceptance.DuplicateUnit, Text: `unit id "D" also appears in other/D.csv`})
 	dup.Verdict = acceptance.Invalid
 	units := []acceptance.UnitResult{
 		unit("P1", step(1, limits, good)),
@@ -50,11 +50,11 @@ func TestPareto(t *testing.T) {
 		// Rise time above its max, with an unmeasured settling time.
 		unit("F4", step(1, limits, with("rise_time_s", 0.9)), step(2, limits, without("settling_time_s"))),
 		unit("I1", step(1, limits, without("settling_time_s"))),
-		noSteps("I2", "log cannot be read: logs/I2.csv:12:3: cannot read \"1,2.3\" as a number"),
-		noSteps("I3", "log cannot be read: logs/I3.csv: the file is empty"),
-		noSteps("I4", "no step found: the command never changed by min_change 0.5 mm"),
-		noSteps("I5", "log logs/I5.csv: sample 7: time does not increase"),
-		noSteps("I6", "rig fault: encoder lost at line 400"),
+		noSteps("I2", acceptance.Unreadable, "log cannot be read: logs/I2.csv:12:3: cannot read \"1,2.3\" as a number"),
+		noSteps("I3", acceptance.Unreadable, "log cannot be read: logs/I3.csv: the file is empty"),
+		noSteps("I4", acceptance.NoStep, "no step found: the command never changed by min_change 0.5 mm"),
+		noSteps("I5", acceptance.Unusable, "log logs/I5.csv: sample 7: time does not increase"),
+		noSteps("I6", acceptance.OtherReason, "rig fault: encoder lost at line 400"),
 		dup,
 	}
 	got := Pareto(batch(limits, units...))
@@ -81,21 +81,27 @@ func TestPareto(t *testing.T) {
 	}
 }
 
-func TestReasonKind(t *testing.T) {
+// TestUnitReasonLabel checks the labels of the unit-level reasons: by kind,
+// and by text only for a reason whose kind is not known.
+func TestUnitReasonLabel(t *testing.T) {
 	long := strings.Repeat("x", 80)
-	for _, tc := range []struct{ in, want string }{
-		{"", ""},
-		{"log cannot be read: a.csv:1: empty", "log cannot be read"},
-		{"no step found: the command never changed", "no step found"},
-		{`unit id "A" also appears in b.csv`, "unit id in more than one file"},
-		{"log a.csv: sample 3 is not finite", "record not usable"},
-		{"drive fault: overcurrent", "drive fault"},
-		{"logs/a.csv:12:3: cannot read", "problem in the log file"},
-		{"a.csv: empty", "problem in the log file"},
-		{long, strings.Repeat("x", 59) + "…"},
+	for _, tc := range []struct {
+		kind acceptance.ReasonKind
+		in   string
+		want string
+	}{
+		{acceptance.OtherReason, "", ""},
+		{acceptance.Unreadable, "log cannot be read: a.csv:1: empty", "log cannot be read"},
+		{acceptance.NoStep, "no step found: the command never changed", "no step found"},
+		{acceptance.DuplicateUnit, `unit id "A" also appears in b.csv`, "unit id in more than one file"},
+		{acceptance.Unusable, "log cannot be measured: sample 3 is not finite", "record not usable"},
+		{acceptance.OtherReason, "drive fault: overcurrent", "drive fault"},
+		{acceptance.OtherReason, "logs/a.csv:12:3: cannot read", "problem in the log file"},
+		{acceptance.OtherReason, "a.csv: empty", "problem in the log file"},
+		{acceptance.OtherReason, long, strings.Repeat("x", 59) + "…"},
 	} {
-		if got := ReasonKind(tc.in); got != tc.want {
-			t.Errorf("ReasonKind(%q) = %q, want %q", tc.in, got, tc.want)
+		if got := UnitReasonLabel(acceptance.Reason{Kind: tc.kind, Text: tc.in}); got != tc.want {
+			t.Errorf("UnitReasonLabel(%v, %q) = %q, want %q", tc.kind, tc.in, got, tc.want)
 		}
 	}
 }

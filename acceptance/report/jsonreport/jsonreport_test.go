@@ -17,13 +17,13 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 	limit := 8.0
 	step := acceptance.StepResult{
 		Index: 1, From: 0, To: 25, Verdict: acceptance.Fail,
-		Reasons: []string{"overshoot_pct 9.1 > 8 at step 1"},
+		Reasons: []acceptance.Reason{{Kind: acceptance.AboveMax, Metric: "overshoot_pct", Step: 1, Value: 9.1, Limit: 8, Text: "overshoot_pct 9.1 > 8 at step 1"}},
 		Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(9.1), "settling_time_s": metrics.Unknown("record ends")}),
 		Checks:  []acceptance.Check{{Metric: "overshoot_pct", Max: &limit, Verdict: acceptance.Fail}},
 	}
 	unit := func(id string) acceptance.UnitResult {
 		return acceptance.UnitResult{Unit: id, File: id + ".csv", Metadata: map[string]string{"station": "EOL-2", "serial": id},
-			Verdict: acceptance.Fail, Reasons: []string{"x"}, Steps: []acceptance.StepResult{step}}
+			Verdict: acceptance.Fail, Reasons: []acceptance.Reason{{Text: "x"}}, Steps: []acceptance.StepResult{step}}
 	}
 	cases := []struct {
 		name string

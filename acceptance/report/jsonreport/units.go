@@ -77,7 +77,7 @@ func (e *unitEncoder) unit(u *acceptance.UnitResult) {
 	e.member(d, `"verdict": `)
 	e.str(string(u.Verdict))
 	e.member(d, `"reasons": `)
-	e.strings(d, u.Reasons)
+	e.reasons(d, u.Reasons)
 	e.member(d, `"steps": `)
 	e.array(d, u.Steps == nil, len(u.Steps), func(i int) { e.step(d+1, &u.Steps[i]) })
 	e.member(d, `"samples": `)
@@ -105,7 +105,7 @@ func (e *unitEncoder) step(d int, s *acceptance.StepResult) {
 	e.member(m, `"verdict": `)
 	e.str(string(s.Verdict))
 	e.member(m, `"reasons": `)
-	e.strings(m, s.Reasons)
+	e.reasons(m, s.Reasons)
 	e.member(m, `"metrics": `)
 	e.metricSet(m, &s.Metrics)
 	e.member(m, `"checks": `)
@@ -288,6 +288,12 @@ func (e *unitEncoder) stringMap(d int, m map[string]string) {
 // strings appends s as an array of strings; null when nil.
 func (e *unitEncoder) strings(d int, s []string) {
 	e.array(d, s == nil, len(s), func(i int) { e.str(s[i]) })
+}
+
+// reasons appends the texts of a slice of reasons, as encoding/json
+// indents a []acceptance.Reason at depth d.
+func (e *unitEncoder) reasons(d int, s []acceptance.Reason) {
+	e.array(d, s == nil, len(s), func(i int) { e.str(s[i].Text) })
 }
 
 // array appends a slice of n elements as encoding/json indents it at depth

@@ -205,7 +205,7 @@ func fixtureUnits() []acceptance.UnitResult {
 	trace := &metrics.Trace{Time: []float64{0, 1}, Command: []float64{0, 1}, Response: []float64{0, 1}, Effort: []float64{0, 1}}
 	full := acceptance.StepResult{
 		Index: 1, StartS: 0.5, From: -0.0, To: 25, Verdict: acceptance.Fail,
-		Reasons: awkward,
+		Reasons: acceptance.TextReasons(awkward...),
 		Metrics: metricsWith(extremes, map[metrics.Name]metrics.Value{
 			metrics.SettlingTime:     metrics.Unknown("record ends <before> settling & \u2028"),
 			metrics.DeadTime:         {}, // no reason: reported as "no reason recorded"
@@ -232,7 +232,7 @@ func fixtureUnits() []acceptance.UnitResult {
 	}
 	allKnown := acceptance.StepResult{
 		Index: 2, StartS: 2.5, From: 25, To: 0, Verdict: acceptance.Pass,
-		Reasons:   []string{},
+		Reasons:   []acceptance.Reason{},
 		Metrics:   metricsWith([]float64{1, 2.5, 1e-6}, nil),
 		Checks:    []acceptance.Check{},
 		Predicted: &acceptance.Prediction{Kind: "ideal", Metrics: metricsWith([]float64{-0.5}, nil)},
@@ -248,7 +248,10 @@ func fixtureUnits() []acceptance.UnitResult {
 				"station": "EOL-2", "serial": "VD25-261101", "": "empty key", "\xffkey": "bad key",
 				"<k>": awkward[3], "z\u2028": "", "Zeta": "upper sorts first", "é": awkward[5],
 			},
-			Verdict: acceptance.Fail, Reasons: []string{"overshoot_pct 9.1 > 8 at step 1", awkward[2]},
+			Verdict: acceptance.Fail, Reasons: []acceptance.Reason{
+				{Kind: acceptance.AboveMax, Metric: metrics.Overshoot, Step: 1, Value: 9.1, Limit: 8, Text: "overshoot_pct 9.1 > 8 at step 1"},
+				{Text: awkward[2]},
+			},
 			Steps:   []acceptance.StepResult{full, allKnown, bare, zeroStep},
 			Samples: 3500,
 			Fit: &acceptance.Fit{
@@ -262,10 +265,10 @@ func fixtureUnits() []acceptance.UnitResult {
 		{Unit: "nil", File: "nil.csv", Verdict: acceptance.Invalid},
 		// Empty slices and maps encode as [] and {}; a fit that failed.
 		{
-			Unit: "empty", Metadata: map[string]string{}, Reasons: []string{}, Steps: []acceptance.StepResult{},
+			Unit: "empty", Metadata: map[string]string{}, Reasons: []acceptance.Reason{}, Steps: []acceptance.StepResult{},
 			Fit: &acceptance.Fit{Why: "too few samples", StaticGain: metrics.Unknown("x")},
 		},
-		{Unit: "bare steps", Steps: []acceptance.StepResult{bare}, Reasons: []string{""}, Fit: &acceptance.Fit{}},
+		{Unit: "bare steps", Steps: []acceptance.StepResult{bare}, Reasons: acceptance.TextReasons(""), Fit: &acceptance.Fit{}},
 		{}, // the zero unit
 	}
 }

@@ -79,9 +79,9 @@ func closedFormMetrics(zeta, wn, from, to float64) map[metrics.Name]metrics.Valu
 
 // judge applies the limits to a step's metrics, the way the acceptance
 // package reports it, so the fixture carries consistent checks.
-func judge(limits map[metrics.Name]spec.Limit, m map[metrics.Name]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []string) {
+func judge(limits map[metrics.Name]spec.Limit, m map[metrics.Name]metrics.Value) ([]acceptance.Check, acceptance.Verdict, []acceptance.Reason) {
 	verdict := acceptance.Pass
-	var reasons []string
+	var reasons []acceptance.Reason
 	var checks []acceptance.Check
 	for _, name := range metrics.Names {
 		l, ok := limits[name]
@@ -111,7 +111,7 @@ func judge(limits map[metrics.Name]spec.Limit, m map[metrics.Name]metrics.Value)
 			c.Value = ptr(v.V)
 		}
 		if c.Reason != "" {
-			reasons = append(reasons, c.Reason)
+			reasons = append(reasons, acceptance.Reason{Metric: name, Step: 1, Text: c.Reason})
 		}
 		checks = append(checks, c)
 	}
@@ -224,7 +224,7 @@ func testBatch() *acceptance.Batch {
 	// An unreadable log: an invalid unit with no steps.
 	bad := acceptance.UnitResult{
 		Unit: "SN-1004", File: "logs/SN-1004.csv", SHA256: sha("SN-1004"), Verdict: acceptance.Invalid,
-		Reasons: []string{`log cannot be read: logs/SN-1004.csv:12:3: cannot read "1,2.3" as a number in column "position"; set log.decimal_comma: true if the rig writes decimal commas`},
+		Reasons: []acceptance.Reason{{Kind: acceptance.Unreadable, Text: `log cannot be read: logs/SN-1004.csv:12:3: cannot read "1,2.3" as a number in column "position"; set log.decimal_comma: true if the rig writes decimal commas`}},
 	}
 	b.Units = append(b.Units[:3], append([]acceptance.UnitResult{bad}, b.Units[3:]...)...)
 	for _, u := range b.Units {

@@ -193,7 +193,7 @@ func (r *report) unitPage(i int, fig *unitFig) error {
 	if len(u.Reasons) > 0 {
 		r.subheading("Reasons", 10)
 		for _, s := range u.Reasons {
-			r.bullet(s, 9, 4.6)
+			r.bullet(s.Text, 9, 4.6)
 		}
 	}
 	if err := r.unitFigure(i, fig); err != nil {
@@ -463,8 +463,8 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 	}
 	var rest []string
 	for _, why := range s.Reasons {
-		if !given[why] {
-			rest = append(rest, why)
+		if !given[why.Text] {
+			rest = append(rest, why.Text)
 		}
 	}
 	if len(rest) > 0 {

@@ -23,7 +23,7 @@ func ExampleWrite() {
 		Summary:    acceptance.Summary{Units: 1, Fail: 1},
 		Units: []acceptance.UnitResult{{
 			Unit: "=1+1", File: "odd-serial.csv", Verdict: acceptance.Fail,
-			Reasons: []string{"overshoot_pct 44.43 above max 15"},
+			Reasons: acceptance.TextReasons("overshoot_pct 44.43 above max 15"),
 			Steps: []acceptance.StepResult{{
 				Index: 1, StartS: 0.5, From: 0, To: 10, Verdict: acceptance.Fail,
 				Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{

@@ -146,7 +146,7 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xl
 			u := &b.Units[i]
 			unitReason := ""
 			if len(u.Reasons) > 0 {
-				unitReason = Text(u.Reasons[0])
+				unitReason = Text(u.Reasons[0].Text)
 			}
 			unitText, fileText := Text(u.Unit), Text(u.File)
 			meta := make([]string, len(cols.meta))
@@ -189,7 +189,7 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xl
 						c += 2
 					}
 					if len(s.Reasons) > 0 {
-						rw.Str(reasonCol, Text(s.Reasons[0]))
+						rw.Str(reasonCol, Text(s.Reasons[0].Text))
 					}
 				} else {
 					rw.Str(8, string(u.Verdict))

@@ -104,7 +104,7 @@ func testBatch() *acceptance.Batch {
 		},
 		TestDates: acceptance.DateRange{First: "2024-05-15", Last: "2024-05-16"},
 	}
-	mk := func(serial, file string, zeta, wn float64, unknown metrics.Name, v acceptance.Verdict, reasons []string) acceptance.UnitResult {
+	mk := func(serial, file string, zeta, wn float64, unknown metrics.Name, v acceptance.Verdict, reasons []acceptance.Reason) acceptance.UnitResult {
 		m, _ := stepMetrics(zeta, wn, unknown)
 		gap := map[metrics.Name]*float64{}
 		for k, pv := range pred {
@@ -124,10 +124,10 @@ func testBatch() *acceptance.Batch {
 	}
 	b.Units = []acceptance.UnitResult{
 		mk("SN-1001", "logs/SN-1001.csv", 0.6, 5, "", acceptance.Pass, nil),
-		mk(formulaSerial, formulaFile, 0.25, 6, "", acceptance.Fail, []string{"overshoot_pct 44.43 above max 15", "settling_time_s 2.667 above max 1.6"}),
+		mk(formulaSerial, formulaFile, 0.25, 6, "", acceptance.Fail, acceptance.TextReasons("overshoot_pct 44.43 above max 15", "settling_time_s 2.667 above max 1.6")),
 		{Unit: ddeSerial, File: "logs/broken.csv", Verdict: acceptance.Invalid,
-			Reasons: []string{`log cannot be read: logs/broken.csv:12:3: cannot read "1,2.3" as a number in column "position"`}},
-		mk("SN-1005\x07", "logs/SN-1005.csv", 0.55, 5, "settling_time_s", acceptance.Invalid, []string{"settling_time_s not measured: the record ends before the response stays in the band"}),
+			Reasons: []acceptance.Reason{{Kind: acceptance.Unreadable, Text: `log cannot be read: logs/broken.csv:12:3: cannot read "1,2.3" as a number in column "position"`}}},
+		mk("SN-1005\x07", "logs/SN-1005.csv", 0.55, 5, "settling_time_s", acceptance.Invalid, acceptance.TextReasons("settling_time_s not measured: the record ends before the response stays in the band")),
 	}
 	b.Summary = acceptance.Summary{Units: 4, Pass: 1, Fail: 1, Invalid: 2}
 	return b
