@@ -27,9 +27,9 @@ import (
 // demoLine writes n demo logs and the demo spec, and a second spec without
 // the model section, whose batch is fast so that a run spends most of its
 // time writing the reports.
-func demoLine(t *testing.T, dir string, n int) (spec, noModel, logs string) {
+func demoLine(t *testing.T, dir string, n int) (specPath, noModel, logs string) {
 	t.Helper()
-	spec, logs, err := demo.Write(dir, demo.Options{Units: n})
+	specPath, logs, err := demo.Write(dir, demo.Options{Units: n})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -42,7 +42,7 @@ func demoLine(t *testing.T, dir string, n int) (spec, noModel, logs string) {
 	if err := os.WriteFile(noModel, []byte(text[:i]+text[j:]), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	return spec, noModel, logs
+	return specPath, noModel, logs
 }
 
 // waitUntil polls cond every millisecond until it holds or the process
@@ -100,13 +100,13 @@ func TestProcessFaults(t *testing.T) {
 	tmp := t.TempDir()
 	bin := buildStepgate(t, tmp)
 	t.Run("full disk", func(t *testing.T) { fullDisk(t, bin) })
-	spec, noModel, logs := demoLine(t, tmp, 300)
+	specPath, noModel, logs := demoLine(t, tmp, 300)
 	// A first complete run on three logs gives the previous reports.
 	few := copyFirstLogs(t, logs, filepath.Join(tmp, "few"), 3)
 
 	cases := []interruption{
-		{"SIGINT during the batch", syscall.SIGINT, spec, "batch"},
-		{"SIGTERM during the batch", syscall.SIGTERM, spec, "batch"},
+		{"SIGINT during the batch", syscall.SIGINT, specPath, "batch"},
+		{"SIGTERM during the batch", syscall.SIGTERM, specPath, "batch"},
 		{"SIGINT while writing", syscall.SIGINT, noModel, "writing"},
 		{"SIGTERM while writing", syscall.SIGTERM, noModel, "writing"},
 	}
@@ -291,12 +291,12 @@ func TestVanishingInput(t *testing.T) {
 		os.WriteFile(p, data, 0o644)
 		files = append(files, p)
 	}
-	spec, err := spec.Load("../../testdata/e2e/spec.yaml")
+	sp, err := spec.Load("../../testdata/e2e/spec.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
 	gone := files[2]
-	b, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{
+	b, err := acceptance.Run(context.Background(), sp, files, acceptance.RunOptions{
 		Workers: 1, ReportDate: "2026-12-01",
 		// One worker takes the files in order: the last is deleted once
 		// the first has been judged.

@@ -132,11 +132,11 @@ func (o identifyOptions) logFormat() (rigdata.Format, float64, error) {
 	minChange := defaultMinChange
 	var f rigdata.Format
 	if o.Spec != "" {
-		spec, err := spec.Load(o.Spec)
+		sp, err := spec.Load(o.Spec)
 		if err != nil {
 			return f, 0, err
 		}
-		f, minChange = spec.Format(), spec.Steps.MinChange
+		f, minChange = sp.Format(), sp.Steps.MinChange
 	} else {
 		cols := strings.Split(o.Columns, ",")
 		if len(cols) != 3 {

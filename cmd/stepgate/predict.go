@@ -116,27 +116,27 @@ func runPredict(s streams, o predictOptions) error {
 	if o.From == o.To {
 		return usageErr(fmt.Errorf("--from and --to are both %v: no step to predict", o.From))
 	}
-	spec, sys, err := loadModel(o.Spec)
+	sp, sys, err := loadModel(o.Spec)
 	if err != nil {
 		return usageErr(err)
 	}
-	duration, dt, err := o.timing(spec, sys)
+	duration, dt, err := o.timing(sp, sys)
 	if err != nil {
 		return usageErr(err)
 	}
-	out := predictOutput{Controller: spec.Model.Controller, Plant: sys.Plant().String(), Caution: templates.GainCaution}
+	out := predictOutput{Controller: sp.Model.Controller, Plant: sys.Plant().String(), Caution: templates.GainCaution}
 	out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS, out.Step.Realisable = o.From, o.To, duration, dt, sys.Realised()
 	pr, err := sys.Predict(o.From, o.To, duration, dt)
 	if err != nil {
 		return usageErr(fmt.Errorf("%s: prediction: %w", o.Spec, err))
 	}
 	// A step smaller than the spec's min_change is still found.
-	minChange := spec.Steps.MinChange
+	minChange := sp.Steps.MinChange
 	if d := abs(o.To - o.From); minChange > d {
 		minChange = d / 2
 	}
-	out.Ideal = acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, spec.Options())
-	out.Realised = acceptance.MeasurePrediction(pr.Realised, "realised", minChange, spec.Options())
+	out.Ideal = acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, sp.Options())
+	out.Realised = acceptance.MeasurePrediction(pr.Realised, "realised", minChange, sp.Options())
 	if out.Design, err = o.design(sys); err != nil {
 		return usageErr(err)
 	}
@@ -145,31 +145,31 @@ func runPredict(s streams, o predictOptions) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(out)
 	}
-	printPrediction(s.out, spec, out)
+	printPrediction(s.out, sp, out)
 	return nil
 }
 
 // loadModel loads the spec and builds its model.
 func loadModel(path string) (*spec.Spec, *model.System, error) {
-	spec, err := spec.Load(path)
+	sp, err := spec.Load(path)
 	if err != nil {
 		return nil, nil, err
 	}
-	if spec.Model == nil {
+	if sp.Model == nil {
 		return nil, nil, fmt.Errorf("%s: the spec has no model section; see `stepgate spec init`", path)
 	}
-	sys, err := model.Build(*spec.Model)
+	sys, err := model.Build(*sp.Model)
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s: model: %w", path, err)
 	}
-	return spec, sys, nil
+	return sp, sys, nil
 }
 
 // timing resolves the simulated duration and the sample period: 0 means
 // twice the model's settling horizon, so that the final window of the
 // metrics lies well inside the settled response, and 1 ms or the loop's
 // sample period when that is shorter.
-func (o predictOptions) timing(spec *spec.Spec, sys *model.System) (duration, dt float64, err error) {
+func (o predictOptions) timing(sp *spec.Spec, sys *model.System) (duration, dt float64, err error) {
 	duration, dt = o.Duration, o.Sample
 	if duration == 0 {
 		if duration, err = sys.SuggestedDuration(); err != nil {
@@ -179,7 +179,7 @@ func (o predictOptions) timing(spec *spec.Spec, sys *model.System) (duration, dt
 	}
 	if dt == 0 {
 		dt = 1e-3
-		if l := spec.Model.Loop; l != nil && l.SamplePeriod > 0 && l.SamplePeriod < dt {
+		if l := sp.Model.Loop; l != nil && l.SamplePeriod > 0 && l.SamplePeriod < dt {
 			dt = l.SamplePeriod
 		}
 	}
@@ -227,9 +227,9 @@ func abs(x float64) float64 {
 	return x
 }
 
-func printPrediction(w io.Writer, spec *spec.Spec, out predictOutput) {
+func printPrediction(w io.Writer, sp *spec.Spec, out predictOutput) {
 	c := out.Controller
-	fmt.Fprintf(w, "%s rev %s model\n  plant: %s\n  controller: kp %g, ki %g, kd %g\n", spec.SpecID, spec.Revision, out.Plant, c.Kp, c.Ki, c.Kd)
+	fmt.Fprintf(w, "%s rev %s model\n  plant: %s\n  controller: kp %g, ki %g, kd %g\n", sp.SpecID, sp.Revision, out.Plant, c.Kp, c.Ki, c.Kd)
 	fmt.Fprintf(w, "  step %g → %g, %.4g s after the step, sampled every %g s\n\n", out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS)
 	fmt.Fprintf(w, "%-24s %14s %14s\n", "metric", "ideal", "realised")
 	for _, n := range metrics.Names {
