@@ -18,8 +18,8 @@ import (
 	"unicode/utf16"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/model"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -270,7 +270,7 @@ func TestCorpusListed(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, e := range ents {
-		if rigdata.IsLogName(e.Name()) && !listed[e.Name()] {
+		if logs.IsLogName(e.Name()) && !listed[e.Name()] {
 			t.Errorf("%s is in the corpus but not in the table", e.Name())
 		}
 	}
@@ -285,9 +285,9 @@ func TestLogLimitsBoundMemory(t *testing.T) {
 	var before, after runtime.MemStats
 	runtime.GC()
 	runtime.ReadMemStats(&before)
-	_, err := rigdata.ReadFile(paths[0], f)
+	_, err := logs.ReadFile(paths[0], f)
 	runtime.ReadMemStats(&after)
-	if !errors.Is(err, rigdata.ErrLineTooLong) {
+	if !errors.Is(err, logs.ErrLineTooLong) {
 		t.Fatalf("err = %v, want a line-too-long error", err)
 	}
 	alloc := after.TotalAlloc - before.TotalAlloc
@@ -615,7 +615,7 @@ func longLineCase(t *testing.T, dir string) ([]string, string) {
 // without reading it.
 func largeFileCase(t *testing.T, dir string) ([]string, string) {
 	p := writeCase(t, filepath.Join(dir, "large.csv"), goodBytes(t))
-	if err := os.Truncate(p, rigdata.DefaultMaxBytes+1); err != nil {
+	if err := os.Truncate(p, logs.DefaultMaxBytes+1); err != nil {
 		t.Skipf("cannot make a sparse file: %v", err)
 	}
 	return []string{p}, ""
@@ -636,7 +636,7 @@ func loopCase(t *testing.T, dir string) ([]string, string) {
 			t.Skipf("symbolic links unavailable: %v", err)
 		}
 	}
-	files, err := rigdata.FindLogs([]string{d}, nil)
+	files, err := logs.FindLogs([]string{d}, nil)
 	if err != nil {
 		t.Fatalf("FindLogs: %v", err)
 	}

@@ -16,7 +16,7 @@ import (
 	"sync"
 	"time"
 
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -103,7 +103,7 @@ func Run(ctx context.Context, sp *spec.Spec, files []string, o RunOptions) (*Bat
 			defer wg.Done()
 			// Each trace is measured before the next file is read, so the
 			// worker's reader lends its buffers instead of copying them.
-			rd := rigdata.NewReader(format).Shared()
+			rd := logs.NewReader(format).Shared()
 			for i := range jobs {
 				u, n, tr := judgeFile(rd, sp, opts, pred, sampler, files[i], o.Traces)
 				// Every unit takes its place among those with a page, with
@@ -186,7 +186,7 @@ feed:
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
+func judgeFile(rd *logs.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
@@ -200,7 +200,7 @@ func judgeFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *pr
 // processFile reads and judges one file; it returns the unit, the bytes
 // read and the record measured (nil when none was), which lives in the
 // reader's buffers until its next file.
-func processFile(rd *rigdata.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
+func processFile(rd *logs.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
 	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []Reason{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
@@ -285,9 +285,9 @@ func (b *Batch) PageUnits(all bool) []int {
 // traceLoader returns a function that reads a unit's log again for its
 // detail page. A log that cannot be read again, or no longer matches the
 // digest judged, gives no record; the page then says so.
-func traceLoader(f rigdata.Format) func(u *UnitResult) *metrics.Trace {
+func traceLoader(f logs.Format) func(u *UnitResult) *metrics.Trace {
 	var mu sync.Mutex
-	rd := rigdata.NewReader(f)
+	rd := logs.NewReader(f)
 	return func(u *UnitResult) *metrics.Trace {
 		if u.SHA256 == "" || len(u.Steps) == 0 {
 			return nil
@@ -304,7 +304,7 @@ func traceLoader(f rigdata.Format) func(u *UnitResult) *metrics.Trace {
 
 // readReason is a read error without the file name, which the unit carries.
 func readReason(err error) string {
-	var pe *rigdata.ParseError
+	var pe *logs.ParseError
 	if !errors.As(err, &pe) || pe.Err == nil {
 		return err.Error()
 	}
@@ -330,7 +330,7 @@ const Notice = "Verdicts state whether measured step responses met the spec's li
 // cannot be opened as a regular file or is larger than a log may be.
 func fileDigest(path string) string {
 	st, err := os.Stat(path)
-	if err != nil || !st.Mode().IsRegular() || st.Size() > rigdata.DefaultMaxBytes {
+	if err != nil || !st.Mode().IsRegular() || st.Size() > logs.DefaultMaxBytes {
 		return ""
 	}
 	f, err := os.Open(path)

@@ -7,8 +7,8 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/demo"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/report"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
 	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
@@ -25,13 +25,13 @@ func benchBatch(b testing.TB, n int) (*spec.Spec, []string, int64) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	files, err := logs.FindLogs([]string{logDir}, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
 	var size int64
 	for _, f := range files {
-		lg, err := rigdata.ReadFile(f, spec.Format())
+		lg, err := logs.ReadFile(f, spec.Format())
 		if err == nil {
 			size += lg.Size
 		}

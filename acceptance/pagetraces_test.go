@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 )
 
 // With KeepPageTraces, the units that get a detail page keep the record
@@ -39,7 +39,7 @@ func TestRunKeepsThePageUnitsRecords(t *testing.T) {
 	}
 	for _, i := range append(withPage, beyond) {
 		u := &b.Units[i]
-		lg, err := rigdata.ReadFile(u.File, spec.Format())
+		lg, err := logs.ReadFile(u.File, spec.Format())
 		if err != nil {
 			if len(u.Steps) == 0 {
 				continue // an unreadable log has no record either way

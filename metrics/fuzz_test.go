@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -69,7 +69,7 @@ func fuzzSeeds(f *testing.F) [][]byte {
 		}
 		paths, _ := filepath.Glob(set.glob)
 		for _, p := range paths {
-			lg, err := rigdata.ReadFile(p, spec.Format())
+			lg, err := logs.ReadFile(p, spec.Format())
 			if err != nil {
 				continue // an unreadable log has no trace to seed with
 			}
@@ -312,7 +312,7 @@ func TestFuzzSeedsDecode(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	lg, err := rigdata.ReadFile("../testdata/bad/good.csv", spec.Format())
+	lg, err := logs.ReadFile("../testdata/bad/good.csv", spec.Format())
 	if err != nil {
 		t.Fatal(err)
 	}

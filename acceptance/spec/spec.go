@@ -1,7 +1,7 @@
 package spec
 
 import (
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"math"
 	"path/filepath"
 	"slices"
@@ -165,8 +165,8 @@ func (s *Spec) LimitNames() []metrics.Name {
 }
 
 // Format returns how the spec says logs are written, for the log reader.
-func (s *Spec) Format() rigdata.Format {
-	f := rigdata.Format{
+func (s *Spec) Format() logs.Format {
+	f := logs.Format{
 		Time:         s.Signals.Time,
 		Command:      s.Signals.Command,
 		Response:     s.Signals.Response,

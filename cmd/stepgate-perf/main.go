@@ -46,7 +46,7 @@ import (
 	"time"
 
 	"github.com/stepgate/stepgate/acceptance/demo"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 )
 
 // options are the script's flags.
@@ -158,7 +158,7 @@ func measureSize(bin string, o options, n int) (result, error) {
 		return result{}, err
 	}
 	fmt.Printf("generated %d logs in %.1f s\n", n, time.Since(t0).Seconds())
-	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	files, err := logs.FindLogs([]string{logDir}, nil)
 	if err != nil {
 		return result{}, err
 	}
@@ -350,7 +350,7 @@ func reportsTime(stderr string) (time.Duration, bool) {
 // bytes and rows read; with digest, the reader also computes each file's
 // SHA-256, as the run does.
 func floor(files []string, digest bool) (bytes, rows int64, err error) {
-	f := rigdata.Format{Time: "t", Command: "target", Response: "position", Effort: "drive", TimeScale: 1}
+	f := logs.Format{Time: "t", Command: "target", Response: "position", Effort: "drive", TimeScale: 1}
 	jobs := make(chan string)
 	var wg sync.WaitGroup
 	var nb, nr atomic.Int64
@@ -361,7 +361,7 @@ func floor(files []string, digest bool) (bytes, rows int64, err error) {
 			// Per-worker reusable buffers, as the batch uses. The bare
 			// floor computes no SHA-256: that is the run's work, not the
 			// parse's.
-			rd := rigdata.NewReader(f).Shared()
+			rd := logs.NewReader(f).Shared()
 			if !digest {
 				rd = rd.WithoutDigest()
 			}

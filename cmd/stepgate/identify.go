@@ -8,8 +8,8 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/model"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -128,9 +128,9 @@ func runIdentify(s streams, o identifyOptions) error {
 // logFormat resolves the log's columns and the smallest step, from the
 // spec when one is named, else from the column and time-unit options;
 // --min-change, when given, overrides the spec's.
-func (o identifyOptions) logFormat() (rigdata.Format, float64, error) {
+func (o identifyOptions) logFormat() (logs.Format, float64, error) {
 	minChange := defaultMinChange
-	var f rigdata.Format
+	var f logs.Format
 	if o.Spec != "" {
 		sp, err := spec.Load(o.Spec)
 		if err != nil {
@@ -142,11 +142,11 @@ func (o identifyOptions) logFormat() (rigdata.Format, float64, error) {
 		if len(cols) != 3 {
 			return f, 0, fmt.Errorf("--columns %q: want time,command,response", o.Columns)
 		}
-		scale, err := rigdata.TimeScaleFor(o.TimeUnit)
+		scale, err := logs.TimeScaleFor(o.TimeUnit)
 		if err != nil {
 			return f, 0, fmt.Errorf("--time-unit: %w", err)
 		}
-		f = rigdata.Format{Time: strings.TrimSpace(cols[0]), Command: strings.TrimSpace(cols[1]), Response: strings.TrimSpace(cols[2]), TimeScale: scale}
+		f = logs.Format{Time: strings.TrimSpace(cols[0]), Command: strings.TrimSpace(cols[1]), Response: strings.TrimSpace(cols[2]), TimeScale: scale}
 	}
 	if o.MinChange != nil {
 		minChange = *o.MinChange
@@ -158,8 +158,8 @@ func (o identifyOptions) logFormat() (rigdata.Format, float64, error) {
 }
 
 // readSteps reads the log and finds its steps.
-func readSteps(path string, f rigdata.Format, minChange float64) (metrics.Trace, []metrics.Step, error) {
-	lg, err := rigdata.ReadFile(path, f)
+func readSteps(path string, f logs.Format, minChange float64) (metrics.Trace, []metrics.Step, error) {
+	lg, err := logs.ReadFile(path, f)
 	if err != nil {
 		return metrics.Trace{}, nil, err
 	}

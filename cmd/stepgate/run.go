@@ -10,9 +10,9 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/report"
 	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
 	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
@@ -164,7 +164,7 @@ func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 	}
 	// The output directory is skipped wherever a search meets it, so that
 	// nothing stepgate or a user left there is read as a log.
-	files, others, err := rigdata.FindLogsAndOthers(o.Paths, []string{in.outAbs})
+	files, others, err := logs.FindLogsAndOthers(o.Paths, []string{in.outAbs})
 	if err != nil {
 		return in, err
 	}
@@ -172,7 +172,7 @@ func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 		// Files that are not logs by name are not judged; say which, so
 		// that a log saved under another extension is not missed unseen.
 		fmt.Fprintf(s.err, "stepgate: %d file(s) in the searched directories are not judged (not %s), e.g. %s\n",
-			len(others), orList(rigdata.LogExtensions), oneLine(others[0], 120))
+			len(others), orList(logs.LogExtensions), oneLine(others[0], 120))
 	}
 	if len(files) == 0 {
 		return in, fmt.Errorf("%s: %w", strings.Join(o.Paths, " "), acceptance.ErrNoLogs)

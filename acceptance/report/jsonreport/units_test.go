@@ -18,7 +18,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/demo"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -78,7 +78,7 @@ var demoBatch = sync.OnceValues(func() (*acceptance.Batch, error) {
 	if err != nil {
 		return nil, err
 	}
-	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	files, err := logs.FindLogs([]string{logDir}, nil)
 	if err != nil {
 		return nil, err
 	}

@@ -7,8 +7,8 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/demo"
+	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
-	"github.com/stepgate/stepgate/acceptance/rigdata"
 	"github.com/stepgate/stepgate/acceptance/spec"
 )
 
@@ -25,7 +25,7 @@ func benchDigest(b testing.TB, n int) *digest.Digest {
 	if err != nil {
 		b.Fatal(err)
 	}
-	files, err := rigdata.FindLogs([]string{logDir}, nil)
+	files, err := logs.FindLogs([]string{logDir}, nil)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-// Package rigdata owns the ingest of step-test logs: it reads the delimited
+// Package logs owns the ingest of step-test logs: it reads the delimited
 // text files written by actuator end-of-line rigs into metrics.Trace values,
 // together with the file's metadata lines, size and SHA-256 digest, and it
 // finds the log files of a batch in the directories a user names.
@@ -49,4 +49,4 @@
 // allocating per field. Numbers are converted exactly: the result is the
 // correctly rounded float64, the same as strconv.ParseFloat gives. One
 // Reader serves one goroutine; a batch uses one per worker.
-package rigdata
+package logs

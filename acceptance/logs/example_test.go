@@ -1,4 +1,4 @@
-package rigdata_test
+package logs_test
 
 import (
 	"errors"
@@ -7,7 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
-	"github.com/stepgate/stepgate/acceptance/rigdata"
+	"github.com/stepgate/stepgate/acceptance/logs"
 )
 
 func ExampleRead() {
@@ -18,8 +18,8 @@ time_ms;cmd;pos
 1;1,0;0,12
 2;1,0;0,47
 `
-	f := rigdata.Format{Time: "time_ms", Command: "cmd", Response: "pos", TimeScale: 1e-3, DecimalComma: true}
-	lg, err := rigdata.Read(strings.NewReader(log), "vd25-000123.csv", f)
+	f := logs.Format{Time: "time_ms", Command: "cmd", Response: "pos", TimeScale: 1e-3, DecimalComma: true}
+	lg, err := logs.Read(strings.NewReader(log), "vd25-000123.csv", f)
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -29,8 +29,8 @@ time_ms;cmd;pos
 	fmt.Println("position:", lg.Trace.Response)
 
 	// A bad value names the file, line, field and column.
-	_, err = rigdata.Read(strings.NewReader("time_ms;cmd;pos\n0;0;0\n1;1;NaN\n"), "vd25-000124.csv", f)
-	fmt.Println(err, errors.Is(err, rigdata.ErrBadNumber))
+	_, err = logs.Read(strings.NewReader("time_ms;cmd;pos\n0;0;0\n1;1;NaN\n"), "vd25-000124.csv", f)
+	fmt.Println(err, errors.Is(err, logs.ErrBadNumber))
 	// Output:
 	// VD25-000123 3 rows, delimiter ;
 	// time, s: [0 0.001 0.002]
@@ -51,7 +51,7 @@ func ExampleFindLogs() {
 		_ = os.MkdirAll(filepath.Dir(p), 0o755)
 		_ = os.WriteFile(p, nil, 0o644)
 	}
-	paths, err := rigdata.FindLogs([]string{root}, []string{filepath.Join(root, "rejected")})
+	paths, err := logs.FindLogs([]string{root}, []string{filepath.Join(root, "rejected")})
 	if err != nil {
 		fmt.Println(err)
 		return

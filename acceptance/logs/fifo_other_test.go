@@ -1,6 +1,6 @@
 //go:build !unix
 
-package rigdata
+package logs
 
 import "errors"
 

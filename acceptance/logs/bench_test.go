@@ -1,4 +1,4 @@
-package rigdata
+package logs
 
 import (
 	"os"
@@ -42,7 +42,7 @@ func BenchmarkParseFloat(b *testing.B) {
 	for _, f := range benchFields {
 		n += int64(len(f))
 	}
-	b.Run("rigdata", func(b *testing.B) {
+	b.Run("logs", func(b *testing.B) {
 		var scratch []byte
 		b.SetBytes(n)
 		b.ReportAllocs()

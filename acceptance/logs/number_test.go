@@ -1,4 +1,4 @@
-package rigdata
+package logs
 
 import (
 	"math"
