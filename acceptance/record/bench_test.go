@@ -3,6 +3,7 @@ package record
 import (
 	"context"
 	"fmt"
+	"os"
 	"path/filepath"
 	"syscall"
 	"testing"
@@ -67,24 +68,47 @@ func BenchmarkRecordRun5000(b *testing.B) {
 	b.ReportMetric(cpu.Seconds()/float64(b.N), "cpu-s/run")
 }
 
-// BenchmarkTrend100k streams 100,000 recorded units of one spec, with the
-// four limited metrics of every step, as a trend over them reads them.
-func BenchmarkTrend100k(b *testing.B) {
-	const total, perRun = 100_000, 5000
+// trendStores keeps the recorded databases between the calls testing makes
+// of a benchmark function (recording 100,000 units takes a minute).
+var trendStores = map[int]*Store{}
+
+// trendStore returns a SQLite record of total units of one spec, recorded
+// in runs of 5,000.
+func trendStore(b *testing.B, total int) *Store {
+	if s := trendStores[total]; s != nil {
+		return s
+	}
+	const perRun = 5000
 	ctx := context.Background()
-	path := filepath.Join(b.TempDir(), "trend.db")
-	s, err := Open(ctx, path)
+	dir, err := os.MkdirTemp("", "stepgate-trend-bench")
 	if err != nil {
 		b.Fatal(err)
 	}
-	defer s.Close()
+	s, err := Open(ctx, filepath.Join(dir, "trend.db"))
+	if err != nil {
+		b.Fatal(err)
+	}
 	setup := time.Now()
 	for first := 0; first < total; first += perRun {
-		if _, err := s.RecordRun(ctx, testRun(t0), testSpec("A"), benchUnits(perRun, first, t0)); err != nil {
+		if _, err := s.RecordRun(ctx, testRun(t0), testSpec("A"), benchUnits(min(perRun, total-first), first, t0)); err != nil {
 			b.Fatal(err)
 		}
 	}
-	b.Logf("recorded %d units in %v", total, time.Since(setup).Round(time.Millisecond))
+	b.Logf("recorded %d units in %v (%s)", total, time.Since(setup).Round(time.Millisecond), dir)
+	trendStores[total] = s
+	return s
+}
+
+// BenchmarkTrend100k streams 100,000 recorded units of one spec, with the
+// four limited metrics of every step, as a trend over them reads them.
+func BenchmarkTrend100k(b *testing.B) { benchTrend(b, 100_000) }
+
+// BenchmarkTrend20k is the same over 20,000 units, to show how the time grows.
+func BenchmarkTrend20k(b *testing.B) { benchTrend(b, 20_000) }
+
+func benchTrend(b *testing.B, total int) {
+	s := trendStore(b, total)
+	ctx := context.Background()
 	f := Filter{SpecID: "VD25-EOL", Steps: true,
 		Metrics: []string{"rise_time_s", "overshoot_pct", "settling_time_s", "steady_state_error"}}
 	b.ResetTimer()
@@ -107,4 +131,18 @@ func BenchmarkTrend100k(b *testing.B) {
 	b.ReportMetric(took.Seconds()/float64(b.N), "s/trend")
 	b.ReportMetric(float64(total*b.N)/took.Seconds(), "units/s")
 	b.ReportMetric(cpu.Seconds()/float64(b.N), "cpu-s/trend")
+}
+
+// TestMain removes the benchmarks' databases.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	for _, s := range trendStores {
+		var path string
+		s.db.QueryRow("SELECT file FROM pragma_database_list WHERE name = 'main'").Scan(&path)
+		s.Close()
+		if path != "" {
+			os.RemoveAll(filepath.Dir(path))
+		}
+	}
+	os.Exit(code)
 }

@@ -33,17 +33,11 @@ func scanAttempt(rows *sql.Rows) (Attempt, error) {
 		return a, fmt.Errorf("record: reading an attempt: %w", err)
 	}
 	a.RunTime, u.FileModTime, u.StartedAt = runAt.t, mtime.t, started.t
-	if err := json.Unmarshal([]byte(meta), &u.Metadata); err != nil {
+	if err := decodeJSON(meta, "{}", &u.Metadata); err != nil {
 		return a, fmt.Errorf("record: attempt %d: metadata: %w", a.ID, err)
 	}
-	if err := json.Unmarshal([]byte(reasons), &u.Reasons); err != nil {
+	if err := decodeJSON(reasons, "[]", &u.Reasons); err != nil {
 		return a, fmt.Errorf("record: attempt %d: reasons: %w", a.ID, err)
-	}
-	if len(u.Metadata) == 0 {
-		u.Metadata = nil
-	}
-	if len(u.Reasons) == 0 {
-		u.Reasons = nil
 	}
 	return a, nil
 }
@@ -81,7 +75,7 @@ func (s *Store) Attempts(ctx context.Context, serial string) ([]Attempt, error) 
 	if err != nil {
 		return nil, fmt.Errorf("%w (serial %q)", err, serial)
 	}
-	if err := s.attachSteps(ctx, out, nil); err != nil {
+	if err := s.attachSteps(ctx, out, nil, true); err != nil {
 		return nil, fmt.Errorf("%w (serial %q)", err, serial)
 	}
 	return out, nil
@@ -140,11 +134,12 @@ type Filter struct {
 	Lot      string
 	Station  string
 
-	// Steps loads each attempt's steps (metrics, predictions, gaps and
-	// checks); Metrics, when not nil, limits the metrics, predictions and
-	// gaps loaded to these names.
+	// Steps loads each attempt's steps with their metrics, predictions and
+	// gaps; Metrics, when not nil, limits those to these names; Checks
+	// loads the steps' limit checks too.
 	Steps   bool
 	Metrics []string
+	Checks  bool
 }
 
 // where renders the filter as a WHERE clause with its arguments.
@@ -185,7 +180,7 @@ func (s *Store) Units(ctx context.Context, f Filter, fn func(Attempt) error) err
 	buf := make([]Attempt, 0, page)
 	emit := func() error {
 		if f.Steps {
-			if err := s.attachSteps(ctx, buf, f.Metrics); err != nil {
+			if err := s.attachSteps(ctx, buf, f.Metrics, f.Checks); err != nil {
 				return err
 			}
 		}
@@ -209,6 +204,15 @@ func (s *Store) Units(ctx context.Context, f Filter, fn func(Attempt) error) err
 		return err
 	}
 	return emit()
+}
+
+// decodeJSON decodes a JSON column into v, leaving v nil when the column
+// holds the empty value (which most rows do, and which costs nothing then).
+func decodeJSON(text, empty string, v any) error {
+	if text == empty || text == "" {
+		return nil
+	}
+	return json.Unmarshal([]byte(text), v)
 }
 
 // marks gives n comma-separated placeholders.

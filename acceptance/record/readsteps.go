@@ -2,7 +2,6 @@ package record
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"slices"
 	"strings"
@@ -14,10 +13,10 @@ type stepKey struct {
 }
 
 // attachSteps loads the steps of the attempts (metrics, predictions, gaps,
-// checks) and sets them on each attempt's Unit. names, when not nil, limits
-// the metrics loaded. Attempt rows are never changed once recorded, so the
+// and checks when asked) and sets them on each attempt's Unit. names, when
+// not nil, limits the metrics loaded. Attempt rows are never changed once recorded, so the
 // steps read here belong to the attempts read before.
-func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string) error {
+func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string, checks bool) error {
 	if len(as) == 0 {
 		return nil
 	}
@@ -27,14 +26,22 @@ func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string) e
 	}
 	steps := map[stepKey]*Step{}
 	byAttempt := map[int64][]*Step{}
-	if err := s.loadStepRows(ctx, ids, steps, byAttempt); err != nil {
+	chosen, others, all := splitNames(names)
+	if err := s.loadStepRows(ctx, ids, chosen, steps, byAttempt); err != nil {
 		return err
 	}
-	if err := s.loadMetricRows(ctx, ids, names, steps); err != nil {
-		return err
+	if all || len(others) > 0 {
+		if all {
+			others = nil
+		}
+		if err := s.loadMetricRows(ctx, ids, others, steps); err != nil {
+			return err
+		}
 	}
-	if err := s.loadCheckRows(ctx, ids, steps); err != nil {
-		return err
+	if checks {
+		if err := s.loadCheckRows(ctx, ids, steps); err != nil {
+			return err
+		}
 	}
 	for i := range as {
 		list := byAttempt[as[i].ID]
@@ -50,30 +57,38 @@ func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string) e
 	return nil
 }
 
-func (s *Store) loadStepRows(ctx context.Context, ids []any, steps map[stepKey]*Step, by map[int64][]*Step) error {
-	q := `SELECT attempt_id, step_index, start_s, from_level, to_level, verdict, reasons, predicted_kind
-		FROM step WHERE attempt_id IN (` + marks(len(ids)) + `) ORDER BY attempt_id, step_index`
+// loadStepRows reads the steps of the attempts with the chosen metric
+// columns (indexes into stepMetrics).
+func (s *Store) loadStepRows(ctx context.Context, ids []any, chosen []int, steps map[stepKey]*Step, by map[int64][]*Step) error {
+	q := `SELECT attempt_id, step_index, start_s, from_level, to_level, verdict, reasons, predicted_kind` +
+		chosenColumns(chosen) + `, unknown FROM step WHERE attempt_id IN (` + marks(len(ids)) + `)
+		ORDER BY attempt_id, step_index`
 	rows, err := s.db.QueryContext(ctx, s.d.render(q), ids...)
 	if err != nil {
 		return fmt.Errorf("record: querying steps: %w", err)
 	}
 	defer rows.Close()
+	vals := make([]Number, 3*len(chosen))
 	for rows.Next() {
 		st := &Step{}
 		var id int64
 		var reasons string
-		var kind *string
-		if err := rows.Scan(&id, &st.Index, &st.StartS, &st.From, &st.To, &st.Verdict, &reasons, &kind); err != nil {
+		var kind, unknown *string
+		dest := []any{&id, &st.Index, &st.StartS, &st.From, &st.To, &st.Verdict, &reasons, &kind}
+		for i := range vals {
+			dest = append(dest, &vals[i])
+		}
+		if err := rows.Scan(append(dest, &unknown)...); err != nil {
 			return fmt.Errorf("record: reading a step: %w", err)
 		}
-		if err := json.Unmarshal([]byte(reasons), &st.Reasons); err != nil {
+		if err := decodeJSON(reasons, "[]", &st.Reasons); err != nil {
 			return fmt.Errorf("record: attempt %d step %d: reasons: %w", id, st.Index, err)
-		}
-		if len(st.Reasons) == 0 {
-			st.Reasons = nil
 		}
 		if kind != nil {
 			st.Predicted = &Prediction{Kind: *kind}
+		}
+		if err := placeColumns(st, chosen, vals, unknown); err != nil {
+			return fmt.Errorf("record: attempt %d: %w", id, err)
 		}
 		steps[stepKey{id, st.Index}] = st
 		by[id] = append(by[id], st)

@@ -116,6 +116,10 @@ func TestRoundTrip(t *testing.T) {
 			Reason: "settling_time_s unknown at step 1", U: Some(0.002), Rule: "guarded acceptance"}
 		st.Checks[0].Min = Some(-math.MaxFloat64)
 		units[0].Steps[2].Predicted = nil
+		// A metric without columns of its own goes to the long-form table.
+		extra := &units[0].Steps[1]
+		extra.Metrics = append(extra.Metrics, Metric{Name: "zz_jerk", Value: Some(1.5)})
+		extra.Gaps = append(extra.Gaps, Metric{Name: "zz_jerk", Reason: "no predicted value"})
 		run := testRun(t0.Add(2 * time.Hour))
 		res, err := s.RecordRun(ctx, run, testSpec("B"), units)
 		if err != nil {
@@ -123,6 +127,13 @@ func TestRoundTrip(t *testing.T) {
 		}
 		if res.Recorded != 3 || res.Skipped != 0 || res.RunID == 0 {
 			t.Errorf("Result = %+v", res)
+		}
+		if c := counts(t, s); c["metric"] != 1 {
+			t.Errorf("%d long-form metric rows, want 1 (zz_jerk)", c["metric"])
+		}
+		trend := collect(t, s, Filter{Steps: true, Metrics: []string{"zz_jerk", "overshoot_pct"}})
+		if got := trend[0].Unit.Steps[1].Metrics; len(got) != 2 || got[1].Name != "zz_jerk" || got[1].Value != Some(1.5) {
+			t.Errorf("trend with a long-form metric: %+v", got)
 		}
 		for _, want := range units {
 			got, err := s.Attempts(ctx, want.Serial)

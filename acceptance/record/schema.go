@@ -1,5 +1,7 @@
 package record
 
+import "strings"
+
 // migration is one schema version: SQL statements applied in order in one
 // transaction. Statements use the dialect tokens of dialect.go.
 type migration struct {
@@ -18,6 +20,9 @@ var migrations = []migration{
 // latestVersion is the schema version this code reads and writes.
 var latestVersion = migrations[len(migrations)-1].version
 
+// In the step table, a metric column that is NULL holds an absent value,
+// or one that could not be computed when the unknown column (JSON) gives
+// its reason.
 var schemaV1 = []string{
 	`CREATE TABLE run (
 		id {{id}},
@@ -64,11 +69,14 @@ var schemaV1 = []string{
 		verdict TEXT NOT NULL,
 		reasons TEXT NOT NULL,
 		predicted_kind TEXT,
+		` + strings.Join(stepMetricColumns(true), ",\n\t\t") + `,
+		unknown TEXT,
 		PRIMARY KEY (attempt_id, step_index)
 	) {{norowid}}`,
-	// One row per metric of a step: measured, predicted and gap. A value
-	// that is NULL with a NULL reason is absent; NULL with a reason is a
-	// value that could not be computed.
+	// The metrics without columns in step (see stepMetrics), one row per
+	// metric of a step: measured, predicted and gap. A value that is NULL
+	// with a NULL reason is absent; NULL with a reason is a value that could
+	// not be computed.
 	`CREATE TABLE metric (
 		attempt_id BIGINT NOT NULL,
 		step_index INTEGER NOT NULL,

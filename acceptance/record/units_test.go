@@ -3,6 +3,7 @@ package record
 import (
 	"context"
 	"errors"
+	"fmt"
 	"reflect"
 	"testing"
 	"time"
@@ -75,7 +76,7 @@ func TestUnitsWithMetrics(t *testing.T) {
 	eachBackend(t, func(t *testing.T, b backend) {
 		s := open(t, b.fresh(t))
 		trendRecord(t, s)
-		got := collect(t, s, Filter{Lot: "L1", Steps: true, Metrics: []string{"settling_time_s", "overshoot_pct"}})
+		got := collect(t, s, Filter{Lot: "L1", Steps: true, Metrics: []string{"settling_time_s", "overshoot_pct"}, Checks: true})
 		if len(got) != 3 {
 			t.Fatalf("%d units, want 3", len(got))
 		}
@@ -130,6 +131,17 @@ func TestUnitsAcrossPages(t *testing.T) {
 			return nil
 		})
 		if err != nil || i != -1 {
+			t.Errorf("streamed %d of %d units: %v", n-1-i, n, err)
+		}
+		// Without Checks, the steps come without their checks.
+		err = s.Units(context.Background(), Filter{Steps: true, Metrics: []string{}}, func(a Attempt) error {
+			if len(a.Unit.Steps) != 3 || a.Unit.Steps[0].Checks != nil || a.Unit.Steps[0].Metrics != nil {
+				return fmt.Errorf("%s: %+v", a.Unit.File, a.Unit.Steps[0])
+			}
+			i++
+			return nil
+		})
+		if err != nil || i != n-1 {
 			t.Errorf("streamed %d of %d units: %v", n-1-i, n, err)
 		}
 	})

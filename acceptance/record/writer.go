@@ -25,8 +25,8 @@ type writer struct {
 func newWriter(ctx context.Context, tx *sql.Tx, d dialect) *writer {
 	return &writer{
 		ctx: ctx, tx: tx, d: d,
-		steps: newBatch(d, "step", "attempt_id", "step_index", "start_s", "from_level", "to_level",
-			"verdict", "reasons", "predicted_kind"),
+		steps: newBatch(d, "step", append(append([]string{"attempt_id", "step_index", "start_s", "from_level",
+			"to_level", "verdict", "reasons", "predicted_kind"}, stepMetricColumns(false)...), "unknown")...),
 		metrics: newBatch(d, "metric", "attempt_id", "step_index", "name", "measured", "measured_reason",
 			"predicted", "predicted_reason", "gap", "gap_reason"),
 		checks: newBatch(d, "step_check", "attempt_id", "step_index", "position", "metric", "value",
@@ -157,8 +157,14 @@ func (w *writer) addSteps(id int64, steps []Step) error {
 		if st.Predicted != nil {
 			kind = st.Predicted.Kind
 		}
+		cols, unknown, others, err := stepValues(st)
+		if err != nil {
+			return fmt.Errorf("step %d: %w", st.Index, err)
+		}
 		w.steps.add(id, st.Index, st.StartS, st.From, st.To, st.Verdict, jsonList(st.Reasons), kind)
-		for _, r := range mergeMetrics(st) {
+		w.steps.add(cols...)
+		w.steps.add(unknown)
+		for _, r := range others {
 			w.metrics.add(id, st.Index, r.name, r.vals[0].value(), r.vals[0].reason(),
 				r.vals[1].value(), r.vals[1].reason(), r.vals[2].value(), r.vals[2].reason())
 		}
