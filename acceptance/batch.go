@@ -54,6 +54,9 @@ type RunOptions struct {
 	MaxUnitPages int
 	Tool         ToolInfo // name and version printed in the reports
 	ReportDate   string   // YYYY-MM-DD; empty means the newest test date in the logs
+	// Open makes the Source a worker reads logs with; nil reads every
+	// registered layout with the spec's Format (logs.Open).
+	Open func(o logs.Options) logs.Source
 	// Progress, when set, is called after each file with the count done, the
 	// total and the bytes read so far. It is called from one goroutine at a
 	// time.
@@ -79,7 +82,11 @@ func Run(ctx context.Context, sp *spec.Spec, files []string, o RunOptions) (*Bat
 	if workers > len(files) && len(files) > 0 {
 		workers = len(files)
 	}
-	format := sp.Format()
+	open := o.Open
+	if open == nil {
+		format := sp.Format()
+		open = func(lo logs.Options) logs.Source { return logs.Open(format, lo) }
+	}
 	opts := sp.Options()
 	pred, predErr := newPredictor(sp)
 	sampler := newCurveSampler(sp, len(files))
@@ -103,7 +110,7 @@ func Run(ctx context.Context, sp *spec.Spec, files []string, o RunOptions) (*Bat
 			defer wg.Done()
 			// Each trace is measured before the next file is read, so the
 			// worker's reader lends its buffers instead of copying them.
-			rd := logs.NewReader(format).Shared()
+			rd := open(logs.Options{Shared: true})
 			for i := range jobs {
 				u, n, tr := judgeFile(rd, sp, opts, pred, sampler, files[i], o.Traces)
 				// Every unit takes its place among those with a page, with
@@ -172,7 +179,7 @@ feed:
 	b.MaxPages = o.MaxUnitPages
 	if o.Traces == KeepPageTraces {
 		b.pageTraces = pages.traces()
-		b.loader = traceLoader(format)
+		b.loader = traceLoader(open(logs.Options{}))
 	}
 	if pred != nil {
 		b.Model = pred.summary()
@@ -186,7 +193,7 @@ feed:
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd *logs.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
+func judgeFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
 	defer func() {
 		if r := recover(); r != nil {
 			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
@@ -200,7 +207,7 @@ func judgeFile(rd *logs.Reader, sp *spec.Spec, opts metrics.Options, pred *predi
 // processFile reads and judges one file; it returns the unit, the bytes
 // read and the record measured (nil when none was), which lives in the
 // reader's buffers until its next file.
-func processFile(rd *logs.Reader, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
+func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
 	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []Reason{}, Steps: []StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
@@ -285,9 +292,8 @@ func (b *Batch) PageUnits(all bool) []int {
 // traceLoader returns a function that reads a unit's log again for its
 // detail page. A log that cannot be read again, or no longer matches the
 // digest judged, gives no record; the page then says so.
-func traceLoader(f logs.Format) func(u *UnitResult) *metrics.Trace {
+func traceLoader(rd logs.Source) func(u *UnitResult) *metrics.Trace {
 	var mu sync.Mutex
-	rd := logs.NewReader(f)
 	return func(u *UnitResult) *metrics.Trace {
 		if u.SHA256 == "" || len(u.Steps) == 0 {
 			return nil
@@ -422,6 +428,3 @@ func isDate(s string) bool {
 	}
 	return true
 }
-
-// ErrNoLogs is returned by FindInputs when the arguments name no log file.
-var ErrNoLogs = errors.New("no log files found (looked for .csv, .tsv and .txt)")

@@ -1,7 +1,15 @@
-// Package logs owns the ingest of step-test logs: it reads the delimited
-// text files written by actuator end-of-line rigs into metrics.Trace values,
-// together with the file's metadata lines, size and SHA-256 digest, and it
-// finds the log files of a batch in the directories a user names.
+// Package logs owns the ingest of step-test logs: finding the log files of
+// a batch in the directories a user names (FindLogs), and reading each into
+// a metrics.Trace, together with the file's metadata lines, size and
+// SHA-256 digest.
+//
+// Reading goes through the Source interface. Each log format is one Layout
+// in a registry keyed by file name extension (source.go); Open returns a
+// Source that reads every registered layout, and LogExtensions, IsLogName
+// and FindLogs read the same registry, so the extensions are written once.
+// A new format, or a container such as a compressed file or an archive, is
+// one Layout and its Source. Today's one layout is delimited text, read by
+// Reader.
 //
 // # Log format
 //

@@ -10,19 +10,18 @@ import (
 	"strings"
 )
 
-// LogExtensions are the file name extensions FindLogs collects from
-// directories, compared without regard to letter case.
-var LogExtensions = []string{".csv", ".tsv", ".txt"}
+// ErrNoLogs says that the paths given name no log file: FindLogs returns
+// an empty list, and a command that needs logs wraps ErrNoLogs with the
+// paths it searched.
+var ErrNoLogs = errors.New("no log files found (looked for " + extensionList() + ")")
 
-// IsLogName reports whether a file name has one of the LogExtensions.
-func IsLogName(name string) bool {
-	ext := filepath.Ext(name)
-	for _, e := range LogExtensions {
-		if strings.EqualFold(ext, e) {
-			return true
-		}
+// extensionList lists the LogExtensions as ".csv, .tsv and .txt".
+func extensionList() string {
+	n := len(LogExtensions)
+	if n == 1 {
+		return LogExtensions[0]
 	}
-	return false
+	return strings.Join(LogExtensions[:n-1], ", ") + " and " + LogExtensions[n-1]
 }
 
 // FindLogs returns the log files named by paths. A file is taken as given,

@@ -93,26 +93,10 @@ func parseNumber(b []byte, dec byte, shift int, scratch *[]byte) (float64, numSt
 		mant, exp, trunc = longMantissa(b[start:i], dec)
 	}
 	mantEnd := i
-	esign, e := 1, 0
+	e := 0 // the written exponent
 	if i < n && (b[i] == 'e' || b[i] == 'E') {
-		i++
-		if i < n && (b[i] == '+' || b[i] == '-') {
-			if b[i] == '-' {
-				esign = -1
-			}
-			i++
-		}
-		start := i
-		for ; i < n; i++ {
-			d := b[i] - '0'
-			if d > 9 {
-				break
-			}
-			if e < 1e9 {
-				e = e*10 + int(d)
-			}
-		}
-		if i == start {
+		var ok bool
+		if e, i, ok = exponent(b, i+1); !ok {
 			return 0, numSyntax
 		}
 	}
@@ -125,33 +109,61 @@ func parseNumber(b []byte, dec byte, shift int, scratch *[]byte) (float64, numSt
 		}
 		return 0, numOK
 	}
-	exp10 := exp + esign*e + shift
 	if !trunc && mant <= 1<<53 {
-		f := float64(mant)
-		ok := false
-		switch {
-		case exp10 >= 0 && exp10 <= 22:
-			f *= exactPow10[exp10]
-			ok = true
-		case exp10 < 0 && exp10 >= -22:
-			f /= exactPow10[-exp10]
-			ok = true
-		case exp10 > 22 && exp10 <= 22+15:
-			// mant·10^(exp10−22) may still be an exact integer ≤ 2^53.
-			k := uintPow10[exp10-22]
-			if hi := mant * k; hi/k == mant && hi <= 1<<53 {
-				f = float64(hi) * 1e22
-				ok = true
-			}
-		}
-		if ok {
+		if f, ok := exactFloat(mant, exp+e+shift); ok {
 			if neg {
 				f = -f
 			}
 			return f, numOK
 		}
 	}
-	return parseSlow(b, dec, shift, mantEnd, esign*e, scratch)
+	return parseSlow(b, dec, shift, mantEnd, e, scratch)
+}
+
+// exponent reads the exponent digits of a number from b[i:], after the 'e'
+// and with an optional sign, and returns its value (capped in magnitude
+// near 1e9), the index after it and whether it held a digit.
+func exponent(b []byte, i int) (e, end int, ok bool) {
+	n := len(b)
+	neg := false
+	if i < n && (b[i] == '+' || b[i] == '-') {
+		neg = b[i] == '-'
+		i++
+	}
+	start := i
+	for ; i < n; i++ {
+		d := b[i] - '0'
+		if d > 9 {
+			break
+		}
+		if e < 1e9 {
+			e = e*10 + int(d)
+		}
+	}
+	if neg {
+		e = -e
+	}
+	return e, i, i > start
+}
+
+// exactFloat returns mant·10^exp10 when one correctly rounded multiply or
+// divide gives it exactly: mant ≤ 2^53 and the power of ten exact in
+// float64 (Clinger's fast path); ok is false otherwise.
+func exactFloat(mant uint64, exp10 int) (f float64, ok bool) {
+	f = float64(mant)
+	switch {
+	case exp10 >= 0 && exp10 <= 22:
+		return f * exactPow10[exp10], true
+	case exp10 < 0 && exp10 >= -22:
+		return f / exactPow10[-exp10], true
+	case exp10 > 22 && exp10 <= 22+15:
+		// mant·10^(exp10−22) may still be an exact integer ≤ 2^53.
+		k := uintPow10[exp10-22]
+		if hi := mant * k; hi/k == mant && hi <= 1<<53 {
+			return float64(hi) * 1e22, true
+		}
+	}
+	return 0, false
 }
 
 // longMantissa reads a mantissa of more than 19 digits: leading zeros are

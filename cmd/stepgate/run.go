@@ -175,7 +175,7 @@ func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 			len(others), orList(logs.LogExtensions), oneLine(others[0], 120))
 	}
 	if len(files) == 0 {
-		return in, fmt.Errorf("%s: %w", strings.Join(o.Paths, " "), acceptance.ErrNoLogs)
+		return in, fmt.Errorf("%s: %w", strings.Join(o.Paths, " "), logs.ErrNoLogs)
 	}
 	in.files = files
 	return in, nil

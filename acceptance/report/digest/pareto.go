@@ -1,11 +1,12 @@
 package digest
 
 import (
-	"github.com/stepgate/stepgate/metrics"
 	"sort"
 	"strings"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/logs"
+	"github.com/stepgate/stepgate/metrics"
 )
 
 // Cause is one bar of the failure-reason Pareto: the number of units that
@@ -131,7 +132,7 @@ func UnitReasonLabel(r acceptance.Reason) string {
 	if i := strings.Index(t, ":"); i > 0 {
 		t = t[:i]
 	}
-	if strings.ContainsAny(t, `/\`) || strings.HasSuffix(t, ".csv") || strings.HasSuffix(t, ".tsv") || strings.HasSuffix(t, ".txt") {
+	if strings.ContainsAny(t, `/\`) || logs.IsLogName(t) {
 		return "problem in the log file"
 	}
 	if rs := []rune(t); len(rs) > 60 {
