@@ -1,26 +1,22 @@
-// Package jsonreport writes the batch result as results.json, the
-// machine-readable record of a stepgate run. Its key names are a contract for
-// machine consumers: keys may be added, never renamed.
 package jsonreport
 
 import (
 	"bufio"
-	"encoding/json"
 	"fmt"
 	"io"
-	"reflect"
-	"strings"
+	"slices"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/spec"
+	"github.com/stepgate/stepgate/metrics"
 )
 
-// Write encodes the digested batch as indented JSON followed by a newline: the same bytes as
-// json.MarshalIndent(b, "", "  ") plus "\n", but streamed unit by unit, so
-// that a batch of many thousand units is never held in memory as one text.
-// Units are encoded without reflection (see unitEncoder); the other fields
-// go through encoding/json. Map keys are sorted, as encoding/json sorts them,
-// so the same batch always gives the same bytes.
+// Write writes the digested batch as results.json to w: indented JSON
+// followed by a newline, streamed unit by unit, so that a batch of many
+// thousand units is never held in memory as one text. The same batch
+// always gives the same bytes. A number that is not finite, which JSON
+// cannot hold, fails the report with an error naming where it is.
 func Write(w io.Writer, d *digest.Digest) error {
 	if d == nil || d.Batch == nil {
 		return fmt.Errorf("results.json: no batch to report")
@@ -40,85 +36,142 @@ func writeBatch(w io.Writer, b *acceptance.Batch) error {
 	return nil
 }
 
+// write writes the document's members in their defined order, flushing the
+// encoder's buffer to w after each part.
 func write(w *bufio.Writer, b *acceptance.Batch) error {
-	v := reflect.ValueOf(b).Elem()
-	t := v.Type()
-	first := true
-	w.WriteString("{")
-	for i := 0; i < t.NumField(); i++ {
-		f := t.Field(i)
-		tag := f.Tag.Get("json")
-		if tag == "-" || !f.IsExported() {
-			continue
+	e := &encoder{}
+	e.B = make([]byte, 0, 16<<10)
+	flush := func(what string) error {
+		if e.NonFinite {
+			return fmt.Errorf("encoding %s: json: unsupported value: a number that is not finite", what)
 		}
-		name, opts, _ := strings.Cut(tag, ",")
-		if name == "" {
-			name = f.Name
-		}
-		fv := v.Field(i)
-		if strings.Contains(opts, "omitempty") && fv.IsZero() {
-			continue
-		}
-		if !first {
-			w.WriteString(",")
-		}
-		first = false
-		key, _ := json.Marshal(name)
-		w.WriteString("\n  ")
-		w.Write(key)
-		w.WriteString(": ")
-		if name == "units" {
-			if err := writeUnits(w, b.Units); err != nil {
-				return err
-			}
-			continue
-		}
-		data, err := json.MarshalIndent(fv.Interface(), "  ", "  ")
-		if err != nil {
-			return fmt.Errorf("encoding %s: %w", name, err)
-		}
-		w.Write(data)
+		_, err := w.Write(e.B)
+		e.B = e.B[:0]
+		return err
 	}
-	if first {
-		w.WriteString("}\n")
-	} else {
-		w.WriteString("\n}\n")
+	e.head(b)
+	if err := flush("the batch"); err != nil {
+		return err
 	}
+	if err := e.units(w, b.Units); err != nil {
+		return err
+	}
+	e.tail(b)
+	e.B = append(e.B, "\n}\n"...)
+	return flush("the batch")
+}
+
+// head appends the members before the units: the tool, the spec and the
+// counts.
+func (e *encoder) head(b *acceptance.Batch) {
+	e.Open(1, `"tool": `)
+	e.Open(2, `"name": `)
+	e.Str(b.Tool.Name)
+	e.Member(2, `"version": `)
+	e.Str(b.Tool.Version)
+	e.Close(1, '}')
+	e.Member(1, `"spec": `)
+	e.Open(2, `"spec_id": `)
+	e.Str(b.Spec.SpecID)
+	e.Member(2, `"revision": `)
+	e.Str(b.Spec.Revision)
+	e.Member(2, `"sha256": `)
+	e.Str(b.Spec.SHA256)
+	e.Member(2, `"title": `)
+	e.Str(b.Spec.Title)
+	e.Close(1, '}')
+	e.Member(1, `"summary": `)
+	e.Open(2, `"units": `)
+	e.Int(b.Summary.Units)
+	e.Member(2, `"pass": `)
+	e.Int(b.Summary.Pass)
+	e.Member(2, `"fail": `)
+	e.Int(b.Summary.Fail)
+	e.Member(2, `"invalid": `)
+	e.Int(b.Summary.Invalid)
+	e.Close(1, '}')
+	e.Member(1, `"units": `)
+}
+
+// units writes the units array, one unit at a time through the encoder's
+// buffer.
+func (e *encoder) units(w *bufio.Writer, units []acceptance.UnitResult) error {
+	if units == nil || len(units) == 0 {
+		e.Array(1, units == nil, 0, nil)
+		_, err := w.Write(e.B)
+		e.B = e.B[:0]
+		return err
+	}
+	w.WriteString("[")
+	for i := range units {
+		if i > 0 {
+			e.B = append(e.B, ',')
+		}
+		e.NL(2)
+		e.unit(2, &units[i])
+		if e.NonFinite {
+			return fmt.Errorf("encoding unit %q (%s): json: unsupported value: a number that is not finite", units[i].Unit, units[i].File)
+		}
+		if _, err := w.Write(e.B); err != nil {
+			return err
+		}
+		e.B = e.B[:0]
+	}
+	e.Close(1, ']')
 	return nil
 }
 
-// writeUnits writes the units array as MarshalIndent would at depth one.
-// Each unit is encoded by a unitEncoder into one reused buffer; a unit it
-// cannot encode (a number that is not finite) goes through encoding/json,
-// which reports the error.
-func writeUnits(w *bufio.Writer, units []acceptance.UnitResult) error {
-	if units == nil {
-		w.WriteString("null")
-		return nil
+// tail appends the members after the units: the model, the limits, the
+// report date, the notice and the test dates.
+func (e *encoder) tail(b *acceptance.Batch) {
+	if b.Model != nil {
+		e.Member(1, `"model": `)
+		e.modelSummary(1, b.Model)
 	}
-	if len(units) == 0 {
-		w.WriteString("[]")
-		return nil
+	e.Member(1, `"limits": `)
+	e.limits(1, b.Limits)
+	e.Member(1, `"report_date": `)
+	e.Str(b.ReportDate)
+	e.Member(1, `"notice": `)
+	e.Str(b.Notice)
+	e.Member(1, `"test_dates": `)
+	e.Open(2, `"first": `)
+	e.Str(b.TestDates.First)
+	e.Member(2, `"last": `)
+	e.Str(b.TestDates.Last)
+	e.Close(1, '}')
+}
+
+// limits appends the spec's limits by metric name in key order; null when
+// the batch has none.
+func (e *encoder) limits(d int, m map[metrics.Name]spec.Limit) {
+	if m == nil {
+		e.Null()
+		return
 	}
-	w.WriteString("[")
-	e := unitEncoder{b: make([]byte, 0, 16<<10)}
-	for i := range units {
-		e.b = e.b[:0]
-		e.unit(&units[i])
-		if e.bad {
-			data, err := json.MarshalIndent(&units[i], "    ", "  ")
-			if err != nil {
-				return fmt.Errorf("encoding unit %q (%s): %w", units[i].Unit, units[i].File, err)
-			}
-			e.b = append(e.b[:0], data...)
-			e.bad = false
-		}
+	if len(m) == 0 {
+		e.B = append(e.B, "{}"...)
+		return
+	}
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, string(k))
+	}
+	slices.Sort(keys)
+	e.B = append(e.B, '{')
+	for i, k := range keys {
 		if i > 0 {
-			w.WriteString(",")
+			e.B = append(e.B, ',')
 		}
-		w.WriteString("\n    ")
-		w.Write(e.b)
+		e.NL(d + 1)
+		e.Str(k)
+		e.B = append(e.B, ": "...)
+		l := m[metrics.Name(k)]
+		e.Open(d+2, `"min": `)
+		e.FloatPtr(l.Min)
+		e.Member(d+2, `"max": `)
+		e.FloatPtr(l.Max)
+		e.Close(d+1, '}')
 	}
-	w.WriteString("\n  ]")
-	return nil
+	e.Close(d, '}')
 }

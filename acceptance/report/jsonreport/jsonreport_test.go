@@ -2,18 +2,19 @@ package jsonreport
 
 import (
 	"bytes"
-	"encoding/json"
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
 // The streamed writer must give exactly the bytes of encoding/json's
-// MarshalIndent (the Go standard library is the reference), for batches
-// with no units, one unit and several, with and without a model.
-func TestWriteMatchesMarshalIndent(t *testing.T) {
+// MarshalIndent of the reference types (the Go standard library is the
+// reference), for batches with no units, one unit and several, with and
+// without a model, and with every member of the model set.
+func TestWriteMatchesReference(t *testing.T) {
 	limit := 8.0
 	step := acceptance.StepResult{
 		Index: 1, From: 0, To: 25, Verdict: acceptance.Fail,
@@ -36,6 +37,9 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 			Tool: acceptance.ToolInfo{Name: "stepgate", Version: "t"}, Units: []acceptance.UnitResult{unit("A1"), unit("A2"), unit("=1+1")},
 			Model: &acceptance.ModelSummary{Plant: "1 / s", Warnings: []string{"w"}}, Limits: map[metrics.Name]spec.Limit{"overshoot_pct": {Max: &limit}},
 		}},
+		{"a full model", acceptance.Batch{Units: []acceptance.UnitResult{}, Model: fullModel(), Limits: map[metrics.Name]spec.Limit{
+			"overshoot_pct": {Max: &limit}, "rise_time_s": {Min: &limit, Max: &limit}, "<&>": {},
+		}, ReportDate: "2026-12-01", Notice: "n <&>", TestDates: acceptance.DateRange{First: "2026-11-30", Last: "2026-12-01"}}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -43,14 +47,34 @@ func TestWriteMatchesMarshalIndent(t *testing.T) {
 			if err := writeBatch(&got, &c.b); err != nil {
 				t.Fatal(err)
 			}
-			want, err := json.MarshalIndent(&c.b, "", "  ")
-			if err != nil {
-				t.Fatal(err)
-			}
-			want = append(want, '\n')
-			if !bytes.Equal(got.Bytes(), want) {
-				t.Errorf("streamed JSON differs from MarshalIndent:\n got %s\nwant %s", got.Bytes(), want)
+			if want := referenceJSON(t, &c.b); !bytes.Equal(got.Bytes(), want) {
+				t.Errorf("streamed JSON differs from the reference:\n got %s\nwant %s", got.Bytes(), want)
 			}
 		})
+	}
+}
+
+// fullModel sets every member of a model summary, and the empty forms.
+func fullModel() *acceptance.ModelSummary {
+	kp := 2.5
+	pred := func(kind string) acceptance.Prediction {
+		return acceptance.Prediction{Kind: kind, Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"overshoot_pct": metrics.Known(1e-7)})}
+	}
+	return &acceptance.ModelSummary{
+		Config: model.Config{
+			ReferenceTest: &model.ReferenceTest{Gain: 1, StaticGain: 0.98, Damping: 0.45, NaturalFrequency: 12.5},
+			Plant:         &model.TransferFunc{Numerator: []float64{5}, Denominator: []float64{}},
+			PlantDeadTime: 0.002,
+			Controller:    model.Controller{Kp: 2, Ki: 0.5, Kd: 0.01, DerivativeFilterHz: 200},
+			Loop:          &model.Loop{SamplePeriod: 0.001, Delay: 0.0005},
+			Actuator:      &model.Actuator{EffortLimit: 10, Deadband: 0.02},
+		},
+		Plant: "5 / (s² + 2 s)", Realised: true,
+		Nominal: []acceptance.NominalPrediction{{From: 0, To: 25, Ideal: pred("ideal"), Realised: pred("realised")}},
+		Designs: []acceptance.GainDesign{
+			{Target: "overshoot_pct", Value: 8, KpIdeal: &kp},
+			{Target: "damping", Value: 1, Why: "no real solution <&>"},
+		},
+		Warnings: []string{"w1", ""},
 	}
 }

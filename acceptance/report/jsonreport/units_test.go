@@ -1,20 +1,17 @@
 package jsonreport
 
 import (
-	"bufio"
 	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
 	"io"
 	"math"
-	"math/rand/v2"
 	"os"
 	"reflect"
 	"strings"
 	"sync"
 	"testing"
-	"unicode/utf8"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/demo"
@@ -22,17 +19,6 @@ import (
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
-
-// marshalIndentJSON is the reference: encoding/json's bytes for b plus the
-// newline Write documents.
-func marshalIndentJSON(t testing.TB, b *acceptance.Batch) []byte {
-	t.Helper()
-	want, err := json.MarshalIndent(b, "", "  ")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return append(want, '\n')
-}
 
 // checkSameBytes fails when Write's bytes for b differ from the reference,
 // showing the first differing line.
@@ -42,7 +28,7 @@ func checkSameBytes(t *testing.T, b *acceptance.Batch) {
 	if err := writeBatch(&got, b); err != nil {
 		t.Fatal(err)
 	}
-	want := marshalIndentJSON(t, b)
+	want := referenceJSON(t, b)
 	if bytes.Equal(got.Bytes(), want) {
 		return
 	}
@@ -56,10 +42,10 @@ func checkSameBytes(t *testing.T, b *acceptance.Batch) {
 			w = wl[i]
 		}
 		if g != w {
-			t.Fatalf("results.json differs from MarshalIndent at line %d:\n got %q\nwant %q", i+1, g, w)
+			t.Fatalf("results.json differs from the reference at line %d:\n got %q\nwant %q", i+1, g, w)
 		}
 	}
-	t.Fatalf("results.json differs from MarshalIndent (%d bytes, want %d)", got.Len(), len(want))
+	t.Fatalf("results.json differs from the reference (%d bytes, want %d)", got.Len(), len(want))
 }
 
 // demoBatch runs the invented demo line once per test binary and returns
@@ -112,7 +98,7 @@ func TestMain(m *testing.M) {
 }
 
 // The demo line's batch (model, fits, predictions, gaps, evidence, failed
-// and invalid units) encodes to exactly MarshalIndent's bytes.
+// and invalid units) encodes to exactly the reference's bytes.
 func TestWriteDemoBatch(t *testing.T) {
 	b, err := demoBatch()
 	if err != nil {
@@ -273,7 +259,7 @@ func fixtureUnits() []acceptance.UnitResult {
 	}
 }
 
-// Hand-built units, alone and together, encode to exactly MarshalIndent's
+// Hand-built units, alone and together, encode to exactly the reference's
 // bytes.
 func TestWriteFixture(t *testing.T) {
 	units := fixtureUnits()
@@ -297,7 +283,7 @@ func TestWriteFixture(t *testing.T) {
 // zeroAllowed lists the fields, as "package.Type.Field", that the fixture
 // may leave at their zero value everywhere. Add a field only when its zero
 // value is the point (and say why); a field added to the result types
-// belongs in fixtureUnits and in the unitEncoder.
+// belongs in fixtureUnits and in the encoder.
 var zeroAllowed = map[string]string{}
 
 // Every exported field of every type reachable from UnitResult is set to a
@@ -315,7 +301,7 @@ func TestFixtureCoversEveryField(t *testing.T) {
 	}
 	for f, ok := range seen {
 		if !ok && zeroAllowed[f] == "" {
-			t.Errorf("fixtureUnits leaves %s at its zero value everywhere: set it in the fixture and encode it in unitEncoder", f)
+			t.Errorf("fixtureUnits leaves %s at its zero value everywhere: set it in the fixture and encode it in the encoder", f)
 		}
 	}
 }
@@ -325,15 +311,21 @@ func fieldKey(t reflect.Type, f reflect.StructField) string {
 	return t.String() + "." + f.Name
 }
 
-// encoded reports whether encoding/json looks into field f (a field tagged
-// "-" is skipped, though the fixture still sets it to show it stays out).
-func encoded(f reflect.StructField) bool {
-	return f.Tag.Get("json") != "-"
+// notInResults lists the fields, as "package.Type.Field", that results.json
+// leaves out: records and chart curves kept for the other reports. The
+// fixture still sets them, to show that they stay out.
+var notInResults = map[string]bool{
+	"acceptance.UnitResult.Trace": true,
+	"acceptance.StepResult.Curve": true,
+}
+
+// encoded reports whether results.json holds field f of type t.
+func encoded(t reflect.Type, f reflect.StructField) bool {
+	return !notInResults[fieldKey(t, f)]
 }
 
 // collectFields adds every exported field of every struct type reachable
-// from t, unmarked, to seen. Unexported fields are followed too, for the
-// types that custom MarshalJSON methods reach through them.
+// from t that results.json holds, unmarked, to seen.
 func collectFields(t reflect.Type, seen map[string]bool, visited map[reflect.Type]bool) {
 	switch t.Kind() {
 	case reflect.Pointer, reflect.Slice, reflect.Array:
@@ -351,7 +343,7 @@ func collectFields(t reflect.Type, seen map[string]bool, visited map[reflect.Typ
 			if f.IsExported() {
 				seen[fieldKey(t, f)] = false // until markFields finds a value
 			}
-			if encoded(f) {
+			if encoded(t, f) {
 				collectFields(f.Type, seen, visited)
 			}
 		}
@@ -382,14 +374,14 @@ func markFields(v reflect.Value, seen map[string]bool) {
 			if f.IsExported() && !v.Field(i).IsZero() {
 				seen[fieldKey(t, f)] = true
 			}
-			if encoded(f) {
+			if encoded(t, f) {
 				markFields(v.Field(i), seen)
 			}
 		}
 	}
 }
 
-// A unit with a number that is not finite fails as MarshalIndent fails,
+// A unit with a number that is not finite fails as encoding/json fails,
 // wherever the number is; an unknown value's number is never written.
 func TestWriteNonFinite(t *testing.T) {
 	nan, inf := math.NaN(), math.Inf(1)
@@ -422,7 +414,7 @@ func TestWriteNonFinite(t *testing.T) {
 				units = []acceptance.UnitResult{{Unit: "U0"}, u, {Unit: "U2"}}
 			}
 			b := &acceptance.Batch{Units: units}
-			_, werr := json.MarshalIndent(b, "", "  ")
+			_, werr := json.MarshalIndent(refOf(b), "", "  ")
 			if werr == nil {
 				t.Fatal("MarshalIndent accepted a number that is not finite")
 			}
@@ -443,137 +435,35 @@ func TestWriteNonFinite(t *testing.T) {
 	})
 }
 
-// appendString quotes as encoding/json does: every byte alone, every rune
-// class, the awkward strings and random byte strings.
-func TestAppendString(t *testing.T) {
-	check := func(s string) {
-		t.Helper()
-		want, err := json.Marshal(s)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if got := appendString(nil, s); !bytes.Equal(got, want) {
-			t.Fatalf("appendString(%q) = %s, want %s", s, got, want)
-		}
-	}
-	for c := range 256 {
-		check(string([]byte{byte(c)}))
-		check("a" + string([]byte{byte(c)}) + "z")
-	}
-	for _, r := range []rune{0x7f, 0x80, 0x7ff, 0x800, 0x2027, 0x2028, 0x2029, 0x202a, 0xd7ff, 0xe000, 0xfffd, 0xffff, 0x10000, 0x10ffff} {
-		check(string(r))
-		check("<" + string(r) + ">")
-	}
-	for _, s := range awkward {
-		check(s)
-	}
-	rng := rand.New(rand.NewPCG(1, 2))
-	alphabet := []string{"a", "<", "&", "\"", "\\", "\n", "\x01", "\x7f", "\xff", "\xe2\x80", "\u2028", "\u2029", "é", "日", "🎉", "\xf0\x9f"}
-	for range 2000 {
-		var sb strings.Builder
-		for range rng.IntN(12) {
-			if rng.IntN(4) == 0 {
-				sb.WriteByte(byte(rng.IntN(256)))
-			} else {
-				sb.WriteString(alphabet[rng.IntN(len(alphabet))])
-			}
-		}
-		check(sb.String())
-	}
-}
-
-// FuzzAppendString compares appendString with encoding/json.
-func FuzzAppendString(f *testing.F) {
-	for _, s := range awkward {
-		f.Add(s)
-	}
-	f.Fuzz(func(t *testing.T, s string) {
-		want, _ := json.Marshal(s)
-		if got := appendString(nil, s); !bytes.Equal(got, want) {
-			t.Fatalf("appendString(%q) = %s, want %s (valid UTF-8: %v)", s, got, want, utf8.ValidString(s))
-		}
-	})
-}
-
-// writeUnitsMarshalIndent is the former writeUnits, one json.MarshalIndent
-// per unit, kept as the benchmark's baseline.
-func writeUnitsMarshalIndent(w *bufio.Writer, units []acceptance.UnitResult) error {
-	if units == nil {
-		w.WriteString("null")
-		return nil
-	}
-	if len(units) == 0 {
-		w.WriteString("[]")
-		return nil
-	}
-	w.WriteString("[")
-	for i := range units {
-		if i > 0 {
-			w.WriteString(",")
-		}
-		data, err := json.MarshalIndent(&units[i], "    ", "  ")
-		if err != nil {
-			return fmt.Errorf("encoding unit %q (%s): %w", units[i].Unit, units[i].File, err)
-		}
-		w.WriteString("\n    ")
-		w.Write(data)
-	}
-	w.WriteString("\n  ]")
-	return nil
-}
-
-// The baseline writes the same bytes as the encoder, so the benchmark
-// compares like with like.
-func TestBaselineMatches(t *testing.T) {
-	b, err := demoBatch()
-	if err != nil {
-		t.Fatal(err)
-	}
-	var old, cur bytes.Buffer
-	for _, c := range []struct {
-		buf *bytes.Buffer
-		f   func(*bufio.Writer, []acceptance.UnitResult) error
-	}{{&old, writeUnitsMarshalIndent}, {&cur, writeUnits}} {
-		w := bufio.NewWriter(c.buf)
-		if err := c.f(w, b.Units); err != nil {
-			t.Fatal(err)
-		}
-		w.Flush()
-	}
-	if !bytes.Equal(old.Bytes(), cur.Bytes()) {
-		t.Fatal("writeUnits and the MarshalIndent baseline differ")
-	}
-}
-
-// BenchmarkWriteUnits writes the units array of the demo line's batch (60
-// units of three steps each, with a model) with the MarshalIndent baseline
-// ("old") and with the encoder ("new"). The bytes per operation are the
-// JSON written.
-func BenchmarkWriteUnits(b *testing.B) {
+// BenchmarkWrite writes results.json of the demo line's batch (60 units
+// of three steps each, with a model) with encoding/json through the
+// reference types ("reference") and with the encoder ("encoder"). The bytes
+// per operation are the JSON written.
+func BenchmarkWrite(b *testing.B) {
 	batch, err := demoBatch()
 	if err != nil {
 		b.Fatal(err)
 	}
 	for _, c := range []struct {
 		name string
-		f    func(*bufio.Writer, []acceptance.UnitResult) error
-	}{{"old", writeUnitsMarshalIndent}, {"new", writeUnits}} {
+		f    func(io.Writer, *acceptance.Batch) error
+	}{
+		{"reference", func(w io.Writer, b *acceptance.Batch) error { return json.NewEncoder(w).Encode(refOf(b)) }},
+		{"encoder", writeBatch},
+	} {
 		b.Run(c.name, func(b *testing.B) {
 			var n countingWriter
-			w := bufio.NewWriterSize(&n, 1<<16)
-			if err := c.f(w, batch.Units); err != nil {
+			if err := c.f(&n, batch); err != nil {
 				b.Fatal(err)
 			}
-			w.Flush()
 			b.SetBytes(int64(n))
 			b.ReportAllocs()
 			b.ResetTimer()
 			for b.Loop() {
-				if err := c.f(w, batch.Units); err != nil {
+				if err := c.f(&n, batch); err != nil {
 					b.Fatal(err)
 				}
 			}
-			w.Flush()
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(batch.Units)), "ns/unit")
 		})
 	}
