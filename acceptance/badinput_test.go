@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"compress/gzip"
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
@@ -20,6 +19,8 @@ import (
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/report/jsonreport"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -441,11 +442,15 @@ func runBatch(t *testing.T, spec *spec.Spec, files []string) *acceptance.Batch {
 // unitJSON is a unit's record as results.json writes it.
 func unitJSON(t *testing.T, u acceptance.UnitResult) []byte {
 	t.Helper()
-	data, err := json.Marshal(u)
+	d, err := digest.New(&acceptance.Batch{Units: []acceptance.UnitResult{u}, ReportDate: "2026-01-01"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	return data
+	var buf bytes.Buffer
+	if err := jsonreport.Write(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
 }
 
 func first(s []acceptance.Reason) string {
@@ -490,8 +495,8 @@ func sameStepsAsGood(t *testing.T, b *acceptance.Batch, u acceptance.UnitResult)
 		if g.Unit != goodSerial {
 			continue
 		}
-		a, _ := json.Marshal(u.Steps)
-		want, _ := json.Marshal(g.Steps)
+		a := unitJSON(t, acceptance.UnitResult{Steps: u.Steps})
+		want := unitJSON(t, acceptance.UnitResult{Steps: g.Steps})
 		if !bytes.Equal(a, want) {
 			t.Errorf("%s measured differently from the good log:\n%s\n%s", u.Unit, a, want)
 		}

@@ -1,19 +1,14 @@
 package acceptance
 
 import (
-	"encoding/json"
-	"sort"
-
-	"github.com/stepgate/stepgate/acceptance/internal/jsonfmt"
 	"github.com/stepgate/stepgate/metrics"
 )
 
 // MetricSet holds one value, measured or unknown, per metric of
 // metrics.Names: fixed arrays rather than a map, so that a batch of many
 // thousand steps stays small. The reasons of unknown metrics are held
-// apart, since most sets have none. In JSON it is an object keyed by metric
-// name, each value a number or null, keys in sorted order (as a map
-// encodes).
+// apart, since most sets have none. (results.json's form of a set is
+// written by package jsonreport.)
 type MetricSet struct {
 	v     [metrics.NumNames]float64
 	known uint16                    // bit i: metric i is known
@@ -117,70 +112,6 @@ func (m *MetricSet) Unmeasured() map[metrics.Name]string {
 	return out
 }
 
-// sortedNames is metrics.Names in the byte order encoding/json sorts map
-// keys in.
-var sortedNames = func() []int {
-	idx := make([]int, len(metrics.Names))
-	for i := range idx {
-		idx[i] = i
-	}
-	sort.Slice(idx, func(a, b int) bool { return metrics.Names[idx[a]] < metrics.Names[idx[b]] })
-	return idx
-}()
-
-// MarshalJSON writes the set as an object: name → number or null.
-func (m MetricSet) MarshalJSON() ([]byte, error) {
-	return metricObject(func(b []byte, i int) []byte {
-		if m.known&(1<<i) == 0 {
-			return append(b, "null"...)
-		}
-		return jsonfmt.AppendFloat(b, m.v[i])
-	}), nil
-}
-
-// quotedNames holds each metric name as a JSON string followed by a colon.
-var quotedNames = func() [][]byte {
-	q := make([][]byte, len(metrics.Names))
-	for i, n := range metrics.Names {
-		k, _ := json.Marshal(string(n))
-		q[i] = append(k, ':')
-	}
-	return q
-}()
-
-// metricObject writes a JSON object with one member per metric, keys in
-// sorted order, each value appended by value(b, index into metrics.Names).
-func metricObject(value func(b []byte, i int) []byte) []byte {
-	b := make([]byte, 0, 320)
-	b = append(b, '{')
-	for k, i := range sortedNames {
-		if k > 0 {
-			b = append(b, ',')
-		}
-		b = append(b, quotedNames[i]...)
-		b = value(b, i)
-	}
-	return append(b, '}')
-}
-
-// UnmarshalJSON reads the object MarshalJSON writes; null is unknown with no
-// reason.
-func (m *MetricSet) UnmarshalJSON(data []byte) error {
-	var raw map[metrics.Name]*float64
-	if err := json.Unmarshal(data, &raw); err != nil {
-		return err
-	}
-	*m = MetricSet{}
-	for k, v := range raw {
-		if v != nil {
-			m.Set(k, metrics.Known(*v))
-		} else {
-			m.Set(k, metrics.Unknown(""))
-		}
-	}
-	return nil
-}
-
 // GapSet holds measured − predicted per metric, where both are known.
 type GapSet struct {
 	v     [metrics.NumNames]float64
@@ -214,38 +145,6 @@ func (g *GapSet) At(i int) (gap float64, ok bool) {
 func (g *GapSet) set(i int, v float64) {
 	g.v[i] = v
 	g.known |= 1 << i
-}
-
-// MarshalJSON writes the set as an object: name → number or null.
-func (g GapSet) MarshalJSON() ([]byte, error) {
-	return metricObject(func(b []byte, i int) []byte {
-		if g.known&(1<<i) == 0 {
-			return append(b, "null"...)
-		}
-		return jsonfmt.AppendFloat(b, g.v[i])
-	}), nil
-}
-
-// MarshalJSON adds the reasons for the unknown metrics under "unmeasured".
-func (s StepResult) MarshalJSON() ([]byte, error) {
-	type plain StepResult
-	return json.Marshal(struct {
-		plain
-		Unmeasured map[metrics.Name]string `json:"unmeasured"`
-	}{plain(s), s.Metrics.Unmeasured()})
-}
-
-// MarshalJSON adds the reasons for the unknown metrics under "unmeasured".
-func (p Prediction) MarshalJSON() ([]byte, error) {
-	type plain Prediction
-	un := p.Metrics.Unmeasured()
-	if len(un) == 0 {
-		un = nil
-	}
-	return json.Marshal(struct {
-		plain
-		Unmeasured map[metrics.Name]string `json:"unmeasured,omitempty"`
-	}{plain(p), un})
 }
 
 // MetricsOf returns the set holding the values of m (keys are metric

@@ -1,7 +1,6 @@
 package acceptance_test
 
 import (
-	"encoding/json"
 	"reflect"
 	"strings"
 	"testing"
@@ -197,11 +196,8 @@ func TestJudgeStep(t *testing.T) {
 func TestJudgeStepJSON(t *testing.T) {
 	s := &spec.Spec{Limits: map[metrics.Name]spec.Limit{"settling_time_s": {Max: verdictF(0.35)}}}
 	m := verdictStep(map[metrics.Name]metrics.Value{metrics.SettlingTime: metrics.Unknown("record too short")}, metrics.Known(0.1))
-	b, err := json.Marshal(acceptance.JudgeStep(s, m))
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, want := range []string{`"settling_time_s":null`, `"value":null`, `"unmeasured":{"settling_time_s":"record too short"}`, `"verdict":"invalid"`} {
+	b := unitJSON(t, acceptance.UnitResult{Steps: []acceptance.StepResult{acceptance.JudgeStep(s, m)}})
+	for _, want := range []string{`"settling_time_s": null`, `"value": null`, "\"unmeasured\": {\n            \"settling_time_s\": \"record too short\"\n", `"verdict": "invalid"`} {
 		if !strings.Contains(string(b), want) {
 			t.Errorf("JSON lacks %s: %s", want, b)
 		}

@@ -27,10 +27,37 @@ type predictOutput struct {
 		SampleS    float64 `json:"sample_period_s"`
 		Realisable bool    `json:"realised_differs"`
 	} `json:"step"`
-	Ideal    acceptance.Prediction `json:"ideal"`
-	Realised acceptance.Prediction `json:"realised"`
-	Design   *designOutput         `json:"design,omitempty"`
-	Caution  string                `json:"caution"`
+	Ideal    predictionOutput `json:"ideal"`
+	Realised predictionOutput `json:"realised"`
+	Design   *designOutput    `json:"design,omitempty"`
+	Caution  string           `json:"caution"`
+}
+
+// predictionOutput is a measured prediction as `predict --json` writes it:
+// every metric, null where unknown, and the reasons of the unknown ones
+// when there are any.
+type predictionOutput struct {
+	Kind       string                    `json:"kind"`
+	Metrics    map[metrics.Name]*float64 `json:"metrics"`
+	Unmeasured map[metrics.Name]string   `json:"unmeasured,omitempty"`
+
+	set acceptance.MetricSet // the values, for the text output
+}
+
+func predictionOf(p acceptance.Prediction) predictionOutput {
+	out := predictionOutput{Kind: p.Kind, Metrics: map[metrics.Name]*float64{}, set: p.Metrics}
+	for i, n := range metrics.Names {
+		if v := p.Metrics.At(i); v.OK {
+			x := v.V
+			out.Metrics[n] = &x
+		} else {
+			out.Metrics[n] = nil
+		}
+	}
+	if un := p.Metrics.Unmeasured(); len(un) > 0 {
+		out.Unmeasured = un
+	}
+	return out
 }
 
 type designOutput struct {
@@ -135,8 +162,8 @@ func runPredict(s streams, o predictOptions) error {
 	if d := abs(o.To - o.From); minChange > d {
 		minChange = d / 2
 	}
-	out.Ideal = acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, sp.Options())
-	out.Realised = acceptance.MeasurePrediction(pr.Realised, "realised", minChange, sp.Options())
+	out.Ideal = predictionOf(acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, sp.Options()))
+	out.Realised = predictionOf(acceptance.MeasurePrediction(pr.Realised, "realised", minChange, sp.Options()))
 	if out.Design, err = o.design(sys); err != nil {
 		return usageErr(err)
 	}
@@ -233,7 +260,7 @@ func printPrediction(w io.Writer, sp *spec.Spec, out predictOutput) {
 	fmt.Fprintf(w, "  step %g → %g, %.4g s after the step, sampled every %g s\n\n", out.Step.From, out.Step.To, out.Step.DurationS, out.Step.SampleS)
 	fmt.Fprintf(w, "%-24s %14s %14s\n", "metric", "ideal", "realised")
 	for _, n := range metrics.Names {
-		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.Metrics.Get(n)), fmtValue(out.Realised.Metrics.Get(n)))
+		fmt.Fprintf(w, "%-24s %14s %14s\n", n, fmtValue(out.Ideal.set.Get(n)), fmtValue(out.Realised.set.Get(n)))
 	}
 	if !out.Step.Realisable {
 		fmt.Fprintln(w, "(the spec has no loop or actuator section: the realised loop equals the ideal one)")
