@@ -5,6 +5,7 @@ import (
 
 	"github.com/xuri/excelize/v2"
 
+	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 	"github.com/stepgate/stepgate/templates"
@@ -51,13 +52,29 @@ func limits(f *excelize.File, st *styles, d *digest.Digest) error {
 // and the designed gains.
 func modelSheet(f *excelize.File, st *styles, d *digest.Digest) error {
 	const sh = SheetModel
-	m := d.Batch.Model
 	if _, err := f.NewSheet(sh); err != nil {
 		return err
 	}
 	w := &sheetWriter{f: f, sh: sh, st: st, row: 1}
 	w.set(1, "Model parameters", st.bold)
 	w.row++
+	modelParameters(w, d.Batch.Model)
+	modelNominal(w, d)
+	if d.Loop != nil {
+		modelLoop(w, d.Loop)
+	}
+	if len(d.Batch.Model.Designs) > 0 {
+		modelDesigns(w, d.Batch.Model)
+	}
+	if w.err != nil {
+		return w.err
+	}
+	return widths(f, sh, []float64{30, 10, 22, 12, 12, 12, 12, 12, 14, 12, 12, 14, 14, 50})
+}
+
+// modelParameters writes the model section of the spec as the batch ran
+// it, one label and value per row.
+func modelParameters(w *sheetWriter, m *acceptance.ModelSummary) {
 	c := m.Config
 	w.pair("plant", orNil(m.Plant), 0)
 	if rt := c.ReferenceTest; rt != nil {
@@ -95,14 +112,15 @@ func modelSheet(f *excelize.File, st *styles, d *digest.Digest) error {
 	for _, wm := range m.Warnings {
 		w.pair("model warning", wm, 0)
 	}
+}
 
+// modelNominal writes every metric of every nominal step, predicted ideal
+// and realised, beside the batch's steps that match it.
+func modelNominal(w *sheetWriter, d *digest.Digest) {
+	m := d.Batch.Model
 	w.head("Nominal predictions")
-	hdr := []string{"from", "to", "metric", "unit", "ideal", "realised", "compared", "batch mean", "gap (mean − compared)", "lowest", "highest",
-		"steps measured", "matching steps", "note"}
-	for i, h := range hdr {
-		w.set(i+1, h, st.header)
-	}
-	w.row++
+	w.header("from", "to", "metric", "unit", "ideal", "realised", "compared", "batch mean", "gap (mean − compared)", "lowest", "highest",
+		"steps measured", "matching steps", "note")
 	cmp := map[[2]float64]map[metrics.Name]digest.Comparison{}
 	for _, x := range d.Comparisons {
 		k := [2]float64{x.From, x.To}
@@ -112,8 +130,7 @@ func modelSheet(f *excelize.File, st *styles, d *digest.Digest) error {
 		cmp[k][x.Metric] = x
 	}
 	for _, n := range m.Nominal {
-		for _, name := range metrics.Names {
-			k := name
+		for _, k := range metrics.Names {
 			iv, rv := n.Ideal.Metrics.Get(k), n.Realised.Metrics.Get(k)
 			compared := iv
 			if m.Realised {
@@ -132,61 +149,42 @@ func modelSheet(f *excelize.File, st *styles, d *digest.Digest) error {
 			} else {
 				vals = append(vals, nil, nil, nil, nil, nil, nil)
 			}
-			vals = append(vals, orNil(note))
-			for i, v := range vals {
-				w.set(i+1, v, 0)
-			}
-			w.row++
+			w.values(append(vals, orNil(note))...)
 		}
 	}
+}
 
-	if l := d.Loop; l != nil {
-		w.head("Identified loop against the model")
-		hdr := []string{"quantity", "unit", "model", "model, fitted", "batch mean", "sd (n − 1)", "lowest", "highest", "coefficient of variation", "units fitted", "note"}
-		for i, h := range hdr {
-			w.set(i+1, h, st.header)
+// modelLoop writes the batch's identified closed loops against the
+// model's.
+func modelLoop(w *sheetWriter, l *digest.LoopSummary) {
+	w.head("Identified loop against the model")
+	w.header("quantity", "unit", "model", "model, fitted", "batch mean", "sd (n − 1)", "lowest", "highest", "coefficient of variation", "units fitted", "note")
+	for _, q := range l.Quantities() {
+		note := l.ModelNote
+		if l.FitWhy != "" {
+			note += "; model, fitted: " + l.FitWhy
 		}
-		w.row++
-		for _, q := range l.Quantities() {
-			note := l.ModelNote
-			if l.FitWhy != "" {
-				note += "; model, fitted: " + l.FitWhy
-			}
-			vals := []interface{}{q.Label, orNil(q.Unit), known(q.Model), known(q.ModelFit), known(q.Mean), known(q.SD), known(q.Min), known(q.Max),
-				known(q.CV), q.N, orNil(note)}
-			for i, v := range vals {
-				w.set(i+1, v, 0)
-			}
-			w.row++
-		}
+		w.values(q.Label, orNil(q.Unit), known(q.Model), known(q.ModelFit), known(q.Mean), known(q.SD), known(q.Min), known(q.Max),
+			known(q.CV), q.N, orNil(note))
 	}
+}
 
-	if len(m.Designs) > 0 {
-		w.head("Gains the model gives, for reference")
-		for i, h := range []string{"target", "value", "kp ideal", "kp realised", "kp in the spec", "note"} {
-			w.set(i+1, h, st.header)
-		}
-		w.row++
-		for _, g := range m.Designs {
-			vals := []interface{}{g.Target, g.Value, bound(g.KpIdeal), bound(g.KpRealised), c.Controller.Kp, orNil(g.Why)}
-			for i, v := range vals {
-				w.set(i+1, v, 0)
-			}
-			w.row++
-		}
-		w.row++
-		w.set(1, strings.Join(strings.Fields(templates.GainCaution), " "), st.note)
-		if w.err == nil {
-			w.err = f.MergeCell(sh, cellRef(1, w.row), cellRef(11, w.row))
-		}
-		if w.err == nil {
-			w.err = f.SetRowHeight(sh, w.row, 48)
-		}
+// modelDesigns writes the gains the model gives, with the caution that
+// goes with a computed gain.
+func modelDesigns(w *sheetWriter, m *acceptance.ModelSummary) {
+	w.head("Gains the model gives, for reference")
+	w.header("target", "value", "kp ideal", "kp realised", "kp in the spec", "note")
+	for _, g := range m.Designs {
+		w.values(g.Target, g.Value, bound(g.KpIdeal), bound(g.KpRealised), m.Config.Controller.Kp, orNil(g.Why))
 	}
-	if w.err != nil {
-		return w.err
+	w.row++
+	w.set(1, strings.Join(strings.Fields(templates.GainCaution), " "), w.st.note)
+	if w.err == nil {
+		w.err = w.f.MergeCell(w.sh, cellRef(1, w.row), cellRef(11, w.row))
 	}
-	return widths(f, sh, []float64{30, 10, 22, 12, 12, 12, 12, 12, 14, 12, 12, 14, 14, 50})
+	if w.err == nil {
+		w.err = w.f.SetRowHeight(w.sh, w.row, 48)
+	}
 }
 
 // floats joins coefficients for a text cell.

@@ -52,6 +52,23 @@ func (w *sheetWriter) pair(label string, v interface{}, style int) {
 	w.row++
 }
 
+// header writes a row of column headings and moves to the next row.
+func (w *sheetWriter) header(names ...string) {
+	for i, h := range names {
+		w.set(i+1, h, w.st.header)
+	}
+	w.row++
+}
+
+// values writes a row of values from column A on, unstyled, and moves to
+// the next row.
+func (w *sheetWriter) values(vals ...interface{}) {
+	for i, v := range vals {
+		w.set(i+1, v, 0)
+	}
+	w.row++
+}
+
 // text writes a label and a long text merged over B:L, wrapped, with a row
 // height that shows all of it.
 func (w *sheetWriter) text(label, s string, style int) {
