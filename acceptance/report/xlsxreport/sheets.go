@@ -78,39 +78,15 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xl
 	if _, err := f.NewSheet(sh); err != nil {
 		return err
 	}
-	unit := d.ResponseUnit
-	cols := columnsFor(d)
-	header := []string{"unit", "file", "step", "start_s (s)", withUnit("from", unit), withUnit("to", unit), "step verdict", "unit verdict"}
-	for _, m := range cols.metrics {
-		header = append(header, withUnit(string(m), digest.MetricUnit(m, unit)))
-	}
-	for _, m := range cols.predicted {
-		header = append(header, withUnit("predicted "+string(m), digest.MetricUnit(m, unit)), withUnit("gap "+string(m), digest.MetricUnit(m, unit)))
-	}
-	header = append(header, "step reason", "unit reason")
-	for _, k := range cols.meta {
-		header = append(header, "log: "+Text(k))
-	}
-	header = append(header, "file SHA-256")
-	shaCol := len(header)
-
+	lay := newUnitsLayout(d)
 	rows := unitRows(b)
-	unitW, fileW, reasonW := 8, 8, 12
-	for i := range b.Units {
-		u := &b.Units[i]
-		unitW = max(unitW, utf8.RuneCountInString(u.Unit))
-		fileW = max(fileW, utf8.RuneCountInString(u.File))
-		if r := digest.FirstReason(u); r != "" {
-			reasonW = max(reasonW, utf8.RuneCountInString(r))
-		}
-	}
 	if rows+1 > maxRows {
 		return fmt.Errorf("%d unit steps exceed the %d rows a worksheet holds; split the batch", rows, maxRows-1)
 	}
 	last := rows + 1
 	// Filter and conditional formats belong to the worksheet, which the
 	// stream writer takes over: set them first.
-	if err := f.AutoFilter(sh, "A1:"+cellRef(len(header), last), nil); err != nil {
+	if err := f.AutoFilter(sh, "A1:"+cellRef(len(lay.header), last), nil); err != nil {
 		return err
 	}
 	if err := verdictColours(f, sh, fmt.Sprintf("%s2:%s%d", colName(unitsVerdictCol), colName(unitsVerdictCol+1), max(last, 2)), st); err != nil {
@@ -120,93 +96,144 @@ func units(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xl
 	if err != nil {
 		return err
 	}
-	w := map[int]float64{1: clampW(unitW), 2: clampW(fileW), 3: 6, 4: 11, 5: 10, 6: 10, 7: 12, 8: 12}
-	for i := unitsFirstValue; i <= len(header); i++ {
-		w[i] = clampW(utf8.RuneCountInString(header[i-1]))
-	}
-	// 1-based column of the step reason; the unit reason follows it.
-	reasonCol := unitsFirstValue + len(cols.metrics) + 2*len(cols.predicted)
-	w[reasonCol], w[reasonCol+1] = clampW(reasonW), clampW(reasonW)
-	if err := streamHead(sw, st, header, w); err != nil {
+	if err := streamHead(sw, st, lay.header, lay.widths(b)); err != nil {
 		return err
 	}
 	if err := sw.Flush(); err != nil {
 		return err
 	}
-	metricIdx := make([]int, len(cols.metrics))
-	for i, m := range cols.metrics {
-		metricIdx[i] = metrics.Index(m)
-	}
-	predIdx := make([]int, len(cols.predicted))
-	for i, m := range cols.predicted {
-		predIdx[i] = metrics.Index(m)
-	}
-	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
+	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(lay.header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
-			u := &b.Units[i]
-			unitReason := ""
-			if len(u.Reasons) > 0 {
-				unitReason = Text(u.Reasons[0].Text)
-			}
-			unitText, fileText := Text(u.Unit), Text(u.File)
-			meta := make([]string, len(cols.meta))
-			for j, key := range cols.meta {
-				meta[j] = Text(u.Metadata[key])
-			}
-			n := max(len(u.Steps), 1)
-			for k := 0; k < n; k++ {
-				rw.Start()
-				rw.Str(1, unitText)
-				rw.Str(2, fileText)
-				if len(u.Steps) > 0 {
-					s := &u.Steps[k]
-					rw.Int(3, s.Index)
-					rw.Num(4, s.StartS)
-					rw.Num(5, s.From)
-					rw.Num(6, s.To)
-					rw.Str(7, string(s.Verdict))
-					rw.Str(8, string(u.Verdict))
-					c := unitsFirstValue
-					for _, mi := range metricIdx {
-						if mi >= 0 {
-							if v := s.Metrics.At(mi); v.OK {
-								rw.Num(c, v.V)
-							}
-						}
-						c++
-					}
-					for _, mi := range predIdx {
-						if mi >= 0 {
-							if s.Predicted != nil {
-								if v := s.Predicted.Metrics.At(mi); v.OK {
-									rw.Num(c, v.V)
-								}
-							}
-							if g, ok := s.Gap.At(mi); ok {
-								rw.Num(c+1, g)
-							}
-						}
-						c += 2
-					}
-					if len(s.Reasons) > 0 {
-						rw.Str(reasonCol, Text(s.Reasons[0].Text))
-					}
-				} else {
-					rw.Str(8, string(u.Verdict))
-				}
-				rw.Str(reasonCol+1, unitReason)
-				for j := range meta {
-					rw.Str(reasonCol+2+j, meta[j])
-				}
-				rw.Str(shaCol, u.SHA256)
-				if err := rw.End(); err != nil {
-					return fmt.Errorf("row %d (unit %q): %w", rw.Row(), u.Unit, err)
-				}
+			if err := lay.unit(rw, &b.Units[i]); err != nil {
+				return err
 			}
 		}
 		return nil
 	}}
 	return nil
+}
+
+// unitsLayout is the columns of the Units sheet: the step's fields, every
+// metric, predicted and gap of the limited ones, the reasons, the log's
+// metadata and the file's SHA-256.
+type unitsLayout struct {
+	cols      unitColumns
+	header    []string
+	metricIdx []int // index into metrics.Names of each metric column
+	predIdx   []int // of each predicted-and-gap column pair
+	reasonCol int   // the step reason; the unit reason follows it
+	shaCol    int
+}
+
+func newUnitsLayout(d *digest.Digest) *unitsLayout {
+	unit := d.ResponseUnit
+	l := &unitsLayout{cols: columnsFor(d)}
+	l.header = []string{"unit", "file", "step", "start_s (s)", withUnit("from", unit), withUnit("to", unit), "step verdict", "unit verdict"}
+	for _, m := range l.cols.metrics {
+		l.header = append(l.header, withUnit(string(m), digest.MetricUnit(m, unit)))
+		l.metricIdx = append(l.metricIdx, metrics.Index(m))
+	}
+	for _, m := range l.cols.predicted {
+		l.header = append(l.header, withUnit("predicted "+string(m), digest.MetricUnit(m, unit)), withUnit("gap "+string(m), digest.MetricUnit(m, unit)))
+		l.predIdx = append(l.predIdx, metrics.Index(m))
+	}
+	l.header = append(l.header, "step reason", "unit reason")
+	for _, k := range l.cols.meta {
+		l.header = append(l.header, "log: "+Text(k))
+	}
+	l.header = append(l.header, "file SHA-256")
+	l.shaCol = len(l.header)
+	l.reasonCol = unitsFirstValue + len(l.cols.metrics) + 2*len(l.cols.predicted)
+	return l
+}
+
+// widths are the column widths: the unit, file and reason columns as wide
+// as their longest text (within bounds), the values as their headers.
+func (l *unitsLayout) widths(b *acceptance.Batch) map[int]float64 {
+	unitW, fileW, reasonW := 8, 8, 12
+	for i := range b.Units {
+		u := &b.Units[i]
+		unitW = max(unitW, utf8.RuneCountInString(u.Unit))
+		fileW = max(fileW, utf8.RuneCountInString(u.File))
+		if r := digest.FirstReason(u); r != "" {
+			reasonW = max(reasonW, utf8.RuneCountInString(r))
+		}
+	}
+	w := map[int]float64{1: clampW(unitW), 2: clampW(fileW), 3: 6, 4: 11, 5: 10, 6: 10, 7: 12, 8: 12}
+	for i := unitsFirstValue; i <= len(l.header); i++ {
+		w[i] = clampW(utf8.RuneCountInString(l.header[i-1]))
+	}
+	w[l.reasonCol], w[l.reasonCol+1] = clampW(reasonW), clampW(reasonW)
+	return w
+}
+
+// unit writes the rows of u: one per step, one for a unit without steps.
+func (l *unitsLayout) unit(rw *xlsxenc.RowWriter, u *acceptance.UnitResult) error {
+	unitReason := ""
+	if len(u.Reasons) > 0 {
+		unitReason = Text(u.Reasons[0].Text)
+	}
+	unitText, fileText := Text(u.Unit), Text(u.File)
+	meta := make([]string, len(l.cols.meta))
+	for j, key := range l.cols.meta {
+		meta[j] = Text(u.Metadata[key])
+	}
+	n := max(len(u.Steps), 1)
+	for k := 0; k < n; k++ {
+		rw.Start()
+		rw.Str(1, unitText)
+		rw.Str(2, fileText)
+		if len(u.Steps) > 0 {
+			l.step(rw, &u.Steps[k], u.Verdict)
+		} else {
+			rw.Str(8, string(u.Verdict))
+		}
+		rw.Str(l.reasonCol+1, unitReason)
+		for j := range meta {
+			rw.Str(l.reasonCol+2+j, meta[j])
+		}
+		rw.Str(l.shaCol, u.SHA256)
+		if err := rw.End(); err != nil {
+			return fmt.Errorf("row %d (unit %q): %w", rw.Row(), u.Unit, err)
+		}
+	}
+	return nil
+}
+
+// step writes the step's cells of a row, from the step index to the step
+// reason.
+func (l *unitsLayout) step(rw *xlsxenc.RowWriter, s *acceptance.StepResult, unitVerdict acceptance.Verdict) {
+	rw.Int(3, s.Index)
+	rw.Num(4, s.StartS)
+	rw.Num(5, s.From)
+	rw.Num(6, s.To)
+	rw.Str(7, string(s.Verdict))
+	rw.Str(8, string(unitVerdict))
+	c := unitsFirstValue
+	for _, mi := range l.metricIdx {
+		if mi >= 0 {
+			if v := s.Metrics.At(mi); v.OK {
+				rw.Num(c, v.V)
+			}
+		}
+		c++
+	}
+	for _, mi := range l.predIdx {
+		if mi >= 0 {
+			if s.Predicted != nil {
+				if v := s.Predicted.Metrics.At(mi); v.OK {
+					rw.Num(c, v.V)
+				}
+			}
+			if g, ok := s.Gap.At(mi); ok {
+				rw.Num(c+1, g)
+			}
+		}
+		c += 2
+	}
+	if len(s.Reasons) > 0 {
+		rw.Str(l.reasonCol, Text(s.Reasons[0].Text))
+	}
 }
 
 // streamHead sets a streamed sheet's column widths, frozen header row and
