@@ -96,10 +96,24 @@ func (w *sheetWriter) head(s string) {
 }
 
 func summary(f *excelize.File, st *styles, d *digest.Digest) error {
-	b := d.Batch
 	w := &sheetWriter{f: f, sh: SheetSummary, st: st, row: 1}
 	w.set(1, digest.Title, st.title)
 	w.row += 2
+	summaryIdentification(w, d)
+	summaryResult(w, d)
+	summaryStats(w, d)
+	summaryCauses(w, d)
+	summaryNotes(w, d)
+	if w.err != nil {
+		return w.err
+	}
+	return widths(f, SheetSummary, summaryWidths)
+}
+
+// summaryIdentification writes what identifies the report: ids, dates,
+// the issuer, the spec, the tool and the decision rule.
+func summaryIdentification(w *sheetWriter, d *digest.Digest) {
+	b := d.Batch
 	dates, _ := digest.TestDates(b)
 	w.pair("report id", d.ID, 0)
 	w.pair("report date", b.ReportDate, 0)
@@ -119,11 +133,15 @@ func summary(f *excelize.File, st *styles, d *digest.Digest) error {
 	w.pair("spec SHA-256", b.Spec.SHA256, 0)
 	w.pair("tool", b.Tool.Name, 0)
 	w.pair("tool version", b.Tool.Version, 0)
-	w.text("decision rule", digest.DecisionRule, st.wrap)
-	w.text("note", digest.Phrase("results-relate")+" An empty metric cell means the metric could not be measured; the Units and Checks sheets give the reason.", st.wrap)
+	w.text("decision rule", digest.DecisionRule, w.st.wrap)
+	w.text("note", digest.Phrase("results-relate")+" An empty metric cell means the metric could not be measured; the Units and Checks sheets give the reason.", w.st.wrap)
+}
 
+// summaryResult writes the counts by verdict and the yield.
+func summaryResult(w *sheetWriter, d *digest.Digest) {
+	st := w.st
 	w.head("Result")
-	s := b.Summary
+	s := d.Batch.Summary
 	w.pair("units", s.Units, 0)
 	w.pair("pass", s.Pass, st.passCell)
 	w.pair("fail", s.Fail, st.failCell)
@@ -135,14 +153,16 @@ func summary(f *excelize.File, st *styles, d *digest.Digest) error {
 		w.set(3, "not defined: "+d.Yield.Why, 0)
 		w.row++
 	}
+}
 
+// summaryStats writes the capability table: the statistics of every
+// limited metric over the measured steps.
+func summaryStats(w *sheetWriter, d *digest.Digest) {
+	st := w.st
 	w.head("Limited metrics over the measured steps")
 	hdr := []string{"metric", "unit", "n (measured steps)", "steps", "mean", "sd (n − 1)", "min", "max", "limit min", "limit max",
 		"predicted", "gap (mean − predicted)", "Cp", "index", "index value", "n < 30", "note"}
-	for i, h := range hdr {
-		w.set(i+1, h, st.header)
-	}
-	w.row++
+	w.header(hdr...)
 	for _, m := range d.Stats {
 		c := m.Capability
 		var notes []string
@@ -176,52 +196,50 @@ func summary(f *excelize.File, st *styles, d *digest.Digest) error {
 	}
 	w.set(1, digest.Phrase("capability"), st.note)
 	if w.err == nil {
-		w.err = f.MergeCell(SheetSummary, cellRef(1, w.row), cellRef(len(hdr), w.row))
+		w.err = w.f.MergeCell(SheetSummary, cellRef(1, w.row), cellRef(len(hdr), w.row))
 	}
 	if w.err == nil {
-		w.err = f.SetRowHeight(SheetSummary, w.row, 62)
+		w.err = w.f.SetRowHeight(SheetSummary, w.row, 62)
 	}
 	w.row++
+}
 
+// summaryCauses writes the failure-reason Pareto.
+func summaryCauses(w *sheetWriter, d *digest.Digest) {
 	w.head("Why units did not pass")
-	for i, h := range []string{"reason", "verdict", "units", "share of units", "metric", "key"} {
-		w.set(i+1, h, st.header)
-	}
-	w.row++
+	w.header("reason", "verdict", "units", "share of units", "metric", "key")
 	if len(d.Causes) == 0 {
 		w.set(1, "no unit failed or was invalid", 0)
 		w.row++
 	}
+	units := d.Batch.Summary.Units
 	for _, c := range d.Causes {
 		var share interface{}
-		if s.Units > 0 {
-			share = float64(c.Units) / float64(s.Units)
+		if units > 0 {
+			share = float64(c.Units) / float64(units)
 		}
 		w.set(1, c.Label, 0)
 		w.set(2, string(c.Verdict), 0)
 		w.set(3, c.Units, 0)
-		w.set(4, share, st.percent)
+		w.set(4, share, w.st.percent)
 		w.set(5, orNil(string(c.Metric)), 0)
 		w.set(6, c.Key, 0)
 		w.row++
 	}
+}
 
+// summaryNotes writes the notes on likely causes and the advice that
+// closes them.
+func summaryNotes(w *sheetWriter, d *digest.Digest) {
 	w.head("Likely causes (indications, not proof)")
-	w.text("", digest.Phrase("causes-intro"), st.note)
+	w.text("", digest.Phrase("causes-intro"), w.st.note)
 	if len(d.Notes) == 0 {
-		w.text("", digest.Phrase("causes-none"), st.wrap)
+		w.text("", digest.Phrase("causes-none"), w.st.wrap)
 	}
 	for _, n := range d.Notes {
-		w.text(n.Title, n.Evidence+" "+n.Meaning, st.wrap)
+		w.text(n.Title, n.Evidence+" "+n.Meaning, w.st.wrap)
 	}
-	w.text("advice", d.Advice, st.wrap)
-	if w.err != nil {
-		return w.err
-	}
-	if err := widths(f, SheetSummary, summaryWidths); err != nil {
-		return err
-	}
-	return nil
+	w.text("advice", d.Advice, w.st.wrap)
 }
 
 // orNil returns s, or nil (an empty cell) when s is empty.
