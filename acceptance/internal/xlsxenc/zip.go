@@ -22,59 +22,15 @@ func Pack(w io.Writer, data []byte, bodies map[string]*Body) error {
 	if err != nil {
 		return err
 	}
-	parts, err := sheetParts(zr)
+	targets, err := bodyParts(zr, bodies)
 	if err != nil {
 		return err
 	}
-	byPart := map[string]*zip.File{}
-	for _, zf := range zr.File {
-		byPart[zf.Name] = zf
-	}
 	// Pack the long sheets concurrently while the rest is copied; every
-	// packing is waited for, and its temporary file removed, before
-	// Pack returns.
-	type packing struct {
-		p   *packedSheet
-		err error
-	}
-	targets := map[string]*Body{}
-	for name, body := range bodies {
-		part, ok := parts[name]
-		if !ok || byPart[part] == nil {
-			return fmt.Errorf("sheet %s is not in the workbook", name)
-		}
-		targets[part] = body
-	}
-	fill := map[string]chan packing{}
-	var wg sync.WaitGroup
-	defer func() {
-		// Free whatever was packed but not taken (after an error).
-		wg.Wait()
-		for _, ch := range fill {
-			select {
-			case r := <-ch:
-				r.p.close()
-			default:
-			}
-		}
-	}()
-	for part, body := range targets {
-		ch := make(chan packing, 1)
-		fill[part] = ch
-		wg.Add(1)
-		go func(zf *zip.File, body *Body) {
-			defer wg.Done()
-			defer func() {
-				// A panic here would end the program past the report
-				// writer's own recovery; it fails this workbook instead.
-				if r := recover(); r != nil {
-					ch <- packing{err: fmt.Errorf("internal error packing the sheet: %v", r)}
-				}
-			}()
-			p, err := packSheet(zf, body)
-			ch <- packing{p, err}
-		}(byPart[part], body)
-	}
+	// packing is waited for, and its temporary file removed, before Pack
+	// returns.
+	p := startPacking(targets)
+	defer p.release()
 	files := append([]*zip.File(nil), zr.File...)
 	sort.SliceStable(files, func(i, j int) bool {
 		// [Content_Types].xml first, as writers conventionally put it.
@@ -86,38 +42,110 @@ func Pack(w io.Writer, data []byte, bodies map[string]*Body) error {
 	})
 	zw := zip.NewWriter(w)
 	for _, zf := range files {
-		if zf.Name == "[Content_Types].xml" {
-			if err := canonicalTypes(zw, zf); err != nil {
-				return fmt.Errorf("%s: %w", zf.Name, err)
-			}
-			continue
-		}
-		if ch := fill[zf.Name]; ch != nil {
-			r := <-ch
-			if r.err != nil {
-				return fmt.Errorf("%s: %w", zf.Name, r.err)
-			}
-			err := copyPacked(zw, zf.Name, r.p)
-			r.p.close()
-			if err != nil {
-				return fmt.Errorf("%s: %w", zf.Name, err)
-			}
-			continue
-		}
-		h := zf.FileHeader
-		rc, err := zf.OpenRaw()
-		if err != nil {
-			return fmt.Errorf("%s: %w", zf.Name, err)
-		}
-		out, err := zw.CreateRaw(&h)
-		if err != nil {
-			return fmt.Errorf("%s: %w", zf.Name, err)
-		}
-		if _, err := io.Copy(out, rc); err != nil {
+		if err := p.copyEntry(zw, zf); err != nil {
 			return fmt.Errorf("%s: %w", zf.Name, err)
 		}
 	}
 	return zw.Close()
+}
+
+// bodyParts maps the zip entry of every sheet named in bodies to its body.
+func bodyParts(zr *zip.Reader, bodies map[string]*Body) (map[*zip.File]*Body, error) {
+	parts, err := sheetParts(zr)
+	if err != nil {
+		return nil, err
+	}
+	byPart := map[string]*zip.File{}
+	for _, zf := range zr.File {
+		byPart[zf.Name] = zf
+	}
+	targets := map[*zip.File]*Body{}
+	for name, body := range bodies {
+		part, ok := parts[name]
+		if !ok || byPart[part] == nil {
+			return nil, fmt.Errorf("sheet %s is not in the workbook", name)
+		}
+		targets[byPart[part]] = body
+	}
+	return targets, nil
+}
+
+// packing is a long sheet being packed, or its outcome.
+type packing struct {
+	p   *packedSheet
+	err error
+}
+
+// packings are the long sheets being packed, each on its own goroutine,
+// by entry name.
+type packings struct {
+	fill map[string]chan packing
+	wg   sync.WaitGroup
+}
+
+// startPacking starts packing every target sheet on a goroutine of its
+// own.
+func startPacking(targets map[*zip.File]*Body) *packings {
+	p := &packings{fill: map[string]chan packing{}}
+	for zf, body := range targets {
+		ch := make(chan packing, 1)
+		p.fill[zf.Name] = ch
+		p.wg.Add(1)
+		go func() {
+			defer p.wg.Done()
+			defer func() {
+				// A panic here would end the program past the report
+				// writer's own recovery; it fails this workbook instead.
+				if r := recover(); r != nil {
+					ch <- packing{err: fmt.Errorf("internal error packing the sheet: %v", r)}
+				}
+			}()
+			ps, err := packSheet(zf, body)
+			ch <- packing{ps, err}
+		}()
+	}
+	return p
+}
+
+// release waits for every packing and frees whatever was packed but not
+// taken (after an error).
+func (p *packings) release() {
+	p.wg.Wait()
+	for _, ch := range p.fill {
+		select {
+		case r := <-ch:
+			r.p.close()
+		default:
+		}
+	}
+}
+
+// copyEntry writes entry zf to zw: the content types sorted, a long sheet
+// as packed, any other entry with its compressed data untouched.
+func (p *packings) copyEntry(zw *zip.Writer, zf *zip.File) error {
+	if zf.Name == "[Content_Types].xml" {
+		return canonicalTypes(zw, zf)
+	}
+	if ch := p.fill[zf.Name]; ch != nil {
+		r := <-ch
+		if r.err != nil {
+			return r.err
+		}
+		err := copyPacked(zw, zf.Name, r.p)
+		r.p.close()
+		return err
+	}
+	h := zf.FileHeader
+	rc, err := zf.OpenRaw()
+	if err != nil {
+		return err
+	}
+	out, err := zw.CreateRaw(&h)
+	if err != nil {
+		return err
+	}
+	_, err = io.Copy(out, rc)
+	return err
 }
 
 // contentTypes is the content-types part of an Open Packaging Conventions
