@@ -39,33 +39,34 @@ type Batch struct {
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *spec.Spec `json:"-"`
 	// MaxPages caps the units with a detail page; 0 means no cap (see
-	// PageUnits and RunOptions.MaxUnitPages).
+	// PageUnits and batch.Options.MaxUnitPages).
 	MaxPages int `json:"-"`
 
-	// pageTraces are the records kept for detail pages, by file.
-	pageTraces map[string]*metrics.Trace
-	// loader reads a unit's record again for its detail page; nil when the
-	// batch was not made by Run.
-	loader func(u *UnitResult) *metrics.Trace
+	// Records gives the full records of the units as the run kept them;
+	// nil for a batch not made by batch.Run.
+	//
+	// Deprecated: pass the *batch.Records that batch.Run returns to the
+	// reports instead; this field keeps UnitTrace working until then.
+	Records TraceSource `json:"-"`
 }
 
-// UnitTrace returns the record of unit i: the one kept with the unit or
-// for its detail page, else the log read again (and checked against the
-// digest judged), else nil. A record read again is not kept, so a report
-// that draws unit pages one after the other holds one such record at a
-// time.
+// TraceSource gives the full record of a unit of a batch: kept in memory or
+// read again from its log (batch.Records).
+type TraceSource interface {
+	UnitTrace(u *UnitResult) (*metrics.Trace, error)
+}
+
+// UnitTrace returns the record of unit i: the one kept with the unit, else
+// the one b.Records gives, else nil.
+//
+// Deprecated: use the *batch.Records that batch.Run returns.
 func (b *Batch) UnitTrace(i int) *metrics.Trace {
 	u := &b.Units[i]
-	if u.Trace != nil {
+	if u.Trace != nil || b.Records == nil {
 		return u.Trace
 	}
-	if tr := b.pageTraces[u.File]; tr != nil {
-		return tr
-	}
-	if b.loader == nil {
-		return nil
-	}
-	return b.loader(u)
+	tr, _ := b.Records.UnitTrace(u)
+	return tr
 }
 
 // DateRange is the first and last date (YYYY-MM-DD) of a set of tests.
@@ -243,3 +244,23 @@ func (n *NominalPrediction) Matches(from, to float64) bool {
 	tol := 0.01 * math.Abs(n.To-n.From)
 	return math.Abs(from-n.From) <= tol && math.Abs(to-n.To) <= tol
 }
+
+// PageUnits returns the indices of the units that get a detail page: the
+// first b.MaxPages units that did not pass (of every unit with all), in
+// batch order; b.MaxPages 0 (or less) means no cap.
+func (b *Batch) PageUnits(all bool) []int {
+	limit := b.MaxPages
+	var idx []int
+	for i := range b.Units {
+		if limit > 0 && len(idx) == limit {
+			break
+		}
+		if all || b.Units[i].Verdict != Pass {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+// Notice is the statement every results.json carries.
+const Notice = "Verdicts state whether measured step responses met the spec's limits; they are no safety certification of the machine, the rig or the procedure. Follow the safety cautions in report.pdf, report.xlsx and the README, local codes, the applicable machinery-safety standards and competent, licensed practice."

@@ -1,8 +1,13 @@
-// Package acceptance owns the acceptance decision: turning measured step
-// metrics into pass, fail or invalid verdicts against a spec's limits
-// (JudgeStep, JudgeUnit), running a batch of logs concurrently, and the one
-// report model (Batch) that every report writer is fed. The spec itself is
-// loaded and validated by package acceptance/spec.
+// Package acceptance owns the acceptance decision and the result model.
+// JudgeStep and JudgeUnit turn measured step metrics into pass, fail or
+// invalid verdicts against a spec's limits, each verdict that is not a
+// pass with typed Reasons (kind, metric, step, values) whose text the
+// reports print. The result model (Batch, UnitResult, StepResult, Check,
+// MetricSet, GapSet) is the one input every report writer is fed; its JSON
+// names are the contract of results.json.
+//
+// The spec is loaded and validated by acceptance/spec, the logs are read by
+// acceptance/logs, and a batch is run by acceptance/batch.
 //
 // Decision rule: simple acceptance (ISO 14253-1:2017, ILAC-G8:09/2019): a
 // measured value is compared with its limit, no guard band. A unit passes

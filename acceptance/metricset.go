@@ -43,9 +43,9 @@ func (m *MetricSet) Set(n metrics.Name, v metrics.Value) {
 	m.why = why
 }
 
-// metricSetOf returns the set of the metrics of one measured step, its
+// MetricSetOf returns the set of the metrics of one measured step, its
 // reasons gathered into one array.
-func metricSetOf(m metrics.StepMetrics) MetricSet {
+func MetricSetOf(m metrics.StepMetrics) MetricSet {
 	var s MetricSet
 	var why [metrics.NumNames]string
 	someWhy := false
@@ -139,6 +139,19 @@ func (g *GapSet) At(i int) (gap float64, ok bool) {
 		return 0, false
 	}
 	return g.v[i], true
+}
+
+// GapBetween returns measured − predicted for every metric known in both
+// sets.
+func GapBetween(measured, predicted *MetricSet) *GapSet {
+	g := &GapSet{}
+	for i := range metrics.Names {
+		meas, pred := measured.At(i), predicted.At(i)
+		if meas.OK && pred.OK {
+			g.set(i, meas.V-pred.V)
+		}
+	}
+	return g
 }
 
 // set stores the gap of metric i.

@@ -95,24 +95,24 @@ func noStepReason(minChange float64, responseUnit string) Reason {
 		Text: fmt.Sprintf("no step found: the command never changed by min_change %s%s", formatFloat(minChange), unitSuffix(responseUnit))}
 }
 
-// unreadableReason renders a log that cannot be read; detail says where
+// UnreadableReason renders a log that cannot be read; detail says where
 // and why.
-func unreadableReason(detail string) Reason {
+func UnreadableReason(detail string) Reason {
 	return Reason{Kind: Unreadable, Text: "log cannot be read: " + detail}
 }
 
-// unusableReason renders a log whose samples are no usable record.
-func unusableReason(err error) Reason {
+// UnusableReason renders a log whose samples are no usable record.
+func UnusableReason(err error) Reason {
 	return Reason{Kind: Unusable, Text: fmt.Sprintf("log cannot be measured: %v", err)}
 }
 
-// duplicateReason renders a unit id found in other files too.
-func duplicateReason(unit string, others []string) Reason {
+// DuplicateReason renders a unit id found in other files too.
+func DuplicateReason(unit string, others []string) Reason {
 	return Reason{Kind: DuplicateUnit, Text: fmt.Sprintf("unit id %q also appears in %s", unit, strings.Join(others, ", "))}
 }
 
-// internalReason renders a failure of stepgate itself while judging a log.
-func internalReason(r any) Reason {
+// InternalReason renders a failure of stepgate itself while judging a log.
+func InternalReason(r any) Reason {
 	return Reason{Kind: InternalError, Text: fmt.Sprintf("stepgate failed while judging this log (internal error: %v); please report it with the log", r)}
 }
 

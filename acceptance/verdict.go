@@ -29,7 +29,7 @@ func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
 		From:    m.Step.From,
 		To:      m.Step.To,
 		Reasons: []Reason{},
-		Metrics: metricSetOf(m),
+		Metrics: MetricSetOf(m),
 	}
 	var fails, invalids []Reason
 	// The checks' values live in one array per step rather than one

@@ -1,11 +1,14 @@
 package acceptance_test
 
 import (
+	"bytes"
 	"reflect"
 	"strings"
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
+	"github.com/stepgate/stepgate/acceptance/report/jsonreport"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -255,4 +258,18 @@ func TestCount(t *testing.T) {
 			t.Errorf("%s: Count = %+v, want %+v", c.name, got, c.want)
 		}
 	}
+}
+
+// unitJSON is a unit's record as results.json writes it.
+func unitJSON(t *testing.T, u acceptance.UnitResult) []byte {
+	t.Helper()
+	d, err := digest.New(&acceptance.Batch{Units: []acceptance.UnitResult{u}, ReportDate: "2026-01-01"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := jsonreport.Write(&buf, d); err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
 }

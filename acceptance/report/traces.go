@@ -6,7 +6,7 @@ import (
 	"github.com/stepgate/stepgate/metrics"
 )
 
-// BatchTraces gives the records of the units of b as acceptance.Run keeps
+// BatchTraces gives the records of the units of b as batch.Run keeps
 // them: kept with the unit or for its detail page, else read again from
 // the log and checked against the SHA-256 judged (Batch.UnitTrace).
 func BatchTraces(b *acceptance.Batch) digest.TraceStore { return batchTraces{b} }

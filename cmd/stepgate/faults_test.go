@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/report"
 	"github.com/stepgate/stepgate/acceptance/spec"
@@ -296,7 +297,7 @@ func TestVanishingInput(t *testing.T) {
 		t.Fatal(err)
 	}
 	gone := files[2]
-	b, err := acceptance.Run(context.Background(), sp, files, acceptance.RunOptions{
+	b, recs, err := batch.Run(context.Background(), sp, files, batch.Options{
 		Workers: 1, ReportDate: "2026-12-01",
 		// One worker takes the files in order: the last is deleted once
 		// the first has been judged.
@@ -329,7 +330,7 @@ func TestVanishingInput(t *testing.T) {
 		}
 	}
 	out := filepath.Join(dir, "out")
-	if _, err := report.WriteAll(context.Background(), out, b, report.BatchTraces(b), report.Options{}); err != nil {
+	if _, err := report.WriteAll(context.Background(), out, b, recs, report.Options{}); err != nil {
 		t.Fatalf("reports of a batch with a vanished log: %v", err)
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
@@ -162,8 +163,8 @@ func runPredict(s streams, o predictOptions) error {
 	if d := abs(o.To - o.From); minChange > d {
 		minChange = d / 2
 	}
-	out.Ideal = predictionOf(acceptance.MeasurePrediction(pr.Ideal, "ideal", minChange, sp.Options()))
-	out.Realised = predictionOf(acceptance.MeasurePrediction(pr.Realised, "realised", minChange, sp.Options()))
+	out.Ideal = predictionOf(batch.MeasurePrediction(pr.Ideal, "ideal", minChange, sp.Options()))
+	out.Realised = predictionOf(batch.MeasurePrediction(pr.Realised, "realised", minChange, sp.Options()))
 	if out.Design, err = o.design(sys); err != nil {
 		return usageErr(err)
 	}

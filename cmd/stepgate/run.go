@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/report"
 	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
@@ -26,7 +27,7 @@ type runOptions struct {
 	AllUnits   bool     // --all-units: every unit gets a detail page
 	ReportDate string   // --report-date YYYY-MM-DD; empty: see reportDate
 	// MaxUnitPages (--max-unit-pages) caps the units with a detail page in
-	// the PDF; 0 means no limit, as in acceptance.RunOptions.
+	// the PDF; 0 means no limit, as in batch.Options.
 	MaxUnitPages int
 	// Quiet (--quiet) prints nothing but errors; Verbose (--verbose) lists
 	// every unit with all its reasons and prints the timing. The command
@@ -39,7 +40,7 @@ type runOptions struct {
 
 // defaultRunOptions are the run options the command line starts from.
 func defaultRunOptions() runOptions {
-	return runOptions{MaxUnitPages: acceptance.MaxUnitPages}
+	return runOptions{MaxUnitPages: batch.MaxUnitPages}
 }
 
 // newRunCmd declares `stepgate run` and its flags.
@@ -113,11 +114,11 @@ func runBatch(ctx context.Context, s streams, o runOptions) error {
 		return usageErr(err)
 	}
 	tuneGC(len(in.files))
-	b, tm, err := judge(ctx, s, o, in)
+	b, recs, tm, err := judge(ctx, s, o, in)
 	if err != nil {
 		return usageErr(fmt.Errorf("%w; no report written", err))
 	}
-	paths, err := report.WriteAll(ctx, o.Out, b, report.BatchTraces(b), report.Options{PDF: pdfreport.Options{AllUnits: o.AllUnits}})
+	paths, err := report.WriteAll(ctx, o.Out, b, recs, report.Options{PDF: pdfreport.Options{AllUnits: o.AllUnits}})
 	if err != nil {
 		return usageErr(err)
 	}
@@ -182,16 +183,16 @@ func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 }
 
 // judge runs the batch with a progress line on stderr and dates it.
-func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*acceptance.Batch, runTiming, error) {
+func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*acceptance.Batch, *batch.Records, runTiming, error) {
 	tm := runTiming{started: time.Now()}
 	prog := newProgress(s.err, o.Quiet)
-	b, err := acceptance.Run(ctx, in.spec, in.files, acceptance.RunOptions{
+	b, recs, err := batch.Run(ctx, in.spec, in.files, batch.Options{
 		Tool:         acceptance.ToolInfo{Name: "stepgate", Version: version},
 		ReportDate:   in.date,
 		Workers:      o.Workers,
 		AllUnits:     o.AllUnits,
 		MaxUnitPages: o.MaxUnitPages, // 0: no limit, on the command line as in the API
-		Traces:       acceptance.KeepPageTraces,
+		Traces:       batch.KeepPageTraces,
 		Progress: func(done, total int, n int64) {
 			tm.readBytes = n
 			prog.update(done, total, n)
@@ -199,7 +200,7 @@ func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*accepta
 	})
 	prog.finish()
 	if err != nil {
-		return nil, tm, err
+		return nil, nil, tm, err
 	}
 	if b.ReportDate == "" {
 		// No flag, no SOURCE_DATE_EPOCH and no test date in any log: the
@@ -210,7 +211,7 @@ func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*accepta
 		}
 	}
 	tm.judged = time.Since(tm.started)
-	return b, tm, nil
+	return b, recs, tm, nil
 }
 
 // printOutcome prints the verdict table and the reports written on stdout,

@@ -14,6 +14,7 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/spec"
@@ -68,10 +69,11 @@ var demoBatch = sync.OnceValues(func() (*acceptance.Batch, error) {
 	if err != nil {
 		return nil, err
 	}
-	return acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{
-		ReportDate: "2026-12-01", Traces: acceptance.KeepAllTraces,
+	b, _, err := batch.Run(context.Background(), spec, files, batch.Options{
+		ReportDate: "2026-12-01", Traces: batch.KeepAllTraces,
 		Tool: acceptance.ToolInfo{Name: "stepgate", Version: "test"},
 	})
+	return b, err
 })
 
 // demoDir is the directory the demo logs are written to, shared by the

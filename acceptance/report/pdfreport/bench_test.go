@@ -5,7 +5,7 @@ import (
 	"io"
 	"testing"
 
-	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
@@ -29,13 +29,13 @@ func benchDigest(b testing.TB, n int) *digest.Digest {
 	if err != nil {
 		b.Fatal(err)
 	}
-	opts := acceptance.DefaultRunOptions()
+	opts := batch.DefaultOptions()
 	opts.ReportDate = "2026-12-01"
-	batch, err := acceptance.Run(context.Background(), spec, files, opts)
+	judged, _, err := batch.Run(context.Background(), spec, files, opts)
 	if err != nil {
 		b.Fatal(err)
 	}
-	d, err := digest.New(batch)
+	d, err := digest.New(judged)
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package acceptance
+package batch
 
 import (
 	"fmt"
@@ -8,12 +8,13 @@ import (
 	"sort"
 	"testing"
 
+	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/metrics"
 )
 
 type keeperUnit struct {
 	id, file string
-	v        Verdict
+	v        acceptance.Verdict
 	size     int64
 }
 
@@ -23,7 +24,7 @@ func keeperUnits() []keeperUnit {
 	r := rand.New(rand.NewSource(7))
 	var units []keeperUnit
 	for i := 0; i < 60; i++ {
-		v := []Verdict{Pass, Pass, Fail, Invalid}[r.Intn(4)]
+		v := []acceptance.Verdict{acceptance.Pass, acceptance.Pass, acceptance.Fail, acceptance.Invalid}[r.Intn(4)]
 		id := fmt.Sprintf("SN-%03d", (i*37)%60)
 		if i == 59 {
 			id = units[3].id
@@ -43,7 +44,7 @@ func pageOrder(units []keeperUnit, limit int, all bool) []keeperUnit {
 	})
 	var pages []keeperUnit
 	for _, u := range sorted {
-		if len(pages) < limit && (all || u.v != Pass) {
+		if len(pages) < limit && (all || u.v != acceptance.Pass) {
 			pages = append(pages, u)
 		}
 	}
@@ -141,13 +142,13 @@ func TestPageKeeperBudget(t *testing.T) {
 // and a unit with no record to draw still takes its place.
 func TestPageKeeperDropsALateRecord(t *testing.T) {
 	k := newPageKeeper(2, false, 1<<20)
-	if !k.admit("B", "b.csv", Fail, 8) {
+	if !k.admit("B", "b.csv", acceptance.Fail, 8) {
 		t.Fatal("the first failing unit is not admitted")
 	}
-	if k.admit("A", "a.csv", Invalid, 0) { // unreadable: nothing to copy
+	if k.admit("A", "a.csv", acceptance.Invalid, 0) { // unreadable: nothing to copy
 		t.Fatal("a unit without a record asked for a copy")
 	}
-	if !k.admit("0", "0.csv", Fail, 8) { // earliest: takes B's place
+	if !k.admit("0", "0.csv", acceptance.Fail, 8) { // earliest: takes B's place
 		t.Fatal("an earlier unit is not admitted")
 	}
 	k.store("b.csv", &metrics.Trace{})
@@ -155,11 +156,11 @@ func TestPageKeeperDropsALateRecord(t *testing.T) {
 	if got := files(k.traces()); !slices.Equal(got, []string{"0.csv"}) {
 		t.Fatalf("kept %v, want only 0.csv", got)
 	}
-	if k.admit("C", "c.csv", Fail, 8) || k.admit("00", "00.csv", Pass, 8) {
+	if k.admit("C", "c.csv", acceptance.Fail, 8) || k.admit("00", "00.csv", acceptance.Pass, 8) {
 		t.Fatal("a later unit, or a passing one, was admitted")
 	}
 	var none *pageKeeper
-	if none.admit("A", "a.csv", Fail, 8) || none.traces() != nil {
+	if none.admit("A", "a.csv", acceptance.Fail, 8) || none.traces() != nil {
 		t.Fatal("a nil keeper keeps records")
 	}
 }

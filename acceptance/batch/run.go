@@ -1,4 +1,4 @@
-package acceptance
+package batch
 
 import (
 	"context"
@@ -6,7 +6,6 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"io"
 	"os"
 	"path/filepath"
@@ -16,7 +15,9 @@ import (
 	"sync"
 	"time"
 
+	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/logs"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -31,29 +32,29 @@ const (
 	// other: memory stays flat in the batch size. A unit with a page but no
 	// kept record (beyond the first MaxUnitPages pages or the budget, or
 	// made invalid after judging by a duplicate serial) has its log read
-	// again when its page is drawn (see Batch.UnitTrace).
+	// again when its page is drawn (see Records.UnitTrace).
 	KeepPageTraces TracePolicy = iota
 	KeepAllTraces              // every unit keeps its record
 	KeepNoTraces               // none
 )
 
-// MaxUnitPages is the default for RunOptions.MaxUnitPages (see
-// DefaultRunOptions): the most units that get a detail page in the PDF. The
+// MaxUnitPages is the default for Options.MaxUnitPages (see
+// DefaultOptions): the most units that get a detail page in the PDF. The
 // XLSX and results.json hold every unit. It also bounds the page records
 // Run keeps in memory, whatever the cap.
 const MaxUnitPages = 200
 
-// RunOptions control a batch run.
-type RunOptions struct {
+// Options control a batch run.
+type Options struct {
 	Workers  int         // concurrent workers; 0 means one per core
 	Traces   TracePolicy // which traces to keep
 	AllUnits bool        // every unit, not only those that did not pass, gets a detail page
 	// MaxUnitPages caps the units that get a detail page; 0 (or less)
 	// means no cap, as `stepgate run --max-unit-pages 0` does.
-	// DefaultRunOptions sets it to MaxUnitPages.
+	// DefaultOptions sets it to MaxUnitPages.
 	MaxUnitPages int
-	Tool         ToolInfo // name and version printed in the reports
-	ReportDate   string   // YYYY-MM-DD; empty means the newest test date in the logs
+	Tool         acceptance.ToolInfo // name and version printed in the reports
+	ReportDate   string              // YYYY-MM-DD; empty means the newest test date in the logs
 	// Open makes the Source a worker reads logs with; nil reads every
 	// registered layout with the spec's Format (logs.Open).
 	Open func(o logs.Options) logs.Source
@@ -63,77 +64,95 @@ type RunOptions struct {
 	Progress func(done, total int, bytes int64)
 }
 
-// DefaultRunOptions returns the options `stepgate run` starts from: one
+// DefaultOptions returns the options `stepgate run` starts from: one
 // worker per core, the records of the page units kept, and at most
 // MaxUnitPages detail pages.
-func DefaultRunOptions() RunOptions {
-	return RunOptions{Traces: KeepPageTraces, MaxUnitPages: MaxUnitPages}
+func DefaultOptions() Options {
+	return Options{Traces: KeepPageTraces, MaxUnitPages: MaxUnitPages}
 }
 
 // Run reads every file, measures and judges every step, and returns the
-// batch ordered by unit id, then file. A file that cannot be read becomes an
-// invalid unit with the reason; it never stops the batch. Run returns an
-// error only when ctx is cancelled.
-func Run(ctx context.Context, sp *spec.Spec, files []string, o RunOptions) (*Batch, error) {
-	workers := o.Workers
+// batch ordered by unit id, then file, with the store of the records the
+// run kept for the reports. A file that cannot be read becomes an invalid
+// unit with the reason; it never stops the batch. Run returns an error
+// only when ctx is cancelled.
+func Run(ctx context.Context, sp *spec.Spec, files []string, o Options) (*acceptance.Batch, *Records, error) {
+	r := newRunner(sp, len(files), o)
+	results, err := r.judgeAll(ctx, files)
+	if err != nil {
+		return nil, nil, err
+	}
+	b := r.assemble(results)
+	recs := &Records{}
+	if o.Traces == KeepPageTraces {
+		recs.kept = r.pages.traces()
+		recs.src = r.open(logs.Options{})
+	}
+	b.Records = recs
+	return b, recs, nil
+}
+
+// runner holds what every worker of one run shares.
+type runner struct {
+	sp      *spec.Spec
+	o       Options
+	open    func(logs.Options) logs.Source
+	opts    metrics.Options
+	pred    *predictor
+	predErr error
+	sampler *curveSampler
+	pages   *pageKeeper // nil unless the page units' records are kept
+}
+
+func newRunner(sp *spec.Spec, files int, o Options) *runner {
+	r := &runner{sp: sp, o: o, open: o.Open, opts: sp.Options(), sampler: newCurveSampler(sp, files)}
+	if r.open == nil {
+		format := sp.Format()
+		r.open = func(lo logs.Options) logs.Source { return logs.Open(format, lo) }
+	}
+	r.pred, r.predErr = newPredictor(sp)
+	if o.Traces == KeepPageTraces {
+		limit := o.MaxUnitPages
+		if limit <= 0 || limit > MaxUnitPages {
+			limit = MaxUnitPages
+		}
+		r.pages = newPageKeeper(limit, o.AllUnits, pageRecordBudget)
+	}
+	return r
+}
+
+// judgeAll judges the files on the workers and returns the units in the
+// order of files.
+func (r *runner) judgeAll(ctx context.Context, files []string) ([]acceptance.UnitResult, error) {
+	workers := r.o.Workers
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
 	if workers > len(files) && len(files) > 0 {
 		workers = len(files)
 	}
-	open := o.Open
-	if open == nil {
-		format := sp.Format()
-		open = func(lo logs.Options) logs.Source { return logs.Open(format, lo) }
-	}
-	opts := sp.Options()
-	pred, predErr := newPredictor(sp)
-	sampler := newCurveSampler(sp, len(files))
-	var pages *pageKeeper
-	if o.Traces == KeepPageTraces {
-		limit := o.MaxUnitPages
-		if limit <= 0 || limit > MaxUnitPages {
-			limit = MaxUnitPages
-		}
-		pages = newPageKeeper(limit, o.AllUnits, pageRecordBudget)
-	}
-
-	results := make([]UnitResult, len(files))
+	results := make([]acceptance.UnitResult, len(files))
 	jobs := make(chan int)
 	var wg sync.WaitGroup
 	var mu sync.Mutex
 	done, bytes := 0, int64(0)
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
+	for range workers {
+		wg.Go(func() {
 			// Each trace is measured before the next file is read, so the
-			// worker's reader lends its buffers instead of copying them.
-			rd := open(logs.Options{Shared: true})
+			// worker's source lends its buffers instead of copying them.
+			src := r.open(logs.Options{Shared: true})
 			for i := range jobs {
-				u, n, tr := judgeFile(rd, sp, opts, pred, sampler, files[i], o.Traces)
-				// Every unit takes its place among those with a page, with
-				// or without a record to draw; a record is copied out of
-				// the reader's buffers before the next file is read.
-				var size int64
-				if tr != nil && len(u.Steps) > 0 {
-					size = recordSize(tr)
-				}
-				if pages.admit(u.Unit, u.File, u.Verdict, size) {
-					t := tr.Clone()
-					pages.store(u.File, &t)
-				}
-				results[i] = u
-				if o.Progress != nil {
+				var n int64
+				results[i], n = r.judge(src, files[i])
+				if r.o.Progress != nil {
 					mu.Lock()
 					done++
 					bytes += n
-					o.Progress(done, len(files), bytes)
+					r.o.Progress(done, len(files), bytes)
 					mu.Unlock()
 				}
 			}
-		}()
+		})
 	}
 	var cancelled error
 feed:
@@ -150,7 +169,29 @@ feed:
 	if cancelled != nil {
 		return nil, fmt.Errorf("batch interrupted: %w", cancelled)
 	}
+	return results, nil
+}
 
+// judge judges one file and offers its record to the page keeper. Every
+// unit takes its place among those with a page, with or without a record
+// to draw; a record is copied out of the source's buffers before the next
+// file is read.
+func (r *runner) judge(src logs.Source, path string) (acceptance.UnitResult, int64) {
+	u, n, tr := judgeFile(src, r.sp, r.opts, r.pred, r.sampler, path, r.o.Traces)
+	var size int64
+	if tr != nil && len(u.Steps) > 0 {
+		size = recordSize(tr)
+	}
+	if r.pages.admit(u.Unit, u.File, u.Verdict, size) {
+		t := tr.Clone()
+		r.pages.store(u.File, &t)
+	}
+	return u, n
+}
+
+// assemble orders the units, flags duplicate unit ids and builds the
+// batch around them.
+func (r *runner) assemble(results []acceptance.UnitResult) *acceptance.Batch {
 	sort.SliceStable(results, func(i, j int) bool {
 		if results[i].Unit != results[j].Unit {
 			return results[i].Unit < results[j].Unit
@@ -158,46 +199,42 @@ feed:
 		return results[i].File < results[j].File
 	})
 	flagDuplicateSerials(results)
-
-	b := &Batch{
-		Tool:    o.Tool,
-		Spec:    SpecInfo{SpecID: sp.SpecID, Revision: sp.Revision, SHA256: sp.SHA256, Title: sp.Title},
-		Summary: Count(results),
-		Units:   results,
-		Limits:  sp.Limits,
-		SpecDoc: sp,
+	sp := r.sp
+	b := &acceptance.Batch{
+		Tool:      r.o.Tool,
+		Spec:      acceptance.SpecInfo{SpecID: sp.SpecID, Revision: sp.Revision, SHA256: sp.SHA256, Title: sp.Title},
+		Summary:   acceptance.Count(results),
+		Units:     results,
+		Limits:    sp.Limits,
+		SpecDoc:   sp,
+		Notice:    acceptance.Notice,
+		TestDates: testDates(results),
+		MaxPages:  r.o.MaxUnitPages,
 	}
 	if b.Limits == nil {
 		b.Limits = map[metrics.Name]spec.Limit{}
 	}
-	b.Notice = Notice
-	b.TestDates = testDates(results)
-	b.ReportDate = o.ReportDate
+	b.ReportDate = r.o.ReportDate
 	if b.ReportDate == "" {
 		b.ReportDate = b.TestDates.Last
 	}
-	b.MaxPages = o.MaxUnitPages
-	if o.Traces == KeepPageTraces {
-		b.pageTraces = pages.traces()
-		b.loader = traceLoader(open(logs.Options{}))
+	if r.pred != nil {
+		b.Model = r.pred.summary()
+	} else if r.predErr != nil {
+		b.Model = &acceptance.ModelSummary{Config: *sp.Model, Warnings: []string{r.predErr.Error()}}
 	}
-	if pred != nil {
-		b.Model = pred.summary()
-	} else if predErr != nil {
-		b.Model = &ModelSummary{Config: *sp.Model, Warnings: []string{predErr.Error()}}
-	}
-	return b, nil
+	return b
 }
 
 // judgeFile is processFile guarded so that one log can never stop the
 // batch: should judging it panic, the log becomes an invalid unit whose
 // reason carries the internal error, and the other logs are judged as
 // usual.
-func judgeFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u UnitResult, n int64, tr *metrics.Trace) {
+func judgeFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (u acceptance.UnitResult, n int64, tr *metrics.Trace) {
 	defer func() {
 		if r := recover(); r != nil {
-			u = UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []StepResult{}, Verdict: Invalid,
-				Reasons: []Reason{internalReason(r)}}
+			u = acceptance.UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Steps: []acceptance.StepResult{}, Verdict: acceptance.Invalid,
+				Reasons: []acceptance.Reason{acceptance.InternalReason(r)}}
 			n, tr = 0, nil
 		}
 	}()
@@ -207,8 +244,8 @@ func judgeFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predic
 // processFile reads and judges one file; it returns the unit, the bytes
 // read and the record measured (nil when none was), which lives in the
 // reader's buffers until its next file.
-func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (UnitResult, int64, *metrics.Trace) {
-	u := UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []Reason{}, Steps: []StepResult{}}
+func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (acceptance.UnitResult, int64, *metrics.Trace) {
+	u := acceptance.UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []acceptance.Reason{}, Steps: []acceptance.StepResult{}}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
 		u.SHA256 = lg.SHA256
@@ -220,8 +257,8 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 		}
 	}
 	if err != nil {
-		u.Verdict = Invalid
-		u.Reasons = []Reason{unreadableReason(readReason(err))}
+		u.Verdict = acceptance.Invalid
+		u.Reasons = []acceptance.Reason{acceptance.UnreadableReason(readReason(err))}
 		if u.SHA256 == "" {
 			// The digest identifies the file even when it cannot be parsed.
 			u.SHA256 = fileDigest(path)
@@ -237,26 +274,26 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 	u.Samples = lg.Rows
 	tr := lg.Trace
 	if verr := tr.Validate(); verr != nil {
-		u.Verdict = Invalid
-		u.Reasons = []Reason{unusableReason(verr)}
+		u.Verdict = acceptance.Invalid
+		u.Reasons = []acceptance.Reason{acceptance.UnusableReason(verr)}
 		return u, lg.Size, nil
 	}
 	steps := metrics.FindSteps(tr, sp.Steps.MinChange)
-	u.Steps = make([]StepResult, 0, len(steps))
+	u.Steps = make([]acceptance.StepResult, 0, len(steps))
 	limit := metrics.Unknown("the log has no effort column")
 	if tr.Effort != nil {
 		limit = effortLimit(tr, sp)
 	}
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
-		sr := JudgeStep(sp, m)
+		sr := acceptance.JudgeStep(sp, m)
 		sr.Evidence = stepEvidence(tr, m, opts, limit)
 		if pred != nil {
 			pred.attach(&sr, m, tr)
 		}
 		u.Steps = append(u.Steps, sr)
 	}
-	u.Verdict, u.Reasons = JudgeUnit(sp, u.Steps)
+	u.Verdict, u.Reasons = acceptance.JudgeUnit(sp, u.Steps)
 	for i, st := range steps {
 		if cs.keep(path, st.Index, u.Steps[i].Verdict) {
 			u.Steps[i].Curve = normalisedCurve(tr, st, cs.window)
@@ -270,42 +307,6 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 		u.Trace = &t
 	}
 	return u, lg.Size, &tr
-}
-
-// PageUnits returns the indices of the units that get a detail page: the
-// first b.MaxPages units that did not pass (of every unit with all), in
-// batch order; b.MaxPages 0 (or less) means no cap.
-func (b *Batch) PageUnits(all bool) []int {
-	limit := b.MaxPages
-	var idx []int
-	for i := range b.Units {
-		if limit > 0 && len(idx) == limit {
-			break
-		}
-		if all || b.Units[i].Verdict != Pass {
-			idx = append(idx, i)
-		}
-	}
-	return idx
-}
-
-// traceLoader returns a function that reads a unit's log again for its
-// detail page. A log that cannot be read again, or no longer matches the
-// digest judged, gives no record; the page then says so.
-func traceLoader(rd logs.Source) func(u *UnitResult) *metrics.Trace {
-	var mu sync.Mutex
-	return func(u *UnitResult) *metrics.Trace {
-		if u.SHA256 == "" || len(u.Steps) == 0 {
-			return nil
-		}
-		mu.Lock()
-		lg, err := rd.ReadFile(u.File)
-		mu.Unlock()
-		if err != nil || lg.SHA256 != u.SHA256 {
-			return nil
-		}
-		return &lg.Trace
-	}
 }
 
 // readReason is a read error without the file name, which the unit carries.
@@ -328,9 +329,6 @@ func readReason(err error) string {
 	b.WriteString(pe.Err.Error())
 	return b.String()
 }
-
-// Notice is the statement every results.json carries.
-const Notice = "Verdicts state whether measured step responses met the spec's limits; they are no safety certification of the machine, the rig or the procedure. Follow the safety cautions in report.pdf, report.xlsx and the README, local codes, the applicable machinery-safety standards and competent, licensed practice."
 
 // fileDigest returns the hex SHA-256 of a file's bytes, or "" when the file
 // cannot be opened as a regular file or is larger than a log may be.
@@ -361,7 +359,7 @@ func unitFromPath(path string) string {
 // than one file. Units are sorted by id, so duplicates are adjacent. Both
 // files are kept; a duplicate serial is a traceability problem, so a unit
 // that would pass is made invalid.
-func flagDuplicateSerials(units []UnitResult) {
+func flagDuplicateSerials(units []acceptance.UnitResult) {
 	for i := 0; i < len(units); {
 		j := i + 1
 		for j < len(units) && units[j].Unit == units[i].Unit {
@@ -375,9 +373,9 @@ func flagDuplicateSerials(units []UnitResult) {
 						others = append(others, units[m].File)
 					}
 				}
-				units[k].Reasons = append(units[k].Reasons, duplicateReason(units[k].Unit, others))
-				if units[k].Verdict == Pass {
-					units[k].Verdict = Invalid
+				units[k].Reasons = append(units[k].Reasons, acceptance.DuplicateReason(units[k].Unit, others))
+				if units[k].Verdict == acceptance.Pass {
+					units[k].Verdict = acceptance.Invalid
 				}
 			}
 		}
@@ -387,8 +385,8 @@ func flagDuplicateSerials(units []UnitResult) {
 
 // testDates returns the earliest and latest date part of the logs'
 // started_at (or date, tested_at) metadata; empty when none carries one.
-func testDates(units []UnitResult) DateRange {
-	var r DateRange
+func testDates(units []acceptance.UnitResult) acceptance.DateRange {
+	var r acceptance.DateRange
 	for _, u := range units {
 		for _, key := range []string{"started_at", "date", "tested_at"} {
 			v := u.Metadata[key]

@@ -1,11 +1,11 @@
-package acceptance_test
+package batch_test
 
 import (
 	"context"
 	"path/filepath"
 	"testing"
 
-	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/report"
@@ -47,11 +47,11 @@ func BenchmarkRun(b *testing.B) {
 	b.SetBytes(size)
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		batch, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepPageTraces})
+		judged, recs, err := batch.Run(context.Background(), spec, files, batch.Options{ReportDate: "2026-12-01", Traces: batch.KeepPageTraces})
 		if err != nil {
 			b.Fatal(err)
 		}
-		if _, err := report.WriteAll(context.Background(), out, batch, report.BatchTraces(batch), report.Options{}); err != nil {
+		if _, err := report.WriteAll(context.Background(), out, judged, recs, report.Options{}); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -63,7 +63,7 @@ func BenchmarkRunNoReports(b *testing.B) {
 	b.SetBytes(size)
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{ReportDate: "2026-12-01", Traces: acceptance.KeepNoTraces}); err != nil {
+		if _, _, err := batch.Run(context.Background(), spec, files, batch.Options{ReportDate: "2026-12-01", Traces: batch.KeepNoTraces}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -1,4 +1,4 @@
-package acceptance_test
+package batch_test
 
 import (
 	"context"
@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/logs"
 )
 
@@ -17,8 +18,8 @@ import (
 func TestRunKeepsThePageUnitsRecords(t *testing.T) {
 	spec, files, _ := benchBatch(t, 40)
 	const pages = 3
-	b, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{
-		Traces: acceptance.KeepPageTraces, MaxUnitPages: pages, ReportDate: "2026-12-01"})
+	b, recs, err := batch.Run(context.Background(), spec, files, batch.Options{
+		Traces: batch.KeepPageTraces, MaxUnitPages: pages, ReportDate: "2026-12-01"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -50,7 +51,13 @@ func TestRunKeepsThePageUnitsRecords(t *testing.T) {
 		if err := os.WriteFile(u.File, []byte("t,target,position\n0,0,0\n"), 0o644); err != nil {
 			t.Fatal(err)
 		}
-		got := b.UnitTrace(i)
+		got, err := recs.UnitTrace(u)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if old := b.UnitTrace(i); old != got {
+			t.Errorf("unit %s: Batch.UnitTrace and Records.UnitTrace differ", u.Unit)
+		}
 		if i == beyond {
 			if got != nil {
 				t.Errorf("unit %s without a page: a record although its log changed", u.Unit)

@@ -1,4 +1,4 @@
-package acceptance_test
+package batch_test
 
 import (
 	"bytes"
@@ -17,6 +17,7 @@ import (
 	"unicode/utf16"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
@@ -32,7 +33,7 @@ import (
 // ωn = 5 rad/s; from memory) with time compressed four times (ωn = 20
 // rad/s), sampled every 5 ms, so its metrics are the exact values of
 // references.md §2 (computed) divided by four in time.
-const badDir = "../testdata/bad"
+const badDir = "../../testdata/bad"
 
 // Closed-form metrics of the good log: references.md §2, "exact (computed)"
 // row of Ogata Example 5-1, times divided by 4 for ωn = 20 rad/s.
@@ -432,7 +433,7 @@ func loadCorpusSpec(t *testing.T, name string) *spec.Spec {
 // runBatch runs the real batch runner on files with two workers.
 func runBatch(t *testing.T, spec *spec.Spec, files []string) *acceptance.Batch {
 	t.Helper()
-	b, err := acceptance.Run(context.Background(), spec, files, acceptance.RunOptions{Workers: 2, Traces: acceptance.KeepNoTraces})
+	b, _, err := batch.Run(context.Background(), spec, files, batch.Options{Workers: 2, Traces: batch.KeepNoTraces})
 	if err != nil {
 		t.Fatalf("Run: %v", err)
 	}

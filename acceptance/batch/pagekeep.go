@@ -1,9 +1,10 @@
-package acceptance
+package batch
 
 import (
 	"container/heap"
 	"sync"
 
+	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -53,8 +54,8 @@ func recordSize(tr *metrics.Trace) int64 {
 // admit enters the unit judged from file, whose record takes size bytes (0
 // when it has none to draw), and reports whether the caller should copy
 // the record and hand it to store.
-func (k *pageKeeper) admit(unit, file string, v Verdict, size int64) bool {
-	if k == nil || k.limit <= 0 || (!k.all && v == Pass) {
+func (k *pageKeeper) admit(unit, file string, v acceptance.Verdict, size int64) bool {
+	if k == nil || k.limit <= 0 || (!k.all && v == acceptance.Pass) {
 		return false
 	}
 	c := pageKey{unit: unit, file: file}

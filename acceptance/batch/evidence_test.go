@@ -1,10 +1,10 @@
-package acceptance
+package batch
 
 import (
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"testing"
 
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 

@@ -1,14 +1,15 @@
-package acceptance
+package batch
 
 import (
 	"fmt"
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 	"sort"
 	"strings"
 	"sync"
 
+	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -31,12 +32,12 @@ type predKey struct {
 
 type predEntry struct {
 	once     sync.Once
-	ideal    Prediction
-	realised Prediction
+	ideal    acceptance.Prediction
+	realised acceptance.Prediction
 	idealTr  *metrics.Trace
 	realTr   *metrics.Trace
 	err      error
-	failed   Prediction // every metric unknown with err, when err is set
+	failed   acceptance.Prediction // every metric unknown with err, when err is set
 }
 
 // newPredictor builds the spec's model; it returns nil and no error when the
@@ -65,7 +66,7 @@ func (p *predictor) entry(k predKey) *predEntry {
 	e.once.Do(func() {
 		fail := func(err error) {
 			e.err = err
-			e.failed = Prediction{Kind: p.kind().String()}
+			e.failed = acceptance.Prediction{Kind: p.kind().String()}
 			for _, n := range metrics.Names {
 				e.failed.Metrics.Set(n, metrics.Unknown(err.Error()))
 			}
@@ -97,7 +98,7 @@ func (p *predictor) entry(k predKey) *predEntry {
 
 // measure runs the metrics package over a simulated trace: the very code
 // that measured the logs.
-func (p *predictor) measure(tr metrics.Trace, kind model.Kind) Prediction {
+func (p *predictor) measure(tr metrics.Trace, kind model.Kind) acceptance.Prediction {
 	return MeasurePrediction(tr, kind.String(), p.spec.Steps.MinChange, p.opts)
 }
 
@@ -105,8 +106,8 @@ func (p *predictor) measure(tr metrics.Trace, kind model.Kind) Prediction {
 // metrics package, the code that measures the logs; kind names the
 // prediction ("ideal" or "realised"). Without a step every metric is
 // unknown with the reason.
-func MeasurePrediction(tr metrics.Trace, kind string, minChange float64, o metrics.Options) Prediction {
-	out := Prediction{Kind: kind}
+func MeasurePrediction(tr metrics.Trace, kind string, minChange float64, o metrics.Options) acceptance.Prediction {
+	out := acceptance.Prediction{Kind: kind}
 	steps := metrics.FindSteps(tr, minChange)
 	if len(steps) == 0 {
 		for _, n := range metrics.Names {
@@ -114,7 +115,7 @@ func MeasurePrediction(tr metrics.Trace, kind string, minChange float64, o metri
 		}
 		return out
 	}
-	out.Metrics = metricSetOf(metrics.MeasureStep(tr, steps[0], o))
+	out.Metrics = acceptance.MetricSetOf(metrics.MeasureStep(tr, steps[0], o))
 	return out
 }
 
@@ -131,7 +132,7 @@ func (p *predictor) key(m metrics.StepMetrics, tr metrics.Trace) predKey {
 }
 
 // attach adds the prediction and the gaps to a judged step.
-func (p *predictor) attach(sr *StepResult, m metrics.StepMetrics, tr metrics.Trace) {
+func (p *predictor) attach(sr *acceptance.StepResult, m metrics.StepMetrics, tr metrics.Trace) {
 	k := p.key(m, tr)
 	if !(k.dt > 0) {
 		return
@@ -147,13 +148,7 @@ func (p *predictor) attach(sr *StepResult, m metrics.StepMetrics, tr metrics.Tra
 		pr = &e.realised
 	}
 	sr.Predicted = pr
-	sr.Gap = &GapSet{}
-	for i, n := range metrics.Names {
-		meas, pred := sr.Metrics.Get(n), pr.Metrics.Get(n)
-		if meas.OK && pred.OK {
-			sr.Gap.set(i, meas.V-pred.V)
-		}
-	}
+	sr.Gap = acceptance.GapBetween(&sr.Metrics, &pr.Metrics)
 }
 
 func (p *predictor) kind() model.Kind {
@@ -164,8 +159,8 @@ func (p *predictor) kind() model.Kind {
 }
 
 // fit identifies the unit's effective closed loop from its first step.
-func (p *predictor) fit(tr metrics.Trace, st metrics.Step) *Fit {
-	f := &Fit{Step: st.Index}
+func (p *predictor) fit(tr metrics.Trace, st metrics.Step) *acceptance.Fit {
+	f := &acceptance.Fit{Step: st.Index}
 	id, err := model.Identify(tr, st, p.sys.Kp())
 	if err != nil {
 		why := err.Error()
@@ -183,8 +178,8 @@ func (p *predictor) fit(tr metrics.Trace, st metrics.Step) *Fit {
 }
 
 // summary lists the distinct predicted steps, in a fixed order.
-func (p *predictor) summary() *ModelSummary {
-	ms := &ModelSummary{Config: p.sys.Config(), Plant: p.sys.Plant().String(), Realised: p.realised}
+func (p *predictor) summary() *acceptance.ModelSummary {
+	ms := &acceptance.ModelSummary{Config: p.sys.Config(), Plant: p.sys.Plant().String(), Realised: p.realised}
 	p.mu.Lock()
 	keys := make([]predKey, 0, len(p.cache))
 	for k := range p.cache {
@@ -218,13 +213,13 @@ func (p *predictor) summary() *ModelSummary {
 				seen[e.err.Error()] = true
 			}
 			if e.idealTr != nil { // the realised loop alone failed
-				ms.Nominal = append(ms.Nominal, NominalPrediction{
+				ms.Nominal = append(ms.Nominal, acceptance.NominalPrediction{
 					From: k.from, To: k.to, Ideal: e.ideal, Realised: e.failed, IdealTrace: e.idealTr,
 				})
 			}
 			continue
 		}
-		ms.Nominal = append(ms.Nominal, NominalPrediction{
+		ms.Nominal = append(ms.Nominal, acceptance.NominalPrediction{
 			From: k.from, To: k.to, Ideal: e.ideal, Realised: e.realised,
 			IdealTrace: e.idealTr, RealisedTrace: e.realTr,
 		})
@@ -250,7 +245,7 @@ func medianPeriod(tr metrics.Trace, st metrics.Step) float64 {
 
 // designs returns the gains the model gives, on the first nominal step, for
 // the spec's overshoot limit (when it has one) and for critical damping.
-func (p *predictor) designs(nominal []NominalPrediction) []GainDesign {
+func (p *predictor) designs(nominal []acceptance.NominalPrediction) []acceptance.GainDesign {
 	if len(nominal) == 0 {
 		return nil
 	}
@@ -265,9 +260,9 @@ func (p *predictor) designs(nominal []NominalPrediction) []GainDesign {
 		wants = append(wants, want{model.OvershootTarget(*l.Max), string(metrics.Overshoot), *l.Max})
 	}
 	wants = append(wants, want{model.DampingTarget(1), "damping", 1})
-	var out []GainDesign
+	var out []acceptance.GainDesign
 	for _, w := range wants {
-		g := GainDesign{Target: w.name, Value: w.value}
+		g := acceptance.GainDesign{Target: w.name, Value: w.value}
 		d, err := p.sys.DesignGain(w.target, from, to)
 		var whys []string
 		if d.Ideal != nil {

@@ -1,10 +1,11 @@
-package acceptance
+package batch
 
 import (
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"hash/fnv"
 	"math"
 
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -42,8 +43,8 @@ func newCurveSampler(spec *spec.Spec, files int) *curveSampler {
 	return cs
 }
 
-func (cs *curveSampler) keep(path string, index int, v Verdict) bool {
-	if v != Pass || cs.threshold == math.MaxUint64 {
+func (cs *curveSampler) keep(path string, index int, v acceptance.Verdict) bool {
+	if v != acceptance.Pass || cs.threshold == math.MaxUint64 {
 		return true
 	}
 	h := fnv.New64a()
@@ -63,12 +64,12 @@ func OverlayWindow(spec *spec.Spec) float64 {
 
 // normalisedCurve samples the step's normalised response on the uniform
 // grid, interpolating linearly between the recorded samples.
-func normalisedCurve(tr metrics.Trace, st metrics.Step, window float64) *StepCurve {
+func normalisedCurve(tr metrics.Trace, st metrics.Step, window float64) *acceptance.StepCurve {
 	size := st.To - st.From
 	if size == 0 || st.End-st.Start < 2 {
 		return nil
 	}
-	c := &StepCurve{Window: window, Y: make([]float32, CurvePoints)}
+	c := &acceptance.StepCurve{Window: window, Y: make([]float32, CurvePoints)}
 	t0 := tr.Time[st.Start]
 	j := st.Start
 	for k := range c.Y {

@@ -1,10 +1,11 @@
-package acceptance
+package batch
 
 import (
 	"fmt"
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 
+	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -23,8 +24,8 @@ const (
 // much the response still drifted in the final window. It never judges: the
 // report turns the evidence into worded indications. limit is the record's
 // effort limit (see effortLimit), found once per record.
-func stepEvidence(tr metrics.Trace, m metrics.StepMetrics, o metrics.Options, limit metrics.Value) *StepEvidence {
-	ev := &StepEvidence{}
+func stepEvidence(tr metrics.Trace, m metrics.StepMetrics, o metrics.Options, limit metrics.Value) *acceptance.StepEvidence {
+	ev := &acceptance.StepEvidence{}
 	st := m.Step
 	ev.FinalDrift = finalDrift(tr, st, o.FinalWindow)
 	if tr.Effort == nil {
