@@ -42,13 +42,24 @@ func benchUnits(n, first int, start time.Time) []Unit {
 // BenchmarkRecordRun5000 records a run of 5,000 units into a new SQLite
 // file, in one transaction.
 func BenchmarkRecordRun5000(b *testing.B) {
+	benchRecord(b, func(i int) string { return filepath.Join(b.TempDir(), fmt.Sprintf("bench%d.db", i)) })
+}
+
+// BenchmarkRecordRun5000Postgres is the same into the PostgreSQL test
+// server (STEPGATE_TEST_POSTGRES), a schema of its own per run; the CPU
+// time is the client's only.
+func BenchmarkRecordRun5000Postgres(b *testing.B) {
+	benchRecord(b, func(int) string { return freshPostgres(b) })
+}
+
+func benchRecord(b *testing.B, fresh func(i int) string) {
 	const n = 5000
 	units := benchUnits(n, 0, t0)
 	ctx := context.Background()
 	var took, cpu time.Duration
 	for i := range b.N {
 		b.StopTimer()
-		s, err := Open(ctx, filepath.Join(b.TempDir(), fmt.Sprintf("bench%d.db", i)))
+		s, err := Open(ctx, fresh(i))
 		if err != nil {
 			b.Fatal(err)
 		}

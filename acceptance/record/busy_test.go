@@ -5,6 +5,7 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -54,11 +55,16 @@ func TestConcurrentWriters(t *testing.T) {
 	})
 }
 
-// holdWriteLock takes SQLite's write lock on the database from another
-// connection and releases it when the returned function is called.
-func holdWriteLock(t *testing.T, path string) (release func()) {
+// holdWriteLock takes the database's write lock (SQLite) or an exclusive
+// lock on the attempt table (PostgreSQL) from another connection, and
+// releases it when the returned function is called.
+func holdWriteLock(t *testing.T, b backend, dsn string) (release func()) {
 	t.Helper()
-	db, err := sql.Open("sqlite", path)
+	driver, lock := "sqlite", "BEGIN IMMEDIATE"
+	if b.name == "postgres" {
+		driver, lock = "pgx", "BEGIN; LOCK TABLE attempt IN ACCESS EXCLUSIVE MODE"
+	}
+	db, err := sql.Open(driver, dsn)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -66,60 +72,68 @@ func holdWriteLock(t *testing.T, path string) (release func()) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := conn.ExecContext(context.Background(), "BEGIN IMMEDIATE"); err != nil {
-		t.Fatal(err)
+	for _, q := range strings.Split(lock, "; ") {
+		if _, err := conn.ExecContext(context.Background(), q); err != nil {
+			t.Fatal(err)
+		}
 	}
+	var once sync.Once
 	return func() {
-		conn.ExecContext(context.Background(), "ROLLBACK")
-		conn.Close()
-		db.Close()
+		once.Do(func() {
+			conn.ExecContext(context.Background(), "ROLLBACK")
+			conn.Close()
+			db.Close()
+		})
 	}
 }
 
-// A writer that finds the SQLite file locked by another writer waits and
-// tries again (SQLITE_BUSY) until its busy timeout; past it, it gives up
-// with an error wrapping ErrBusy and writes nothing.
-func TestSQLiteBusyRetry(t *testing.T) {
-	path := freshSQLite(t)
-	open(t, path)
-	ctx := context.Background()
-	cases := []struct {
-		name    string
-		hold    time.Duration
-		timeout time.Duration
-		wantErr bool
-	}{
-		{"lock released within the timeout", 1500 * time.Millisecond, 10 * time.Second, false},
-		{"lock held past the timeout", 3 * time.Second, 400 * time.Millisecond, true},
-	}
-	for i, c := range cases {
-		s, err := OpenWith(ctx, path, Options{BusyTimeout: c.timeout})
-		if err != nil {
-			t.Fatal(err)
+// A writer that finds the database locked by another writer waits and
+// tries again (SQLITE_BUSY; PostgreSQL's lock_timeout) until its busy
+// timeout; past it, it gives up with an error wrapping ErrBusy and writes
+// nothing.
+func TestBusyRetry(t *testing.T) {
+	eachBackend(t, func(t *testing.T, b backend) {
+		dsn := b.fresh(t)
+		open(t, dsn)
+		ctx := context.Background()
+		cases := []struct {
+			name    string
+			hold    time.Duration
+			timeout time.Duration
+			wantErr bool
+		}{
+			{"lock released within the timeout", 1500 * time.Millisecond, 10 * time.Second, false},
+			{"lock held past the timeout", 3 * time.Second, 400 * time.Millisecond, true},
 		}
-		release := holdWriteLock(t, path)
-		timer := time.AfterFunc(c.hold, release)
-		start := time.Now()
-		res, err := s.RecordRun(ctx, testRun(t0), testSpec("A"), []Unit{testUnit("SN-B", i, t0)})
-		took := time.Since(start)
-		timer.Stop()
-		release()
-		switch {
-		case c.wantErr && !errors.Is(err, ErrBusy):
-			t.Errorf("%s: err = %v, want ErrBusy", c.name, err)
-		case c.wantErr && (took < c.timeout || took > c.hold):
-			t.Errorf("%s: gave up after %v, want between %v and %v", c.name, took, c.timeout, c.hold)
-		case !c.wantErr && (err != nil || res.Recorded != 1):
-			t.Errorf("%s: %+v, %v", c.name, res, err)
-		case !c.wantErr && took < c.hold:
-			t.Errorf("%s: recorded after %v while the lock was held for %v", c.name, took, c.hold)
+		for i, c := range cases {
+			s, err := OpenWith(ctx, dsn, Options{BusyTimeout: c.timeout})
+			if err != nil {
+				t.Fatal(err)
+			}
+			release := holdWriteLock(t, b, dsn)
+			timer := time.AfterFunc(c.hold, release)
+			start := time.Now()
+			res, err := s.RecordRun(ctx, testRun(t0), testSpec("A"), []Unit{testUnit("SN-B", i, t0)})
+			took := time.Since(start)
+			timer.Stop()
+			release()
+			switch {
+			case c.wantErr && !errors.Is(err, ErrBusy):
+				t.Errorf("%s: err = %v, want ErrBusy", c.name, err)
+			case c.wantErr && (took < c.timeout || took > c.hold):
+				t.Errorf("%s: gave up after %v, want between %v and %v", c.name, took, c.timeout, c.hold)
+			case !c.wantErr && (err != nil || res.Recorded != 1):
+				t.Errorf("%s: %+v, %v", c.name, res, err)
+			case !c.wantErr && took < c.hold:
+				t.Errorf("%s: recorded after %v while the lock was held for %v", c.name, took, c.hold)
+			}
+			if c.wantErr && err != nil {
+				t.Logf("the error a user sees: %v", err)
+			}
+			s.Close()
 		}
-		if c.wantErr && err != nil {
-			t.Logf("the error a user sees: %v", err)
+		if c := counts(t, open(t, dsn)); c["attempt"] != 1 || c["run"] != 1 {
+			t.Errorf("rows after the busy cases: %v, want 1 run and 1 attempt", c)
 		}
-		s.Close()
-	}
-	if c := counts(t, open(t, path)); c["attempt"] != 1 {
-		t.Errorf("attempts after the busy cases: %d, want 1", c["attempt"])
-	}
+	})
 }

@@ -3,6 +3,7 @@ package record
 import (
 	"errors"
 	"fmt"
+	"net/url"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -58,7 +59,7 @@ var postgresDialect = dialect{
 // driver is opened with.
 func dialectFor(dsn string, busy time.Duration) (dialect, string, error) {
 	if strings.HasPrefix(dsn, "postgres://") || strings.HasPrefix(dsn, "postgresql://") {
-		return postgresDialect, dsn, nil
+		return postgresURL(dsn, busy)
 	}
 	if dsn == "" {
 		return dialect{}, "", errors.New("record: no database given: a file path for SQLite or a postgres:// URL")
@@ -77,6 +78,22 @@ func dialectFor(dsn string, busy time.Duration) (dialect, string, error) {
 	q := "_txlock=immediate&_pragma=busy_timeout(" + strconv.FormatInt(ms, 10) + ")" +
 		"&_pragma=journal_mode(WAL)&_pragma=synchronous(NORMAL)&_pragma=foreign_keys(1)&_pragma=cache_size(-65536)&_pragma=temp_store(2)"
 	return sqliteDialect, abs + "?" + q, nil
+}
+
+// postgresURL adds a lock_timeout to the URL, unless it sets one: a write
+// that waits for another writer's lock longer fails with lock_not_available,
+// and RecordRun tries again until its busy timeout, as with SQLite.
+func postgresURL(dsn string, busy time.Duration) (dialect, string, error) {
+	u, err := url.Parse(dsn)
+	if err != nil {
+		return dialect{}, "", fmt.Errorf("record: PostgreSQL URL: %w", err)
+	}
+	q := u.Query()
+	if q.Get("lock_timeout") == "" {
+		q.Set("lock_timeout", strconv.FormatInt(min(busy.Milliseconds(), 1000), 10))
+		u.RawQuery = q.Encode()
+	}
+	return postgresDialect, u.String(), nil
 }
 
 // render replaces the type tokens and, for PostgreSQL, numbers the

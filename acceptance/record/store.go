@@ -119,7 +119,11 @@ func (s *Store) inTx(ctx context.Context, fn func(*sql.Tx) error) error {
 		}
 		left := time.Until(deadline)
 		if left <= 0 {
-			return fmt.Errorf("%w: another writer held it for %v (%d tries): %v", ErrBusy, s.busy, tries, err)
+			word := "tries"
+			if tries == 1 {
+				word = "try"
+			}
+			return fmt.Errorf("%w: another writer held it for %v (%d %s): %v", ErrBusy, s.busy, tries, word, err)
 		}
 		select {
 		case <-ctx.Done():
