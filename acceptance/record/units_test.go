@@ -111,7 +111,7 @@ func TestUnitsWithMetrics(t *testing.T) {
 func TestUnitsAcrossPages(t *testing.T) {
 	eachBackend(t, func(t *testing.T, b backend) {
 		s := open(t, b.fresh(t))
-		const n = 2345
+		const n = 1100
 		units := make([]Unit, n)
 		for i := range units {
 			// Recorded in reverse start order.
