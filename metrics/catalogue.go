@@ -56,6 +56,9 @@ type Metric struct {
 	// definition (durations from the step instant, overshoot, the
 	// steady-state error); a negative limit on it is a mistake.
 	NonNegative bool
+	// Method says in words how MeasureUncertainty evaluates the metric's
+	// standard uncertainty, with the clause it follows.
+	Method string
 
 	field func(*StepMetrics) *Value // the StepMetrics field holding it
 }
@@ -63,17 +66,17 @@ type Metric struct {
 // catalogue is the one table of metrics, in report order. A new metric is
 // one row here, its field in StepMetrics and the function that measures it.
 var catalogue = [...]Metric{
-	{StepSize, "step size", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.StepSize }},
-	{InitialValue, "initial value", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.InitialValue }},
-	{FinalValue, "final value", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.FinalValue }},
-	{DeadTime, "dead time", Seconds, true, func(m *StepMetrics) *Value { return &m.DeadTime }},
-	{RiseTime, "rise time", Seconds, true, func(m *StepMetrics) *Value { return &m.RiseTime }},
-	{PeakValue, "peak value", ResponseUnit, false, func(m *StepMetrics) *Value { return &m.PeakValue }},
-	{PeakTime, "peak time", Seconds, true, func(m *StepMetrics) *Value { return &m.PeakTime }},
-	{Overshoot, "overshoot", Percent, true, func(m *StepMetrics) *Value { return &m.Overshoot }},
-	{SettlingTime, "settling time", Seconds, true, func(m *StepMetrics) *Value { return &m.SettlingTime }},
-	{SteadyStateError, "steady-state error", ResponseUnit, true, func(m *StepMetrics) *Value { return &m.SteadyStateError }},
-	{SteadyStateErrorPct, "steady-state error (rel.)", Percent, true, func(m *StepMetrics) *Value { return &m.SteadyStateErrorPct }},
+	{StepSize, "step size", ResponseUnit, false, "none: the commanded change is set, not measured (u = 0)", func(m *StepMetrics) *Value { return &m.StepSize }},
+	{InitialValue, "initial value", ResponseUnit, false, "GUM §4.2.3: σ/√N over the pre-step window (σ from second differences), with the resolution q/√12 where the noise does not dither the encoder (GUM F.2.2.1)", func(m *StepMetrics) *Value { return &m.InitialValue }},
+	{FinalValue, "final value", ResponseUnit, false, "GUM §4.2.3: σ/√N over the final window (σ from second differences), with the resolution q/√12 where the noise does not dither the encoder (GUM F.2.2.1)", func(m *StepMetrics) *Value { return &m.FinalValue }},
+	{DeadTime, "dead time", Seconds, true, "GUM §5.1.2 through the crossing slope, as IEC 62754:2017 does for reference-level instants: level, sample noise and interpolation; Monte Carlo (JCGM 101:2008) where the noise spans more than a quarter of a sample's rise", func(m *StepMetrics) *Value { return &m.DeadTime }},
+	{RiseTime, "rise time", Seconds, true, "GUM §5.1.2 through both crossing slopes, the shared state levels correlated (IEC 62754:2017); Monte Carlo (JCGM 101:2008) where the noise spans more than a quarter of a sample's rise", func(m *StepMetrics) *Value { return &m.RiseTime }},
+	{PeakValue, "peak value", ResponseUnit, false, "Monte Carlo on the trace (JCGM 101:2008), with the sampled peak's shortfall |ÿ|Δt²/8 taken as rectangular (GUM §4.3.7)", func(m *StepMetrics) *Value { return &m.PeakValue }},
+	{PeakTime, "peak time", Seconds, true, "Monte Carlo on the trace (JCGM 101:2008), with the sample period Δt/√12 (GUM F.2.2.1)", func(m *StepMetrics) *Value { return &m.PeakTime }},
+	{Overshoot, "overshoot", Percent, true, "Monte Carlo on the trace and the state levels (JCGM 101:2008), with the sampled peak's shortfall (GUM §4.3.7)", func(m *StepMetrics) *Value { return &m.Overshoot }},
+	{SettlingTime, "settling time", Seconds, true, "Monte Carlo on the trace and the band's centre (JCGM 101:2008), with the interpolation of the last exit (GUM §4.3.7)", func(m *StepMetrics) *Value { return &m.SettlingTime }},
+	{SteadyStateError, "steady-state error", ResponseUnit, true, "GUM §5.1.2: that of the final value (the command is exact)", func(m *StepMetrics) *Value { return &m.SteadyStateError }},
+	{SteadyStateErrorPct, "steady-state error (rel.)", Percent, true, "GUM §5.1.2: that of the final value over the step size", func(m *StepMetrics) *Value { return &m.SteadyStateErrorPct }},
 }
 
 // NumNames is the number of metrics, len(Names).

@@ -136,6 +136,7 @@ func measureOne(t *testing.T, data []byte, minChange, band, window, lo, hi float
 			m = metrics.MeasureStep(tr, s, o)
 		}
 		checkMetrics(t, tr, s, m, o)
+		checkUncertainty(t, tr, m, o)
 		r := acceptance.JudgeStep(spec, m)
 		checkVerdict(t, spec, m, r)
 		results = append(results, r)
@@ -323,6 +324,22 @@ func TestFuzzSeedsDecode(t *testing.T) {
 	for i := range got.Time {
 		if math.Abs(got.Time[i]-lg.Trace.Time[i]) > 1e-6 || math.Abs(got.Response[i]-lg.Trace.Response[i]) > 1e-5 {
 			t.Fatalf("sample %d: %v %v, want %v %v", i, got.Time[i], got.Response[i], lg.Trace.Time[i], lg.Trace.Response[i])
+		}
+	}
+}
+
+// checkUncertainty checks that every measured metric has a finite,
+// non-negative uncertainty and every unmeasured one none, with a reason.
+func checkUncertainty(t *testing.T, tr metrics.Trace, m metrics.StepMetrics, o metrics.Options) {
+	t.Helper()
+	u := metrics.MeasureUncertainty(tr, m, o, metrics.UncertaintyOptions{Replicates: 20})
+	for i, n := range metrics.Names {
+		v, uv := m.At(i), u.Standard(n)
+		switch {
+		case !v.OK && (uv.OK || uv.Why == ""):
+			t.Fatalf("%s unknown but its uncertainty is %+v", n, uv)
+		case v.OK && m.Step.Start < m.Step.End && (!uv.OK || uv.V < 0 || math.IsNaN(uv.V) || math.IsInf(uv.V, 0)):
+			t.Fatalf("%s = %v measured but its uncertainty is %+v", n, v.V, uv)
 		}
 	}
 }

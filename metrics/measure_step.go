@@ -268,14 +268,9 @@ func initialValue(tr Trace, s Step, tol float64, buf *[]float64) Value {
 	if m < minPreSamples {
 		return Unknown(fmt.Sprintf("only %d samples before the step; %d are needed for the initial value", m, minPreSamples))
 	}
-	k := (m + 1) / 2
+	lo := preWindowStart(tr, s)
+	k := s.Start - lo
 	tStep := tr.Time[s.Start]
-	inTime := 0
-	for i := s.Start - 1; i >= s.PreStart && tr.Time[i] >= tStep-preWindowSeconds; i-- {
-		inTime++
-	}
-	k = max(min(k, inTime), minPreSamples)
-	lo := s.Start - k
 	w := tr.Response[lo:s.Start]
 	l := stateLevel(w, scratch(buf, k))
 	span := num(tStep - tr.Time[lo])
@@ -290,10 +285,31 @@ func initialValue(tr Trace, s Step, tol float64, buf *[]float64) Value {
 	return Known(l.Value)
 }
 
+// preWindowStart returns the first sample of the window the initial value
+// of step s is measured from: the last half of the pre-step samples or the
+// last preWindowSeconds before the step instant, whichever holds fewer, and
+// at least minPreSamples. s has at least minPreSamples pre-step samples.
+func preWindowStart(tr Trace, s Step) int {
+	k := (s.Start - s.PreStart + 1) / 2
+	tStep := tr.Time[s.Start]
+	inTime := 0
+	for i := s.Start - 1; i >= s.PreStart && tr.Time[i] >= tStep-preWindowSeconds; i-- {
+		inTime++
+	}
+	return s.Start - max(min(k, inTime), minPreSamples)
+}
+
+// finalWindowLen returns how many samples at the end of a step of n samples
+// the final value is measured from: the fraction frac of them, at least
+// minFinalSamples (which may exceed n).
+func finalWindowLen(n int, frac float64) int {
+	return max(int(math.Ceil(frac*float64(n)-1e-9)), minFinalSamples)
+}
+
 // finalValue measures the state level at the end of a step.
 func finalValue(t, y []float64, frac, tol, dur float64, buf *[]float64) Value {
 	n := len(y)
-	k := max(int(math.Ceil(frac*float64(n)-1e-9)), minFinalSamples)
+	k := finalWindowLen(n, frac)
 	if k > n {
 		return Unknown(fmt.Sprintf("step has only %d samples; %d are needed for the final value", n, minFinalSamples))
 	}
