@@ -1,11 +1,12 @@
 package acceptance
 
 import (
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"math"
 
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
 )
 
 // Verdict is the outcome of a check, a step or a unit.
@@ -262,5 +263,6 @@ func (b *Batch) PageUnits(all bool) []int {
 	return idx
 }
 
-// Notice is the statement every results.json carries.
-const Notice = "Verdicts state whether measured step responses met the spec's limits; they are no safety certification of the machine, the rig or the procedure. Follow the safety cautions in report.pdf, report.xlsx and the README, local codes, the applicable machinery-safety standards and competent, licensed practice."
+// Notice is the statement every results.json carries: what the batch's
+// verdicts are and are not (templates/wording.txt's [notice]).
+var Notice = templates.MustPhrase("notice")

@@ -19,6 +19,17 @@ func Phrase(key string) (string, bool) {
 	return p, ok
 }
 
+// MustPhrase returns the phrase filed under key, and panics when
+// wording.txt has none: for the fixed texts a package reads once at start,
+// whose keys the tests check.
+func MustPhrase(key string) string {
+	p, ok := phrases[key]
+	if !ok {
+		panic("templates: wording.txt has no phrase [" + key + "]")
+	}
+	return p
+}
+
 // PhraseKeys lists the keys of wording.txt in file order.
 func PhraseKeys() []string {
 	var keys []string

@@ -45,6 +45,16 @@ func TestPhrases(t *testing.T) {
 			t.Errorf("closing advice lacks %q", w)
 		}
 	}
+	for key, words := range map[string][]string{
+		"notice":        {"no safety certification", "machinery-safety standards", "competent, licensed practice"},
+		"decision-rule": {"ISO 14253-1:2017", "ILAC-G8:09/2019", "a value on the limit passes", "no guard band"},
+	} {
+		for _, w := range words {
+			if !strings.Contains(MustPhrase(key), w) {
+				t.Errorf("phrase %q lacks %q", key, w)
+			}
+		}
+	}
 	if _, ok := Phrase("no-such-phrase"); ok {
 		t.Errorf("an unknown key gave a phrase")
 	}

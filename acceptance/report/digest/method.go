@@ -5,6 +5,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
 )
 
 // Definition states how one metric (or a group measured together) is
@@ -68,9 +69,6 @@ func Definitions(b *acceptance.Batch) []Definition {
 }
 
 // DecisionRule states how the verdicts were reached (ISO/IEC 17025:2017
-// §7.8.6 asks that the decision rule be stated; references §6, §7).
-const DecisionRule = "Simple acceptance (ISO 14253-1:2017; ILAC-G8:09/2019): each measured value is compared with its limit, a value on the limit passes, with no guard band. " +
-	"A unit passes only when it has at least one step and every limited metric of every step was measured and lies within its limits. " +
-	"A limited metric that could not be measured makes the step invalid, unless the record already proves a failure " +
-	"(the response is still outside the settling band after the settling-time limit). " +
-	"Times are measured from the step instant, the first sample at the new command."
+// §7.8.6 asks that the decision rule be stated; references §6, §7); the
+// text is templates/wording.txt's [decision-rule].
+var DecisionRule = templates.MustPhrase("decision-rule")
