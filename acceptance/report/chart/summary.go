@@ -117,11 +117,33 @@ func Histogram(s digest.MetricStats) (*plot.Plot, error) {
 	p.Title.TextStyle.Font = fontOf(9.5)
 	p.X.Label.TextStyle.Font = fontOf(8)
 	p.Y.Label.TextStyle.Font = fontOf(8)
-	// Bins inside the limits in blue, bins beyond them in red.
+	most := addBins(p, s.Bins)
+	v := &vlines{lo: s.Bins[0].Lo, hi: s.Bins[len(s.Bins)-1].Hi, top: math.Max(1, float64(most)) * 1.25}
+	if err := v.add(p, s); err != nil {
+		return nil, err
+	}
+	p.Legend.Top = true
+	p.Legend.TextStyle.Font = fontOf(7)
+	p.Legend.ThumbnailWidth = vg.Points(16)
+	p.Legend.Padding = vg.Points(1.5)
+	pad := 0.05 * (v.hi - v.lo)
+	if pad == 0 {
+		pad = 1
+	}
+	p.X.Min, p.X.Max = v.lo-pad, v.hi+pad
+	p.Y.Min, p.Y.Max = 0, v.top*1.15
+	p.X.Tick.Marker = NiceTicks{}
+	p.Y.Tick.Marker = countTicks{}
+	return p, nil
+}
+
+// addBins draws the bins, those inside the limits in blue and those beyond
+// them in red, and returns the largest count.
+func addBins(p *plot.Plot, bins []digest.Bin) int {
 	in := &plotter.Histogram{FillColor: ColourBars}
 	out := &plotter.Histogram{FillColor: ColourFail}
 	most := 0
-	for _, b := range s.Bins {
+	for _, b := range bins {
 		bin := plotter.HistogramBin{Min: b.Lo, Max: b.Hi, Weight: float64(b.Count)}
 		if b.Outside {
 			out.Bins = append(out.Bins, bin)
@@ -139,42 +161,51 @@ func Histogram(s digest.MetricStats) (*plot.Plot, error) {
 		h.Width = h.Bins[0].Max - h.Bins[0].Min
 		p.Add(h)
 	}
-	lo, hi := s.Bins[0].Lo, s.Bins[len(s.Bins)-1].Hi
-	top := math.Max(1, float64(most)) * 1.25
-	vline := func(x float64, c color.Color, width float64, dashes []vg.Length) (*plotter.Line, error) {
-		l, err := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: top}})
-		if err != nil {
-			return nil, err
-		}
-		l.Color, l.Width, l.Dashes = c, vg.Points(width), dashes
-		lo, hi = math.Min(lo, x), math.Max(hi, x)
-		return l, nil
+	return most
+}
+
+// vlines draws a histogram's vertical lines from 0 to top, widening the
+// range lo to hi of the x axis to take them in.
+type vlines struct{ lo, hi, top float64 }
+
+func (v *vlines) line(x float64, c color.Color, width float64, dashes []vg.Length) (*plotter.Line, error) {
+	l, err := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: v.top}})
+	if err != nil {
+		return nil, err
 	}
+	l.Color, l.Width, l.Dashes = c, vg.Points(width), dashes
+	v.lo, v.hi = math.Min(v.lo, x), math.Max(v.hi, x)
+	return l, nil
+}
+
+// add draws the limits, the mean and the predicted value, and lists them
+// in the legend.
+func (v *vlines) add(p *plot.Plot, s digest.MetricStats) error {
 	var limitLine *plotter.Line
 	for _, lim := range []*float64{s.Min, s.Max} {
 		if lim == nil {
 			continue
 		}
-		l, err := vline(*lim, ColourLimit, 1.2, []vg.Length{vg.Points(4), vg.Points(2)})
+		l, err := v.line(*lim, ColourLimit, 1.2, []vg.Length{vg.Points(4), vg.Points(2)})
 		if err != nil {
-			return nil, fmt.Errorf("chart: %s limit: %w", s.Metric, err)
+			return fmt.Errorf("chart: %s limit: %w", s.Metric, err)
 		}
 		p.Add(l)
 		limitLine = l
 	}
 	var meanLine, predLine *plotter.Line
 	if s.Mean.OK {
-		l, err := vline(s.Mean.V, colourMean, 0.9, []vg.Length{vg.Points(1), vg.Points(1.5)})
+		l, err := v.line(s.Mean.V, colourMean, 0.9, []vg.Length{vg.Points(1), vg.Points(1.5)})
 		if err != nil {
-			return nil, fmt.Errorf("chart: %s mean: %w", s.Metric, err)
+			return fmt.Errorf("chart: %s mean: %w", s.Metric, err)
 		}
 		p.Add(l)
 		meanLine = l
 	}
 	if s.Predicted.OK {
-		l, err := vline(s.Predicted.V, ColourPredicted, 1.4, nil)
+		l, err := v.line(s.Predicted.V, ColourPredicted, 1.4, nil)
 		if err != nil {
-			return nil, fmt.Errorf("chart: %s prediction: %w", s.Metric, err)
+			return fmt.Errorf("chart: %s prediction: %w", s.Metric, err)
 		}
 		p.Add(l)
 		predLine = l
@@ -188,19 +219,7 @@ func Histogram(s digest.MetricStats) (*plot.Plot, error) {
 	if meanLine != nil {
 		p.Legend.Add("mean", meanLine)
 	}
-	p.Legend.Top = true
-	p.Legend.TextStyle.Font = fontOf(7)
-	p.Legend.ThumbnailWidth = vg.Points(16)
-	p.Legend.Padding = vg.Points(1.5)
-	pad := 0.05 * (hi - lo)
-	if pad == 0 {
-		pad = 1
-	}
-	p.X.Min, p.X.Max = lo-pad, hi+pad
-	p.Y.Min, p.Y.Max = 0, top*1.15
-	p.X.Tick.Marker = NiceTicks{}
-	p.Y.Tick.Marker = countTicks{}
-	return p, nil
+	return nil
 }
 
 // countTicks marks a count axis at whole numbers: every 1, 2 or 5 times a

@@ -259,6 +259,39 @@ func (pn *Panel) valueRange() (ymin, ymax float64) {
 // Plot lays the panel out: the settling band, the command, the prediction,
 // the response coloured by the step's verdict, and the limit instants.
 func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
+	p := pn.frame(responseUnit)
+	band, err := plotter.NewPolygon(plotter.XYs{
+		{X: pn.Start, Y: pn.BandLo}, {X: pn.End, Y: pn.BandLo}, {X: pn.End, Y: pn.BandHi}, {X: pn.Start, Y: pn.BandHi},
+	})
+	if err != nil {
+		return nil, fmt.Errorf("chart: step %d settling band: %w", pn.Step, err)
+	}
+	band.Color = ColourBand
+	band.LineStyle.Color = colourBandEdge
+	band.LineStyle.Width = vg.Points(0.4)
+	band.LineStyle.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
+	p.Add(band)
+	p.Legend.Add("settling band", band)
+	if err := pn.addCurves(p, predictionKind); err != nil {
+		return nil, err
+	}
+	ymin, ymax := pn.valueRange()
+	if err := pn.addMarks(p, ymin, ymax); err != nil {
+		return nil, err
+	}
+	pn.placeLegend(p)
+	x0 := pn.Start - 0.1*(pn.End-pn.Start)
+	if len(pn.T) > 0 {
+		x0 = pn.T[0]
+	}
+	p.X.Min, p.X.Max = x0, pn.End
+	p.Y.Min, p.Y.Max = ymin, ymax
+	return p, nil
+}
+
+// frame returns the panel's plot with its title, axis labels, ticks and
+// grid, and nothing drawn.
+func (pn *Panel) frame(responseUnit string) *plot.Plot {
 	p := plot.New()
 	setFonts(p)
 	p.BackgroundColor = color.White
@@ -278,24 +311,16 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	grid.Vertical.Color, grid.Horizontal.Color = colourGrid, colourGrid
 	grid.Vertical.Width, grid.Horizontal.Width = vg.Points(0.4), vg.Points(0.4)
 	p.Add(grid)
+	return p
+}
 
-	band, err := plotter.NewPolygon(plotter.XYs{
-		{X: pn.Start, Y: pn.BandLo}, {X: pn.End, Y: pn.BandLo}, {X: pn.End, Y: pn.BandHi}, {X: pn.Start, Y: pn.BandHi},
-	})
-	if err != nil {
-		return nil, fmt.Errorf("chart: step %d settling band: %w", pn.Step, err)
-	}
-	band.Color = ColourBand
-	band.LineStyle.Color = colourBandEdge
-	band.LineStyle.Width = vg.Points(0.4)
-	band.LineStyle.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
-	p.Add(band)
-	p.Legend.Add("settling band", band)
-
+// addCurves draws the command, the prediction and the response, each when
+// the panel has it.
+func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
 	if len(pn.Command) > 0 {
 		l, err := newLine(pn.CmdT, pn.Command)
 		if err != nil {
-			return nil, fmt.Errorf("chart: step %d command: %w", pn.Step, err)
+			return fmt.Errorf("chart: step %d command: %w", pn.Step, err)
 		}
 		l.Color, l.Width = ColourCommand, vg.Points(0.8)
 		l.StepStyle = plotter.PostStep
@@ -305,7 +330,7 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	if len(pn.PredT) > 0 {
 		l, err := newLine(pn.PredT, pn.PredY)
 		if err != nil {
-			return nil, fmt.Errorf("chart: step %d prediction: %w", pn.Step, err)
+			return fmt.Errorf("chart: step %d prediction: %w", pn.Step, err)
 		}
 		l.Color, l.Width = ColourPrediction, vg.Points(1.3)
 		p.Add(l)
@@ -314,18 +339,22 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	if len(pn.T) > 0 {
 		l, err := newLine(pn.T, pn.Response)
 		if err != nil {
-			return nil, fmt.Errorf("chart: step %d response: %w", pn.Step, err)
+			return fmt.Errorf("chart: step %d response: %w", pn.Step, err)
 		}
 		styleLine(l.Line, kindOf(pn.Verdict))
 		l.Width = vg.Points(1)
 		p.Add(l)
 		p.Legend.Add("response ("+strings.ToLower(string(pn.Verdict))+")", l)
 	}
-	ymin, ymax := pn.valueRange()
+	return nil
+}
+
+// addMarks draws the vertical lines of the time limits from ymin to ymax.
+func (pn *Panel) addMarks(p *plot.Plot, ymin, ymax float64) error {
 	for _, m := range pn.Marks {
 		l, err := newLine([]float64{m.At, m.At}, []float64{ymin, ymax})
 		if err != nil {
-			return nil, fmt.Errorf("chart: step %d mark: %w", pn.Step, err)
+			return fmt.Errorf("chart: step %d mark: %w", pn.Step, err)
 		}
 		l.Width = vg.Points(0.9)
 		switch m.kind {
@@ -339,8 +368,12 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 		p.Add(l)
 		p.Legend.Add(m.Label, l)
 	}
-	// The legend goes where the response is not: at the bottom after an
-	// up-step, at the top after a down-step.
+	return nil
+}
+
+// placeLegend puts the legend where the response is not: at the bottom
+// after an up-step, at the top after a down-step.
+func (pn *Panel) placeLegend(p *plot.Plot) {
 	p.Legend.Top = pn.To < pn.From
 	p.Legend.Left = false
 	p.Legend.TextStyle.Font = fontOf(6.5)
@@ -352,11 +385,4 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	} else {
 		p.Legend.YOffs = vg.Points(3)
 	}
-	x0 := pn.Start - 0.1*(pn.End-pn.Start)
-	if len(pn.T) > 0 {
-		x0 = pn.T[0]
-	}
-	p.X.Min, p.X.Max = x0, pn.End
-	p.Y.Min, p.Y.Max = ymin, ymax
-	return p, nil
 }
