@@ -224,61 +224,11 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 	o := &Overlay{Band: digest.SettlingBand(b)}
 	var segs []segment
 	for _, ui := range units {
-		u := &b.Units[ui]
-		for si, s := range u.Steps {
-			o.Steps++
-			label := fmt.Sprintf("%s, step %d", u.Unit, s.Index)
-			if (u.Trace == nil || u.Trace.Len() == 0) && s.Curve != nil && len(s.Curve.Y) > 1 {
-				segs = append(segs, segment{kind: kindOf(s.Verdict), label: label, pre: s.Curve, duration: curveDuration(s.Curve)})
-				continue
-			}
-			if u.Trace == nil || u.Trace.Len() == 0 {
-				o.NoRecord++
-				continue
-			}
-			start, err := StartIndex(u.Trace, s.StartS)
-			if err != nil {
-				o.Skipped = append(o.Skipped, label+": "+err.Error())
-				continue
-			}
-			end := u.Trace.Len()
-			if si+1 < len(u.Steps) {
-				if e, err := StartIndex(u.Trace, u.Steps[si+1].StartS); err == nil && e > start {
-					end = e
-				}
-			}
-			if s.To == s.From {
-				o.Skipped = append(o.Skipped, label+": the step has no size to normalise by")
-				continue
-			}
-			segs = append(segs, segment{
-				kind: kindOf(s.Verdict), label: label, tr: u.Trace,
-				start: start, end: end, from: s.From, to: s.To,
-				duration: u.Trace.Time[end-1] - u.Trace.Time[start],
-			})
-		}
+		segs = o.unitSegments(&b.Units[ui], segs)
 	}
 	segs = thin(segs, o)
 	preds := predictionSegments(b, o)
-
-	longest := 0.0
-	for _, s := range segs {
-		longest = math.Max(longest, s.duration)
-	}
-	for _, s := range preds {
-		longest = math.Max(longest, s.duration)
-	}
-	o.Window = longest
-	if l, ok := b.Limits[metrics.SettlingTime]; ok && l.Max != nil && *l.Max > 0 {
-		w := windowOverSett * *l.Max
-		if longest == 0 || w < longest {
-			o.Window = w
-		}
-	}
-	if o.Window <= 0 {
-		o.Window = 1
-	}
-
+	o.Window = overlayWindow(b, segs, preds)
 	points := PointsFew
 	if len(segs) > FewCurves {
 		points = PointsMany
@@ -286,28 +236,8 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 	ymin, ymax := math.Inf(1), math.Inf(-1)
 	for _, group := range [][]segment{segs, preds} {
 		for _, s := range group {
-			var t, y []float64
-			var err error
-			if s.pre != nil {
-				t, y = curvePoints(s.pre, o.Window)
-			} else {
-				t, y, err = Normalise(s.tr, s.start, s.end, s.from, s.to, o.Window)
-			}
-			if err != nil {
-				o.Skipped = append(o.Skipped, s.label+": "+err.Error())
-				continue
-			}
-			t, y = Downsample(t, y, points)
-			for i := range y {
-				if t[i] <= o.Window {
-					ymin = math.Min(ymin, y[i])
-					ymax = math.Max(ymax, y[i])
-				}
-			}
-			o.Curves = append(o.Curves, Curve{Kind: s.kind, Label: s.label, T: t, Y: y})
-			if s.kind != Prediction {
-				o.Shown++
-			}
+			lo, hi := o.addCurve(s, points)
+			ymin, ymax = math.Min(ymin, lo), math.Max(ymax, hi)
 		}
 	}
 	sort.SliceStable(o.Curves, func(i, j int) bool { return o.Curves[i].Kind < o.Curves[j].Kind })
@@ -318,6 +248,98 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 		o.Clipped = ymin < o.YMin || ymax > o.YMax
 	}
 	return o
+}
+
+// unitSegments appends the segments of u's steps to segs: cut from its
+// record when it was kept, else the step's kept curve; a step with neither
+// is counted as without a record, one that cannot be cut as skipped.
+func (o *Overlay) unitSegments(u *acceptance.UnitResult, segs []segment) []segment {
+	for si, s := range u.Steps {
+		o.Steps++
+		label := fmt.Sprintf("%s, step %d", u.Unit, s.Index)
+		if (u.Trace == nil || u.Trace.Len() == 0) && s.Curve != nil && len(s.Curve.Y) > 1 {
+			segs = append(segs, segment{kind: kindOf(s.Verdict), label: label, pre: s.Curve, duration: curveDuration(s.Curve)})
+			continue
+		}
+		if u.Trace == nil || u.Trace.Len() == 0 {
+			o.NoRecord++
+			continue
+		}
+		start, err := StartIndex(u.Trace, s.StartS)
+		if err != nil {
+			o.Skipped = append(o.Skipped, label+": "+err.Error())
+			continue
+		}
+		end := u.Trace.Len()
+		if si+1 < len(u.Steps) {
+			if e, err := StartIndex(u.Trace, u.Steps[si+1].StartS); err == nil && e > start {
+				end = e
+			}
+		}
+		if s.To == s.From {
+			o.Skipped = append(o.Skipped, label+": the step has no size to normalise by")
+			continue
+		}
+		segs = append(segs, segment{
+			kind: kindOf(s.Verdict), label: label, tr: u.Trace,
+			start: start, end: end, from: s.From, to: s.To,
+			duration: u.Trace.Time[end-1] - u.Trace.Time[start],
+		})
+	}
+	return segs
+}
+
+// overlayWindow is the time the overlay shows after the step instant: the
+// longest segment, shortened to a multiple of the settling-time limit when
+// there is one; 1 s when nothing has a length.
+func overlayWindow(b *acceptance.Batch, segs, preds []segment) float64 {
+	longest := 0.0
+	for _, s := range segs {
+		longest = math.Max(longest, s.duration)
+	}
+	for _, s := range preds {
+		longest = math.Max(longest, s.duration)
+	}
+	window := longest
+	if l, ok := b.Limits[metrics.SettlingTime]; ok && l.Max != nil && *l.Max > 0 {
+		w := windowOverSett * *l.Max
+		if longest == 0 || w < longest {
+			window = w
+		}
+	}
+	if window <= 0 {
+		window = 1
+	}
+	return window
+}
+
+// addCurve normalises s over the window, thins it to points and adds it,
+// returning the lowest and highest value it shows (±Inf when none).
+func (o *Overlay) addCurve(s segment, points int) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	var t, y []float64
+	var err error
+	if s.pre != nil {
+		t, y = curvePoints(s.pre, o.Window)
+	} else {
+		t, y, err = Normalise(s.tr, s.start, s.end, s.from, s.to, o.Window)
+	}
+	if err != nil {
+		o.Skipped = append(o.Skipped, s.label+": "+err.Error())
+		return lo, hi
+	}
+	t, y = Downsample(t, y, points)
+	for i := range y {
+		if t[i] <= o.Window {
+			lo = math.Min(lo, y[i])
+			hi = math.Max(hi, y[i])
+		}
+	}
+	o.Curves = append(o.Curves, Curve{Kind: s.kind, Label: s.label, T: t, Y: y})
+	if s.kind != Prediction {
+		o.Shown++
+	}
+	return lo, hi
 }
 
 // curveDuration is the time the curve covers before its record ends.
