@@ -268,46 +268,17 @@ func verdictCell(v acceptance.Verdict) cell {
 
 // table draws a table with a repeated header row on every page it spans.
 func (l *layout) table(cols []column, rows [][]cell) {
-	header := func() {
-		l.font("B", 8.5)
-		l.textColour(black)
-		l.fillColour(lightGrey)
-		x := marginL
-		y := l.pdf.GetY()
-		for _, c := range cols {
-			l.pdf.SetXY(x, y)
-			l.pdf.CellFormat(c.width, 6, l.fit(c.title, c.width), "", 0, c.align, true, 0, "")
-			x += c.width
-		}
-		l.pdf.SetXY(marginL, y+6)
-	}
 	l.ensure(6 + lineH + 1.5)
-	header()
+	l.tableHeader(cols)
 	for _, row := range rows {
-		lines := make([][]string, len(cols))
+		lines := l.rowLines(cols, row)
 		n := 1
-		for i, c := range cols {
-			if i >= len(row) {
-				lines[i] = []string{""}
-				continue
-			}
-			if row[i].bold {
-				l.font("B", 8.5)
-			} else {
-				l.font("", 8.5)
-			}
-			if c.wrap > 1 {
-				lines[i] = l.wrap(row[i].text, c.width, c.wrap)
-			} else {
-				lines[i] = []string{l.fit(row[i].text, c.width)}
-			}
-			if len(lines[i]) > n {
-				n = len(lines[i])
-			}
+		for _, ls := range lines {
+			n = max(n, len(ls))
 		}
 		h := float64(n)*lineH + 1.2
 		if l.ensure(h) {
-			header()
+			l.tableHeader(cols)
 		}
 		y := l.pdf.GetY()
 		x := marginL
@@ -316,32 +287,7 @@ func (l *layout) table(cols []column, rows [][]cell) {
 			if i < len(row) {
 				ce = row[i]
 			}
-			if ce.fill != nil {
-				l.fillColour(*ce.fill)
-				l.pdf.Rect(x, y, c.width, h, "F")
-			}
-			style := ""
-			if ce.bold {
-				style = "B"
-			}
-			l.font(style, 8.5)
-			ink := black
-			if ce.smallerInk {
-				ink = grey
-			}
-			if ce.ink != nil {
-				ink = *ce.ink
-			}
-			l.textColour(ink)
-			for k, line := range lines[i] {
-				if line == "" {
-					// An empty cell without border or fill draws nothing;
-					// the row has room, so it cannot break the page.
-					continue
-				}
-				l.pdf.SetXY(x, y+0.6+float64(k)*lineH)
-				l.pdf.CellFormat(c.width, lineH, line, "", 0, c.align, false, 0, "")
-			}
+			l.tableCell(ce, lines[i], x, y, c, h)
 			x += c.width
 		}
 		l.drawColour(ruleGrey)
@@ -350,6 +296,75 @@ func (l *layout) table(cols []column, rows [][]cell) {
 		l.pdf.SetXY(marginL, y+h)
 	}
 	l.textColour(black)
+}
+
+// tableHeader draws the column titles on a grey band.
+func (l *layout) tableHeader(cols []column) {
+	l.font("B", 8.5)
+	l.textColour(black)
+	l.fillColour(lightGrey)
+	x := marginL
+	y := l.pdf.GetY()
+	for _, c := range cols {
+		l.pdf.SetXY(x, y)
+		l.pdf.CellFormat(c.width, 6, l.fit(c.title, c.width), "", 0, c.align, true, 0, "")
+		x += c.width
+	}
+	l.pdf.SetXY(marginL, y+6)
+}
+
+// rowLines breaks the cells of a row into the lines they print on: wrapped
+// in a column that wraps, else fitted to one line.
+func (l *layout) rowLines(cols []column, row []cell) [][]string {
+	lines := make([][]string, len(cols))
+	for i, c := range cols {
+		if i >= len(row) {
+			lines[i] = []string{""}
+			continue
+		}
+		if row[i].bold {
+			l.font("B", 8.5)
+		} else {
+			l.font("", 8.5)
+		}
+		if c.wrap > 1 {
+			lines[i] = l.wrap(row[i].text, c.width, c.wrap)
+		} else {
+			lines[i] = []string{l.fit(row[i].text, c.width)}
+		}
+	}
+	return lines
+}
+
+// tableCell draws one cell of height h at (x, y): its fill, then its lines
+// in its weight and ink.
+func (l *layout) tableCell(ce cell, lines []string, x, y float64, c column, h float64) {
+	if ce.fill != nil {
+		l.fillColour(*ce.fill)
+		l.pdf.Rect(x, y, c.width, h, "F")
+	}
+	style := ""
+	if ce.bold {
+		style = "B"
+	}
+	l.font(style, 8.5)
+	ink := black
+	if ce.smallerInk {
+		ink = grey
+	}
+	if ce.ink != nil {
+		ink = *ce.ink
+	}
+	l.textColour(ink)
+	for k, line := range lines {
+		if line == "" {
+			// An empty cell without border or fill draws nothing; the row
+			// has room, so it cannot break the page.
+			continue
+		}
+		l.pdf.SetXY(x, y+0.6+float64(k)*lineH)
+		l.pdf.CellFormat(c.width, lineH, line, "", 0, c.align, false, 0, "")
+	}
 }
 
 // keyValues draws a two-column list of labels and values.
