@@ -406,8 +406,6 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 	}
 	slices.Sort(extra)
 	names = append(names, extra...)
-
-	havePred := s.Predicted != nil
 	cols := []column{
 		{title: "metric", width: 36, align: "L"},
 		{title: "measured", width: 18, align: "R"},
@@ -421,39 +419,9 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 	}
 	var rows [][]cell
 	for _, m := range names {
-		v, ok := s.Metrics.Lookup(m)
-		c, limited := checks[m]
-		if !ok && !limited {
-			continue
+		if row := r.metricRow(s, m, checks); row != nil {
+			rows = append(rows, row)
 		}
-		note := ""
-		if !v.OK {
-			note = s.Metrics.Reason(m)
-			if note == "" {
-				note = v.Why
-			}
-		}
-		pred, gap := "", ""
-		if havePred {
-			pred = "—"
-			if pv, ok := s.Predicted.Metrics.Lookup(m); ok {
-				pred = value(pv)
-			}
-			gap = "—"
-			if g := s.Gap.Get(m); g != nil {
-				gap = gapText(*g, v, s.Predicted.Metrics.Get(m))
-			}
-		}
-		row := []cell{txt(digest.MetricLabel(m)), {text: value(v), bold: limited}, txt(pred), txt(gap)}
-		if limited {
-			if c.Reason != "" {
-				note = c.Reason
-			}
-			row = append(row, txt(bound(c.Min)), txt(bound(c.Max)), txt(digest.MetricUnit(m, r.unit)), verdictCell(c.Verdict), txt(note))
-		} else {
-			row = append(row, txt(""), txt(""), txt(digest.MetricUnit(m, r.unit)), txt(""), txt(note))
-		}
-		rows = append(rows, row)
 	}
 	r.table(cols, rows)
 	// Reasons the table's notes do not already give.
@@ -470,6 +438,43 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 	if len(rest) > 0 {
 		r.para("Step reasons: "+strings.Join(rest, "; "), 8.5, 4.3, black)
 	}
+}
+
+// metricRow is the step table's row of metric m: measured, predicted and
+// gap, and for a limited metric its limits and check; nil for a name the
+// step neither measured nor checked.
+func (r *report) metricRow(s *acceptance.StepResult, m metrics.Name, checks map[metrics.Name]acceptance.Check) []cell {
+	v, ok := s.Metrics.Lookup(m)
+	c, limited := checks[m]
+	if !ok && !limited {
+		return nil
+	}
+	note := ""
+	if !v.OK {
+		note = s.Metrics.Reason(m)
+		if note == "" {
+			note = v.Why
+		}
+	}
+	pred, gap := "", ""
+	if s.Predicted != nil {
+		pred = "—"
+		if pv, ok := s.Predicted.Metrics.Lookup(m); ok {
+			pred = value(pv)
+		}
+		gap = "—"
+		if g := s.Gap.Get(m); g != nil {
+			gap = gapText(*g, v, s.Predicted.Metrics.Get(m))
+		}
+	}
+	row := []cell{txt(digest.MetricLabel(m)), {text: value(v), bold: limited}, txt(pred), txt(gap)}
+	if !limited {
+		return append(row, txt(""), txt(""), txt(digest.MetricUnit(m, r.unit)), txt(""), txt(note))
+	}
+	if c.Reason != "" {
+		note = c.Reason
+	}
+	return append(row, txt(bound(c.Min)), txt(bound(c.Max)), txt(digest.MetricUnit(m, r.unit)), verdictCell(c.Verdict), txt(note))
 }
 
 // gapText prints measured − predicted. A difference below a billionth of
