@@ -72,78 +72,100 @@ func summariseLoop(b *acceptance.Batch) *LoopSummary {
 		StaticGain:       LoopStat{Name: "static_gain", Label: "static gain G"},
 		DeadTime:         LoopStat{Name: "dead_time_s", Label: "dead time θ", Unit: "s"},
 	}
-	// The units' fits, two passes: mean and range, then deviations.
-	pick := func(f *acceptance.Fit) [4]metrics.Value {
-		return [4]metrics.Value{f.Damping, f.NaturalFrequency, f.StaticGain, f.DeadTime}
+	a := l.accumulate(b)
+	stats := []*LoopStat{&l.Damping, &l.NaturalFrequency, &l.StaticGain, &l.DeadTime}
+	for q, st := range stats {
+		a.set(st, q, l.Units)
 	}
-	var n [4]int
-	var sum, ss [4]float64
-	lo := [4]float64{math.Inf(1), math.Inf(1), math.Inf(1), math.Inf(1)}
-	hi := [4]float64{math.Inf(-1), math.Inf(-1), math.Inf(-1), math.Inf(-1)}
+	l.modelValues(b)
+	l.modelFit(b)
+	return l
+}
+
+// fitQuantities are the four quantities of a fit, in the order of the
+// accumulators: damping, natural frequency, static gain, dead time.
+func fitQuantities(f *acceptance.Fit) [4]metrics.Value {
+	return [4]metrics.Value{f.Damping, f.NaturalFrequency, f.StaticGain, f.DeadTime}
+}
+
+// fitAccum holds the count, mean, range and sum of squared deviations of
+// each fitted quantity over the units.
+type fitAccum struct {
+	n                [4]int
+	mean, ss, lo, hi [4]float64
+}
+
+// accumulate passes over the units' fits twice, for the mean and range and
+// then the deviations, counting the units with a fit and with a fitted
+// value in l.
+func (l *LoopSummary) accumulate(b *acceptance.Batch) *fitAccum {
+	a := &fitAccum{}
+	var sum [4]float64
+	for q := range a.lo {
+		a.lo[q], a.hi[q] = math.Inf(1), math.Inf(-1)
+	}
 	for i := range b.Units {
 		f := b.Units[i].Fit
 		if f == nil {
 			continue
 		}
 		l.Units++
-		vs := pick(f)
 		any := false
-		for q, v := range vs {
+		for q, v := range fitQuantities(f) {
 			if v.OK && finite(v.V) {
 				any = true
-				n[q]++
+				a.n[q]++
 				sum[q] += v.V
-				lo[q], hi[q] = math.Min(lo[q], v.V), math.Max(hi[q], v.V)
+				a.lo[q], a.hi[q] = math.Min(a.lo[q], v.V), math.Max(a.hi[q], v.V)
 			}
 		}
 		if any {
 			l.Fitted++
 		}
 	}
-	var mean [4]float64
-	for q := range mean {
-		if n[q] > 0 {
-			mean[q] = sum[q] / float64(n[q])
+	for q := range a.mean {
+		if a.n[q] > 0 {
+			a.mean[q] = sum[q] / float64(a.n[q])
 		}
 	}
 	for i := range b.Units {
 		if f := b.Units[i].Fit; f != nil {
-			for q, v := range pick(f) {
+			for q, v := range fitQuantities(f) {
 				if v.OK && finite(v.V) {
-					d := v.V - mean[q]
-					ss[q] += d * d
+					d := v.V - a.mean[q]
+					a.ss[q] += d * d
 				}
 			}
 		}
 	}
-	stats := []*LoopStat{&l.Damping, &l.NaturalFrequency, &l.StaticGain, &l.DeadTime}
-	for q, st := range stats {
-		st.N = n[q]
-		if n[q] == 0 {
-			why := "no unit's step could be fitted"
-			if l.Units == 0 {
-				why = "no unit has a fit"
-			}
-			st.Mean, st.SD, st.Min, st.Max, st.CV = metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why)
-			continue
+	return a
+}
+
+// set fills st with the statistics of quantity q, unknown with a reason
+// where there are too few fitted units.
+func (a *fitAccum) set(st *LoopStat, q, units int) {
+	st.N = a.n[q]
+	if a.n[q] == 0 {
+		why := "no unit's step could be fitted"
+		if units == 0 {
+			why = "no unit has a fit"
 		}
-		st.Mean, st.Min, st.Max = metrics.Known(mean[q]), metrics.Known(lo[q]), metrics.Known(hi[q])
-		if n[q] < 2 {
-			why := "one fitted unit; a standard deviation needs at least 2"
-			st.SD, st.CV = metrics.Unknown(why), metrics.Unknown(why)
-			continue
-		}
-		sd := math.Sqrt(ss[q] / float64(n[q]-1))
-		st.SD = metrics.Known(sd)
-		if mean[q] == 0 {
-			st.CV = metrics.Unknown("the mean is 0")
-		} else {
-			st.CV = metrics.Known(sd / math.Abs(mean[q]))
-		}
+		st.Mean, st.SD, st.Min, st.Max, st.CV = metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why), metrics.Unknown(why)
+		return
 	}
-	l.modelValues(b)
-	l.modelFit(b)
-	return l
+	st.Mean, st.Min, st.Max = metrics.Known(a.mean[q]), metrics.Known(a.lo[q]), metrics.Known(a.hi[q])
+	if a.n[q] < 2 {
+		why := "one fitted unit; a standard deviation needs at least 2"
+		st.SD, st.CV = metrics.Unknown(why), metrics.Unknown(why)
+		return
+	}
+	sd := math.Sqrt(a.ss[q] / float64(a.n[q]-1))
+	st.SD = metrics.Known(sd)
+	if a.mean[q] == 0 {
+		st.CV = metrics.Unknown("the mean is 0")
+	} else {
+		st.CV = metrics.Known(sd / math.Abs(a.mean[q]))
+	}
 }
 
 // modelValues sets the analytic values of the model's ideal closed loop.
