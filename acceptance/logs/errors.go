@@ -37,6 +37,23 @@ var (
 	ErrNotText = errors.New("not a text log")
 	// ErrMetadata: two metadata lines give the same key different values.
 	ErrMetadata = errors.New("conflicting metadata")
+	// ErrNotLog: a file found beside the logs is not a step-test log (its
+	// extension is not a log's and it does not read as one), or an archive
+	// member or container cannot be opened.
+	ErrNotLog = errors.New("not a step-test log")
+	// ErrRepeatedHeader: the header row appears again among the data: two
+	// recordings appended in one file.
+	ErrRepeatedHeader = errors.New("header repeated")
+	// ErrUnit: a unit written in the header or a units row contradicts the
+	// unit the spec declares.
+	ErrUnit = errors.New("unit contradicts the spec")
+	// ErrSamplePeriod: the sample period is implausible for a step test in
+	// the declared time unit (time in ms read as s, sample numbers read as
+	// seconds).
+	ErrSamplePeriod = errors.New("implausible sample period")
+	// ErrScale: the response lies far from the command's scale (a factor
+	// of ten or more): counts, or another length unit, not converted.
+	ErrScale = errors.New("response scale")
 	// ErrFormat: the Format itself is invalid.
 	ErrFormat = errors.New("invalid log format")
 )

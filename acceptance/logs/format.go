@@ -22,6 +22,68 @@ type Format struct {
 	Delimiter    byte    // 0 = detect from the header; else ',', ';' or '\t'
 	MaxLineBytes int     // 0 = DefaultMaxLineBytes; a longer line is an error naming the line
 	MaxBytes     int64   // 0 = DefaultMaxBytes; a larger file is an error
+
+	// HeaderLine is the 1-based line of the header row when detection
+	// cannot be sure; 0 finds the header as the first line that names the
+	// time and command columns. Lines before it are metadata or comments.
+	HeaderLine int
+	// SkipRows is the number of lines right after the header that are not
+	// data (a units row, a row of descriptions). A units row directly
+	// under the header is recognised without it.
+	SkipRows int
+	// TimeUnit and ValueUnit name the units the spec declares for the time
+	// column ("s", "ms", "us") and for the command and response columns
+	// ("" = not declared). A unit written in the header or a units row
+	// that contradicts them is an error naming both (ErrUnit): stepgate
+	// never rescales on its own.
+	TimeUnit, ValueUnit string
+	// Scale converts the command, response and effort columns as
+	// written into the spec's units: value = Factor × (±raw) + Offset
+	// (see Transform). Indexed by ScaleCommand, ScaleResponse, ScaleEffort.
+	Scale [3]Transform
+	// Plausible turns on the checks that a judged log needs: a mean sample
+	// period a step test can have for the time unit (ErrSamplePeriod) and
+	// a response on the command's scale (ErrScale). A spec's Format sets it.
+	Plausible bool
+}
+
+// Indexes into Format.Scale.
+const (
+	ScaleCommand = iota
+	ScaleResponse
+	ScaleEffort
+)
+
+// Transform maps a column as written to the spec's units: value =
+// Factor × raw + Offset, with raw negated first when Invert is set (a
+// sensor mounted the other way round). The zero Transform (Factor 0) leaves
+// the column as it is.
+type Transform struct {
+	Factor float64 // 0 means 1
+	Offset float64
+	Invert bool
+}
+
+// IsIdentity reports whether t leaves values unchanged.
+func (t Transform) IsIdentity() bool {
+	return (t.Factor == 0 || t.Factor == 1) && t.Offset == 0 && !t.Invert
+}
+
+// apply converts the values in place.
+func (t Transform) apply(v []float64) {
+	if t.IsIdentity() {
+		return
+	}
+	f := t.Factor
+	if f == 0 {
+		f = 1
+	}
+	if t.Invert {
+		f = -f
+	}
+	for i, x := range v {
+		v[i] = f*x + t.Offset
+	}
 }
 
 // Validate reports whether the Format can be used: the time, command and
@@ -62,6 +124,16 @@ func (f Format) Validate() error {
 	}
 	if f.MaxBytes < 0 {
 		return fmt.Errorf("%w: size limit %d is negative", ErrFormat, f.MaxBytes)
+	}
+	if f.HeaderLine < 0 || f.SkipRows < 0 {
+		return fmt.Errorf("%w: header line %d and rows skipped %d must not be negative", ErrFormat, f.HeaderLine, f.SkipRows)
+	}
+	for i, t := range f.Scale {
+		for _, v := range []float64{t.Factor, t.Offset} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("%w: the %s scale %v is not finite", ErrFormat, roleKeys[i+1], v)
+			}
+		}
 	}
 	return nil
 }

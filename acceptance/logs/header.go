@@ -7,8 +7,21 @@ import (
 	"unicode/utf8"
 )
 
-// header parses the header row: detects the delimiter and maps the columns.
-func (rd *Reader) header(line []byte) error {
+// parseHeader parses the header row, line at of the file: detects the
+// delimiter, maps the columns and checks the units written in the names.
+func (rd *Reader) parseHeader(line []byte, at int) error {
+	keep := rd.lineNo
+	rd.lineNo = at
+	err := rd.mapHeader(line)
+	rd.lineNo = keep
+	rd.headerAt = at
+	rd.header = append(rd.header[:0], line...)
+	rd.skipUntil = at + rd.f.SkipRows
+	return err
+}
+
+// mapHeader detects the delimiter and maps the columns of the header row.
+func (rd *Reader) mapHeader(line []byte) error {
 	if looksNumeric(line) {
 		msg := fmt.Sprintf("no header row: the first row %s holds numbers; the log needs a header row naming its columns before the data",
 			quoteShort(line))
@@ -17,15 +30,13 @@ func (rd *Reader) header(line []byte) error {
 		}
 		return &ParseError{File: rd.name, Line: rd.lineNo, Err: because(ErrNoHeader, msg)}
 	}
-	rd.delim = rd.f.Delimiter
-	if rd.delim == 0 {
-		d, err := detectDelimiter(line, rd.f.DecimalComma)
-		if err != nil {
-			return &ParseError{File: rd.name, Line: rd.lineNo, Err: err}
-		}
-		rd.delim = d
+	d, err := rd.lineDelimiter(line)
+	if err != nil {
+		return &ParseError{File: rd.name, Line: rd.lineNo, Err: err}
 	}
+	rd.delim = d
 	rd.names = splitHeader(line, rd.delim)
+	rd.roles = rd.roles[:0]
 	for range rd.names {
 		rd.roles = append(rd.roles, roleNone)
 	}
@@ -34,12 +45,7 @@ func (rd *Reader) header(line []byte) error {
 		if name == "" {
 			continue
 		}
-		var at []int
-		for i, h := range rd.names {
-			if h == name {
-				at = append(at, i)
-			}
-		}
+		at := matchColumn(rd.names, name)
 		switch {
 		case len(at) == 0 && role == roleEffort:
 			// Effort is optional: a log without it is read without it.
@@ -58,8 +64,70 @@ func (rd *Reader) header(line []byte) error {
 					len(at), strings.Join(fields, ", "), roleKeys[role]))}
 		}
 		rd.roles[at[0]] = int8(role)
+		if _, unit := splitUnit(rd.names[at[0]]); unit != "" {
+			if err := rd.checkUnit(role, at[0], unit, "header"); err != nil {
+				return err
+			}
+		}
 	}
 	return nil
+}
+
+// lineDelimiter is the delimiter of the header row: the Format's, the one
+// a "sep=" first line names, or the one detected from the row.
+func (rd *Reader) lineDelimiter(line []byte) (byte, error) {
+	switch {
+	case rd.f.Delimiter != 0:
+		return rd.f.Delimiter, nil
+	case rd.sep != 0:
+		return rd.sep, nil
+	}
+	return detectDelimiter(line, rd.f.DecimalComma)
+}
+
+// matchColumn returns the fields of the header named name: exactly, or,
+// when no field is, by the name before a unit written in brackets
+// ("position [mm]", "t (s)").
+func matchColumn(names []string, name string) []int {
+	var at []int
+	for i, h := range names {
+		if h == name {
+			at = append(at, i)
+		}
+	}
+	if len(at) > 0 {
+		return at
+	}
+	for i, h := range names {
+		if base, unit := splitUnit(h); unit != "" && base == name {
+			at = append(at, i)
+		}
+	}
+	return at
+}
+
+// splitUnit splits a column name written with its unit, "t [s]" or
+// "position (mm)", into the name and the unit; a name without one is
+// returned whole with an empty unit.
+func splitUnit(h string) (base, unit string) {
+	n := len(h)
+	if n < 3 {
+		return h, ""
+	}
+	var open byte
+	switch h[n-1] {
+	case ']':
+		open = '['
+	case ')':
+		open = '('
+	default:
+		return h, ""
+	}
+	i := strings.LastIndexByte(h, open)
+	if i <= 0 {
+		return h, ""
+	}
+	return strings.TrimSpace(h[:i]), strings.TrimSpace(h[i+1 : n-1])
 }
 
 // hasEffort reports whether the current file's effort column is read.

@@ -1,7 +1,6 @@
 package logs
 
 import (
-	"bytes"
 	"encoding/hex"
 	"fmt"
 	"strings"
@@ -10,85 +9,57 @@ import (
 )
 
 // parse reads the whole log: the lines before the header (blank,
-// comment and metadata lines), the header row, then the data rows.
-func (rd *Reader) parse() (*Log, error) {
+// comment, metadata and section lines), the header row, then the data rows.
+func (rd *Reader) parse() error {
 	if err := rd.sniff(); err != nil {
-		return nil, err
+		return err
 	}
-	pre := preamble{meta: map[string]string{}}
 	header := false
 	for {
 		line, last, ok, err := rd.next()
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if !ok {
 			break
 		}
 		switch {
+		case rd.pend != nil:
+			err = rd.lookahead(line)
+		case header && rd.lineNo <= rd.skipUntil:
 		case header && isBlankRow(line, rd.delim):
+		case header && isEmptyRow(line, rd.delim):
+			if rd.emptyAt == 0 {
+				rd.emptyAt = rd.lineNo
+			}
 		case header:
 			err = rd.row(line, last)
 		default:
-			header, err = rd.beforeHeader(line, &pre)
+			header, err = rd.beforeHeader(line, last)
 		}
 		if err != nil {
-			return nil, err
+			return err
 		}
 	}
-	if err := rd.complete(header, pre.sawText); err != nil {
-		return nil, err
+	if rd.pend != nil {
+		return rd.pend
 	}
-	return rd.result(pre.meta), nil
-}
-
-// preamble is what the lines before the header have given.
-type preamble struct {
-	meta     map[string]string // metadata, keys lower-cased
-	metaLine map[string]int    // the line each key was first given on
-	sawText  bool              // a line other than a blank one was met
-}
-
-// beforeHeader reads one line before the header: a blank line, a comment,
-// a metadata line, or the header row itself, which it parses and reports.
-func (rd *Reader) beforeHeader(line []byte, pre *preamble) (isHeader bool, err error) {
-	t := trimSpace(line)
-	if len(t) == 0 {
-		return false, nil
-	}
-	pre.sawText = true
-	if err := rd.checkControl(line); err != nil {
-		return false, err
-	}
-	if t[0] != '#' {
-		return true, rd.header(line)
-	}
-	k, v, isMeta := metadata(t[1:])
-	if !isMeta {
-		if bytes.ContainsAny(t, ",;\t") {
-			rd.commentLine, rd.comment = rd.lineNo, string(t)
-		}
-		return false, nil
-	}
-	if old, dup := pre.meta[k]; dup {
-		if old != v {
-			return false, &ParseError{File: rd.name, Line: rd.lineNo, Err: because(ErrMetadata,
-				fmt.Sprintf("metadata %q is %q here but %q on line %d", k, v, old, pre.metaLine[k]))}
-		}
-		return false, nil
-	}
-	if pre.metaLine == nil {
-		pre.metaLine = map[string]int{}
-	}
-	pre.meta[k], pre.metaLine[k] = v, rd.lineNo
-	return false, nil
+	return rd.complete(header)
 }
 
 // complete checks, at the end of the file, that it had a header and at
 // least two data rows.
-func (rd *Reader) complete(header, sawText bool) error {
+func (rd *Reader) complete(header bool) error {
+	if !header && len(rd.first) > 0 {
+		// Header-like lines but no data row: judge the first as the header,
+		// so that a header without the spec's columns says which are there.
+		if err := rd.parseHeader(rd.first, rd.firstLine); err != nil {
+			return err
+		}
+		header = true
+	}
 	switch {
-	case !header && sawText:
+	case !header && rd.sawText:
 		return &ParseError{File: rd.name, Err: because(ErrNoHeader,
 			"no header row: the file holds only comment and metadata lines")}
 	case !header:

@@ -3,6 +3,7 @@ package logs
 import (
 	"bytes"
 	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"hash"
 	"io"
@@ -75,6 +76,26 @@ type Reader struct {
 	comment     string // last comment line before the header that holds a delimiter
 	commentLine int    // its line number, 0 when none
 	sum         [sha256.Size]byte
+
+	// preamble and layout state (layout.go)
+	meta      map[string]string // metadata read so far
+	metaLine  map[string]int    // the line each key was first given on
+	sawText   bool              // a line other than a blank one was met
+	sep       byte              // delimiter named by a "sep=" first line
+	cand      []byte            // the last header-like line before the data
+	candLine  int
+	first     []byte // the first header-like line, for a file without data
+	firstLine int
+	headerAt  int       // line of the header row
+	header    []byte    // the header row as written
+	skipUntil int       // lines up to this one are not data (log.skip_rows)
+	emptyAt   int       // first row of empty values after the data began
+	units     [4]string // units written in the header or a units row
+	stamp     stampState
+	pend      error // a row error held while looking for a repeated header
+	pendLeft  int   // lines still looked at
+	fields    [][]byte
+	unitsAt   int // line of the units row, 0 when none
 }
 
 // Shared makes rd return traces that alias its own column buffers instead
@@ -159,9 +180,39 @@ func (rd *Reader) Read(r io.Reader, name string) (*Log, error) {
 		return nil, fmt.Errorf("read log %s: %w", name, rd.err)
 	}
 	rd.reset(r, name)
-	lg, err := rd.parse()
+	err := rd.parse()
+	if err != nil {
+		lg := rd.partial()
+		rd.src = nil
+		return lg, err
+	}
+	lg := rd.result(rd.meta)
 	rd.src = nil
-	return lg, err
+	if err := rd.check(lg); err != nil {
+		return rd.identity(lg), err
+	}
+	return lg, nil
+}
+
+// partial returns what a file that cannot be used still tells: its
+// metadata (serial, start time), size and digest, the rest of the file
+// being read for the digest. The trace is empty.
+func (rd *Reader) partial() *Log {
+	if rd.src != nil && rd.h != nil {
+		n, _ := io.Copy(rd.h, io.LimitReader(rd.src, max(rd.maxSize-rd.total, 0)))
+		rd.total += n
+	}
+	lg := &Log{Path: rd.name, Size: rd.total, Metadata: rd.meta, Delimiter: rd.delim}
+	if rd.h != nil {
+		rd.h.Sum(rd.sum[:0])
+		lg.SHA256 = hex.EncodeToString(rd.sum[:])
+	}
+	return lg
+}
+
+// identity is lg without its trace: a log read whole but refused.
+func (rd *Reader) identity(lg *Log) *Log {
+	return &Log{Path: lg.Path, SHA256: lg.SHA256, Size: lg.Size, Metadata: lg.Metadata, Delimiter: lg.Delimiter, Rows: lg.Rows}
 }
 
 func (rd *Reader) reset(r io.Reader, name string) {
@@ -186,6 +237,14 @@ func (rd *Reader) reset(r io.Reader, name string) {
 	rd.prevT = rd.prevT[:0]
 	rd.prevTL = 0
 	rd.comment, rd.commentLine = "", 0
+	rd.meta, rd.metaLine = map[string]string{}, nil
+	rd.sawText, rd.sep = false, 0
+	rd.cand, rd.candLine, rd.first, rd.firstLine = rd.cand[:0], 0, rd.first[:0], 0
+	rd.headerAt, rd.header, rd.skipUntil, rd.emptyAt = 0, rd.header[:0], 0, 0
+	rd.units = [4]string{}
+	rd.stamp = stampState{}
+	rd.pend, rd.pendLeft = nil, 0
+	rd.unitsAt = 0
 }
 
 // fileKind names the type of a file that is not a regular file.

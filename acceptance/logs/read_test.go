@@ -196,7 +196,7 @@ func TestReadRejects(t *testing.T) {
 		{"numeric first row", "# serial: X\n0,0,0\n0.001,1,0.25\n", base, ErrNoHeader, 2, 0, "", `the first row "0,0,0" holds numbers`},
 		{"header written as a comment", "# time,command,position\n0,0,0\n0.001,1,0.25\n", base, ErrNoHeader, 2, 0, "",
 			`line 1 "# time,command,position" is a comment: a header row must not start with '#'`},
-		{"row of empty values, tab-delimited", "time\tcommand\tposition\n0\t0\t0\n\t\t\n", base, ErrBadNumber, 3, 1, "time", "empty value"},
+		{"row of empty values among the data, tab-delimited", "time\tcommand\tposition\n0\t0\t0\n\t\t\n1\t1\t1\n", base, ErrBadNumber, 3, 1, "time", "empty value"},
 		{"header only", head, base, ErrNoData, 0, 0, "", "not followed by any data rows"},
 		{"header and blank lines", head + "\n\n", base, ErrNoData, 0, 0, "", "not followed by any data rows"},
 		{"one row", head + "0,0,0\n", base, ErrNoData, 0, 0, "", "only 1 data row"},

@@ -17,8 +17,25 @@ func trimField(b []byte) []byte {
 	return b
 }
 
-// row parses one data row and appends its values.
+// row parses one data row and appends its values. Ordinary rows take the
+// byte-level path (rowFast); a row it refuses is looked at again
+// (rowSlow) for the layouts that need more: a units row, quoted fields, a
+// trailing delimiter, timestamps, a repeated header.
 func (rd *Reader) row(line []byte, last bool) error {
+	if rd.emptyAt > 0 {
+		return rd.emptyRowError()
+	}
+	if rd.stamp.on {
+		return rd.rowFields(line, last)
+	}
+	if err := rd.rowFast(line, last); err != nil {
+		return rd.rowSlow(line, last, err)
+	}
+	return nil
+}
+
+// rowFast parses one data row of plain fields and appends its values.
+func (rd *Reader) rowFast(line []byte, last bool) error {
 	nf := len(rd.roles)
 	delim := rd.delim
 	var vals [4]float64
@@ -59,8 +76,14 @@ func (rd *Reader) row(line []byte, last bool) error {
 	if bad >= 0 {
 		return rd.numberError(bad, badStatus, badText, last && bad == nf-1)
 	}
+	return rd.push(&vals, tText)
+}
+
+// push checks the time of a parsed row against the previous row's and
+// appends the row's values.
+func (rd *Reader) push(vals *[4]float64, tText []byte) error {
 	t := vals[roleTime]
-	if rd.mul != 1 {
+	if rd.mul != 1 && !rd.stamp.on {
 		t *= rd.mul
 		if math.IsInf(t, 0) {
 			return &ParseError{File: rd.name, Line: rd.lineNo, Column: rd.column(roleTime), Field: rd.f.Time,
