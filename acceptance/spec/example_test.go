@@ -46,9 +46,19 @@ limits:
 	//   final value taken from the last 20 % of each step's record
 	//
 	// Limits (a unit passes only when every limited metric of every step is
-	// measured and within its limits; a value on a limit passes):
+	// measured and accepted under the decision rule below):
 	//   9.95 ≤ final_value ≤ 10.05 mm
 	//   overshoot_pct ≤ 8 %
+	//
+	// Decision rule (ISO/IEC 17025:2017 §7.8.6, ISO 14253-1:2017, ILAC-G8:09/2019):
+	//   simple acceptance: a value within its limits passes whatever its
+	//   measurement uncertainty. A value within U of a limit is reported as a
+	//   conditional pass or fail; one on the limit may in truth lie outside it
+	//   with a chance of up to 50 % (JCGM 106:2012).
+	//   every check states its expanded uncertainty U (k = 2), evaluated from
+	//   the record itself (noise, resolution, sample period)
+	//   response resolution: the count found in each log; values are compared
+	//   with limits at their resolution (that count, or the sample period for times)
 	//
 	// Model: none (no prediction, no comparison with a model)
 }

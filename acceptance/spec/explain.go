@@ -62,13 +62,20 @@ func (s *Spec) Explain() string {
 	line("  final value taken from the last %s %% of each step's record", pct(o.FinalWindow))
 	line("")
 	line("Limits (a unit passes only when every limited metric of every step is")
-	line("measured and within its limits; a value on a limit passes):")
+	line("measured and accepted under the decision rule below):")
 	names := s.LimitNames()
 	if len(names) == 0 {
 		line("  none")
 	}
 	for _, n := range names {
 		line("  %s", s.describeLimit(n))
+		for _, e := range s.limitExtras(n) {
+			line("      %s", e)
+		}
+	}
+	line("")
+	for _, l := range s.explainDecision() {
+		line("%s", l)
 	}
 	line("")
 	if s.Model == nil {

@@ -68,6 +68,56 @@ func TestExplain(t *testing.T) {
 	}
 }
 
+// TestExplainDecision checks the wording of the decision rule, its risk
+// (JCGM 106:2012: up to 50 % for a value on the limit under simple
+// acceptance; about 2.3 % at the acceptance limit for w = U, k = 2, a
+// normal distribution) and each limit's optional keys.
+func TestExplainDecision(t *testing.T) {
+	doc := `spec_id: T-1
+revision: A
+signals: {time: t, command: cmd, response: pos}
+steps: {min_change: 0.5}
+response_unit: mm
+response_resolution: 0.01
+decision_rule: guarded
+limits:
+  overshoot_pct: {max: 8, guard_band: 0.5, min_ppk: 1.33}
+  rise_time_s: {max: 0.12, guard_band_u: 2, resolution: 0.001}
+  steady_state_error: {max: 0.12, min_cpk: 1.67}
+`
+	s, err := spec.Parse([]byte(doc), "t.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := s.Explain()
+	for _, w := range []string{
+		"  guarded acceptance: a value passes only inside its limits narrowed by",
+		"outside its limit stays below about 2.5 % (JCGM 106:2012).",
+		"  overshoot_pct ≤ 8 %\n      guard band 0.5 % inside each bound\n      the batch must reach Ppk ≥ 1.33 (overall σ)\n",
+		"  rise_time_s ≤ 0.12 s\n      stated and compared in steps of 0.001 s\n      guard band 2 × U inside each bound\n",
+		"  steady_state_error ≤ 0.12 mm\n      guard band U inside each bound\n      the batch must reach Cpk ≥ 1.67 (within-subgroup σ)\n",
+		"  response resolution 0.01 mm (the encoder count)",
+	} {
+		if !strings.Contains(out, w) {
+			t.Errorf("Explain lacks %q:\n%s", w, out)
+		}
+	}
+	if s.DecisionRule != spec.RuleGuarded {
+		t.Errorf("decision rule %q", s.DecisionRule)
+	}
+	_, err = spec.Parse([]byte(strings.Replace(doc, "decision_rule: guarded\n", "", 1)), "t.yaml")
+	if err == nil || !strings.Contains(err.Error(), "applies only under decision_rule: guarded") {
+		t.Errorf("guard bands without the guarded rule: err = %v", err)
+	}
+	plain, err := spec.Parse([]byte("spec_id: T\nrevision: A\nsignals: {time: t, command: c, response: p}\nsteps: {min_change: 1}\nlimits: {overshoot_pct: {max: 8}}\n"), "t.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if plain.DecisionRule != spec.RuleSimple || plain.Guarded() {
+		t.Errorf("default decision rule %q, want simple", plain.DecisionRule)
+	}
+}
+
 // TestSpecTemplate checks that the template printed by `stepgate spec init`
 // is a valid spec and documents every key and metric name.
 func TestSpecTemplate(t *testing.T) {

@@ -158,8 +158,30 @@ func TestParseRules(t *testing.T) {
 		{"limit not finite", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: .nan}"}, "limits.overshoot_pct.max", "must be a finite number, got .nan", 10, 24},
 		{"limit as text", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8%}"}, "limits.overshoot_pct.max", `must be a number, got text "8%"`, 10, 24},
 		{"limit unknown bound key", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {maximum: 8}"}, "limits.overshoot_pct.maximum", "unknown key; valid keys here: min, max", 10, 19},
-		{"limit as a number", edit{"overshoot_pct: {max: 8}", "overshoot_pct: 8"}, "limits.overshoot_pct", "must be a mapping with keys min, max; got 8", 10, 18},
+		{"limit as a number", edit{"overshoot_pct: {max: 8}", "overshoot_pct: 8"}, "limits.overshoot_pct", "must be a mapping with keys min, max, resolution, guard_band, guard_band_u, min_ppk, min_cpk; got 8", 10, 18},
 		{"limits as a list", edit{"limits:\n  overshoot_pct: {max: 8}\n", "limits: [overshoot_pct]\n"}, "limits", "must be a mapping of metric names to {min, max}; got a list", 9, 9},
+
+		// Decision rules (ISO 14253-1:2017; ILAC-G8:09/2019): simple or
+		// guarded acceptance; a guard band only narrows the acceptance zone
+		// under guarded acceptance, in the metric's unit or as a multiple of
+		// U, and must leave a zone between two bounds.
+		{"rule simple", edit{"", "decision_rule: simple\n"}, "", "", 0, 0},
+		{"rule guarded", edit{"", "decision_rule: guarded\n"}, "", "", 0, 0},
+		{"rule unknown", edit{"", "decision_rule: strict\n"}, "decision_rule", `must be simple (a value within its limits passes) or guarded`, 11, 16},
+		{"guard band under guarded", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, guard_band: 0.5}\ndecision_rule: guarded"}, "", "", 0, 0},
+		{"guard band in U", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, guard_band_u: 1}\ndecision_rule: guarded"}, "", "", 0, 0},
+		{"guard band under simple", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, guard_band: 0.5}"}, "limits.overshoot_pct.guard_band", "applies only under decision_rule: guarded", 10, 27},
+		{"guard band negative", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, guard_band_u: -1}\ndecision_rule: guarded"}, "limits.overshoot_pct.guard_band_u", "must be ≥ 0, got -1", 10, 41},
+		{"both guard bands", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, guard_band: 0.5, guard_band_u: 1}\ndecision_rule: guarded"}, "limits.overshoot_pct.guard_band_u", "not both", 10, 44},
+		{"guard bands leave no zone", edit{"overshoot_pct: {max: 8}", "final_value: {min: 9, max: 10, guard_band: 0.5}\ndecision_rule: guarded"}, "limits.final_value.guard_band", "0.5 at each bound leaves no acceptance zone between min 9 and max 10", 10, 46},
+
+		// Resolution and required indices.
+		{"response resolution", edit{"", "response_resolution: 0.01\n"}, "", "", 0, 0},
+		{"response resolution zero", edit{"", "response_resolution: 0\n"}, "response_resolution", "must be > 0: the encoder count", 11, 22},
+		{"metric resolution", edit{"overshoot_pct: {max: 8}", "steady_state_error: {max: 0.12, resolution: 0.01}"}, "", "", 0, 0},
+		{"metric resolution negative", edit{"overshoot_pct: {max: 8}", "steady_state_error: {max: 0.12, resolution: -0.01}"}, "limits.steady_state_error.resolution", "must be > 0: the step the values are stated in, got -0.01", 10, 47},
+		{"min ppk", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, min_ppk: 1.33, min_cpk: 1.33}"}, "", "", 0, 0},
+		{"min ppk zero", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {max: 8, min_ppk: 0}"}, "limits.overshoot_pct.min_ppk", "must be > 0", 10, 36},
 
 		// Report logo: PNG or JPEG only (the image formats PDF writers embed).
 		{"logo png", edit{"", "report: {logo: art/logo.PNG}\n"}, "", "", 0, 0},
@@ -168,7 +190,7 @@ func TestParseRules(t *testing.T) {
 		{"signatory unknown key", edit{"", "report: {approved_by: {name: A, title: QM}}\n"}, "report.approved_by.title", "unknown key; valid keys here: name, role", 11, 33},
 
 		// Unknown and duplicate keys anywhere.
-		{"unknown top-level key", edit{"", "limit: {}\n"}, "limit", "unknown key; valid keys here: spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, model, report", 11, 1},
+		{"unknown top-level key", edit{"", "limit: {}\n"}, "limit", "unknown key; valid keys here: spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, decision_rule, response_resolution, model, report", 11, 1},
 		{"duplicate key", edit{"", "spec_id: T-2\n"}, "spec_id", "key given twice (first at line 1)", 11, 1},
 	}
 	for _, c := range cases {
@@ -275,7 +297,7 @@ func TestParseDocumentProblems(t *testing.T) {
 		{"document marker only", "---", "t.yaml: the file holds no keys; `stepgate spec init` prints a template"},
 		{"null document", "null\n", "t.yaml:1:1: the file holds no keys; `stepgate spec init` prints a template"},
 		{"tagged null document", "--- !!null\n", "t.yaml:1:5: the file holds no keys; `stepgate spec init` prints a template"},
-		{"not a mapping", "- a\n- b\n", "t.yaml:1:1: a spec must be a mapping of keys (spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, model, report), got a list"},
+		{"not a mapping", "- a\n- b\n", "t.yaml:1:1: a spec must be a mapping of keys (spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, decision_rule, response_resolution, model, report), got a list"},
 		{"unclosed brace", "spec_id: T-1\nlimits: {overshoot_pct: {max: 8}\n", "t.yaml:2: invalid YAML: did not find expected ',' or '}' in the part that starts on this line"},
 		{"tab indent", "spec_id: T-1\nsignals:\n\ttime: t\n", "t.yaml:3: invalid YAML: found character that cannot start any token"},
 		{"two documents", baseSpec + "---\nspec_id: T-2\n", "t.yaml:11:1: only one YAML document is allowed; remove the '---' separator and what follows"},
@@ -343,7 +365,7 @@ func TestParseKeepsChecking(t *testing.T) {
 	doc = strings.Replace(doc, "overshoot_pct: {max: 8}", "overshoot_pct: 8", 1)
 	want := []string{
 		`t.yaml:8:15: steps.min_change: must be a number, got text "half"`,
-		"t.yaml:10:18: limits.overshoot_pct: must be a mapping with keys min, max; got 8",
+		"t.yaml:10:18: limits.overshoot_pct: must be a mapping with keys min, max, resolution, guard_band, guard_band_u, min_ppk, min_cpk; got 8",
 		`t.yaml:11:12: time_unit: must be one of s, ms, us; got "min"`,
 		`t.yaml:12:33: metrics.rise_levels_pct[1]: must be a number, got text "x"`,
 		"t.yaml:14:10: model.plant: must be a mapping with keys numerator, denominator; got a list",

@@ -24,6 +24,13 @@ type Spec struct {
 	Steps        StepRules              `yaml:"steps"`
 	Metrics      MetricRules            `yaml:"metrics"`
 	Limits       map[metrics.Name]Limit `yaml:"limits"`
+	// DecisionRule is how a value and its uncertainty are judged against
+	// a limit: simple (default) or guarded (see decision.go).
+	DecisionRule string `yaml:"decision_rule"`
+	// ResponseResolution is the resolution of the response signal (the
+	// encoder count) in response units; 0 when the spec leaves it out
+	// and the count is found in each log.
+	ResponseResolution float64 `yaml:"response_resolution"`
 	Model        *model.Config          `yaml:"model"`
 	Report       ReportInfo             `yaml:"report"`
 
@@ -60,10 +67,26 @@ type MetricRules struct {
 	FinalWindowPct   float64   `yaml:"final_window_pct"`    // default 20
 }
 
-// Limit bounds one metric. A nil bound is not checked.
+// Limit bounds one metric. A nil bound is not checked. The other fields
+// are optional and nil when the spec leaves them out.
 type Limit struct {
 	Min *float64 `yaml:"min" json:"min"`
 	Max *float64 `yaml:"max" json:"max"`
+	// Resolution is the step the metric's values are stated in and
+	// compared at, in the metric's unit; nil derives it from the
+	// response's resolution and the log's sample period.
+	Resolution *float64 `yaml:"resolution" json:"resolution,omitempty"`
+	// GuardBand narrows the acceptance zone by this amount at each bound,
+	// in the metric's unit (decision_rule guarded only).
+	GuardBand *float64 `yaml:"guard_band" json:"guard_band,omitempty"`
+	// GuardBandU narrows it by this multiple of the value's expanded
+	// uncertainty U (decision_rule guarded only).
+	GuardBandU *float64 `yaml:"guard_band_u" json:"guard_band_u,omitempty"`
+	// MinPpk and MinCpk are the smallest performance (overall σ) and
+	// capability (within-subgroup σ) indices the spec owner requires of
+	// the batch for this metric.
+	MinPpk *float64 `yaml:"min_ppk" json:"min_ppk,omitempty"`
+	MinCpk *float64 `yaml:"min_cpk" json:"min_cpk,omitempty"`
 }
 
 // ReportInfo identifies the issuing organisation and the people who sign.
@@ -93,6 +116,7 @@ const (
 	DefaultDeadTimeLevelPct = 2.0
 	DefaultFinalWindowPct   = 20.0
 	DefaultDelimiter        = "auto"
+	DefaultDecisionRule     = RuleSimple
 )
 
 // LogoPath returns the report logo's path resolved against the folder of

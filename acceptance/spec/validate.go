@@ -31,6 +31,9 @@ func (p *parser) defaults() {
 	if !p.present("log.delimiter") {
 		s.Log.Delimiter = DefaultDelimiter
 	}
+	if !p.present("decision_rule") {
+		s.DecisionRule = DefaultDecisionRule
+	}
 }
 
 // validate applies the value rules to the decoded spec.
@@ -106,6 +109,7 @@ func (p *parser) validate() {
 	p.openRange("metrics.dead_time_level_pct", s.Metrics.DeadTimeLevelPct, 0, 50, false)
 	p.openRange("metrics.final_window_pct", s.Metrics.FinalWindowPct, 0, 100, true)
 
+	p.validateDecision()
 	p.validateLimits()
 
 	// Report.
@@ -205,7 +209,9 @@ func (p *parser) validateLimits() {
 		}
 		if !bad && l.Min != nil && l.Max != nil && *l.Min > *l.Max && !p.skip(path+".min") && !p.skip(path+".max") {
 			p.problem(path+".min", valNode, "must be ≤ max, got min %s > max %s", formatFloat(*l.Min), formatFloat(*l.Max))
+			bad = true
 		}
+		p.validateLimitDecision(path, l, bad)
 	}
 }
 
