@@ -39,6 +39,58 @@ func notesBatch() *acceptance.Batch {
 	return b
 }
 
+// eachStep calls f with every unit of b and its first step.
+func eachStep(b *acceptance.Batch, f func(u *acceptance.UnitResult, s *acceptance.StepResult)) {
+	for i := range b.Units {
+		f(&b.Units[i], &b.Units[i].Steps[0])
+	}
+}
+
+// The edits of notesBatch that the cases of TestNotes combine.
+
+func overshootAll(v float64) func(*acceptance.Batch) {
+	return func(b *acceptance.Batch) {
+		eachStep(b, func(_ *acceptance.UnitResult, s *acceptance.StepResult) {
+			s.Metrics.Set(metrics.Overshoot, metrics.Known(v))
+		})
+	}
+}
+
+func deadTimeAll(v float64) func(*acceptance.Batch) {
+	return func(b *acceptance.Batch) {
+		eachStep(b, func(u *acceptance.UnitResult, _ *acceptance.StepResult) { u.Fit.DeadTime = metrics.Known(v) })
+	}
+}
+
+// offsetB sets unit B's steady-state error and final drift. The settling
+// band is 2 % of the 10 mm step = 0.2 mm: offset threshold 0.02 mm, flat
+// threshold 0.01 mm.
+func offsetB(sse, drift float64) func(*acceptance.Batch) {
+	return func(b *acceptance.Batch) {
+		s := &b.Units[1].Steps[0]
+		s.Metrics.Set(metrics.SteadyStateError, metrics.Known(sse))
+		s.Evidence.FinalDrift = metrics.Known(drift)
+	}
+}
+
+func saturatedC(v metrics.Value) func(*acceptance.Batch) {
+	return func(b *acceptance.Batch) { b.Units[2].Steps[0].Evidence.EffortSaturatedPct = v }
+}
+
+// frequencies sets the units' identified natural frequencies; the units
+// beyond the values given lose their fit.
+func frequencies(ws ...float64) func(*acceptance.Batch) {
+	return func(b *acceptance.Batch) {
+		for i := range b.Units {
+			if i < len(ws) {
+				b.Units[i].Fit.NaturalFrequency = metrics.Known(ws[i])
+			} else {
+				b.Units[i].Fit = nil
+			}
+		}
+	}
+}
+
 // TestNotes checks that each cause rule fires on evidence that supports it
 // and not otherwise. The thresholds are stepgate's (common practice, no
 // source): overshoot more than 1 point above the prediction with a dead
@@ -47,46 +99,6 @@ func notesBatch() *acceptance.Batch {
 // prediction with a drift of at most 5 % of it; effort at its limit for
 // more than 20 % of the rise; a coefficient of variation of ωn above 5 %.
 func TestNotes(t *testing.T) {
-	each := func(b *acceptance.Batch, f func(u *acceptance.UnitResult, s *acceptance.StepResult)) {
-		for i := range b.Units {
-			f(&b.Units[i], &b.Units[i].Steps[0])
-		}
-	}
-	overshoot := func(v float64) func(*acceptance.Batch) {
-		return func(b *acceptance.Batch) {
-			each(b, func(_ *acceptance.UnitResult, s *acceptance.StepResult) {
-				s.Metrics.Set(metrics.Overshoot, metrics.Known(v))
-			})
-		}
-	}
-	deadTime := func(v float64) func(*acceptance.Batch) {
-		return func(b *acceptance.Batch) {
-			each(b, func(u *acceptance.UnitResult, _ *acceptance.StepResult) { u.Fit.DeadTime = metrics.Known(v) })
-		}
-	}
-	// Settling band 2 % of the 10 mm step = 0.2 mm: offset threshold
-	// 0.02 mm, flat threshold 0.01 mm.
-	offset := func(sse, drift float64) func(*acceptance.Batch) {
-		return func(b *acceptance.Batch) {
-			s := &b.Units[1].Steps[0]
-			s.Metrics.Set(metrics.SteadyStateError, metrics.Known(sse))
-			s.Evidence.FinalDrift = metrics.Known(drift)
-		}
-	}
-	saturated := func(v metrics.Value) func(*acceptance.Batch) {
-		return func(b *acceptance.Batch) { b.Units[2].Steps[0].Evidence.EffortSaturatedPct = v }
-	}
-	frequencies := func(ws ...float64) func(*acceptance.Batch) {
-		return func(b *acceptance.Batch) {
-			for i := range b.Units {
-				if i < len(ws) {
-					b.Units[i].Fit.NaturalFrequency = metrics.Known(ws[i])
-				} else {
-					b.Units[i].Fit = nil
-				}
-			}
-		}
-	}
 	tests := []struct {
 		name  string
 		edits []func(*acceptance.Batch)
@@ -94,27 +106,27 @@ func TestNotes(t *testing.T) {
 		text  []string // evidence the note must quote
 	}{
 		{"nothing supports a cause", nil, "", nil},
-		{"overshoot and dead time above the model", []func(*acceptance.Batch){overshoot(8), deadTime(0.010)}, "loop delay",
+		{"overshoot and dead time above the model", []func(*acceptance.Batch){overshootAll(8), deadTimeAll(0.010)}, "loop delay",
 			[]string{"Overshoot averages 8 % over 4 steps against 5 % predicted (+3 percentage points)",
 				"dead time averages 0.01 s over 4 units against 0.0065 s in the model"}},
 		// 7.5 ms is 1 ms above the model: less than 25 % of 6.5 ms.
-		{"overshoot above, dead time as modelled", []func(*acceptance.Batch){overshoot(8), deadTime(0.0075)}, "", nil},
-		{"dead time above, overshoot as predicted", []func(*acceptance.Batch){overshoot(5.5), deadTime(0.010)}, "", nil},
-		{"offset with a flat final value", []func(*acceptance.Batch){offset(0.2, 0.001)}, "friction",
+		{"overshoot above, dead time as modelled", []func(*acceptance.Batch){overshootAll(8), deadTimeAll(0.0075)}, "", nil},
+		{"dead time above, overshoot as predicted", []func(*acceptance.Batch){overshootAll(5.5), deadTimeAll(0.010)}, "", nil},
+		{"offset with a flat final value", []func(*acceptance.Batch){offsetB(0.2, 0.001)}, "friction",
 			[]string{"In 1 step of 1 unit (B)", "by up to 0.19 mm", "drifts by at most 0.001 mm"}},
-		{"offset while still moving", []func(*acceptance.Batch){offset(0.2, 0.05)}, "", nil},
-		{"small offset, flat", []func(*acceptance.Batch){offset(0.025, 0.001)}, "", nil},
-		{"effort at its limit for much of the rise", []func(*acceptance.Batch){saturated(metrics.Known(35))}, "saturation",
+		{"offset while still moving", []func(*acceptance.Batch){offsetB(0.2, 0.05)}, "", nil},
+		{"small offset, flat", []func(*acceptance.Batch){offsetB(0.025, 0.001)}, "", nil},
+		{"effort at its limit for much of the rise", []func(*acceptance.Batch){saturatedC(metrics.Known(35))}, "saturation",
 			[]string{"In 1 of the 4 steps with an effort record (1 unit: C)", "limit (100 %)", "up to 35 %",
 				"The realised prediction includes the spec's effort limit of 100"}},
-		{"effort at its limit briefly", []func(*acceptance.Batch){saturated(metrics.Known(20))}, "", nil},
-		{"no effort record", []func(*acceptance.Batch){saturated(metrics.Unknown("the log has no effort column"))}, "", nil},
+		{"effort at its limit briefly", []func(*acceptance.Batch){saturatedC(metrics.Known(20))}, "", nil},
+		{"no effort record", []func(*acceptance.Batch){saturatedC(metrics.Unknown("the log has no effort column"))}, "", nil},
 		// 10, 12, 14: mean 12, σ = 2, CV 16.67 %.
 		{"natural frequency spread", []func(*acceptance.Batch){frequencies(10, 12, 14)}, "spread",
 			[]string{"ranges from 10 to 14 rad/s over 3 units (mean 12 rad/s, coefficient of variation 16.67 %"}},
 		{"spread on two fits only", []func(*acceptance.Batch){frequencies(10, 14)}, "", nil},
-		{"every cause at once", []func(*acceptance.Batch){overshoot(8), deadTime(0.010), offset(0.2, 0.001),
-			saturated(metrics.Known(35)), frequencies(10, 12, 14)}, "loop delay,friction,saturation,spread", nil},
+		{"every cause at once", []func(*acceptance.Batch){overshootAll(8), deadTimeAll(0.010), offsetB(0.2, 0.001),
+			saturatedC(metrics.Known(35)), frequencies(10, 12, 14)}, "loop delay,friction,saturation,spread", nil},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
