@@ -171,55 +171,7 @@ func testBatch() *acceptance.Batch {
 		{serial: "SN-1005\x07", file: "logs/SN-1005.csv", zeta: 0.55, wn: 5, keepTrace: true, unmeasured: metrics.SettlingTime},
 	}
 	for _, us := range units {
-		tr := secondOrder(us.zeta, us.wn, 0.002, 6, []float64{0.5, 3.5}, []float64{10, 0})
-		u := acceptance.UnitResult{
-			Unit: us.serial, File: us.file, SHA256: sha(us.file), Samples: tr.Len(),
-			Metadata: map[string]string{"rig": "EOL-3", "operator": "B. Tech"},
-			Verdict:  acceptance.Pass,
-		}
-		for k, st := range []struct{ at, from, to float64 }{{0.5, 0, 10}, {3.5, 10, 0}} {
-			m := closedFormMetrics(us.zeta, us.wn, st.from, st.to)
-			if us.unmeasured != "" && k == 1 {
-				m[us.unmeasured] = metrics.Unknown("the record ends before the response stays in the band")
-			}
-			lim := map[metrics.Name]spec.Limit{}
-			for name, l := range limits {
-				lim[name] = l
-			}
-			if st.to < st.from { // the down-step: final value limits apply to the up-step only
-				delete(lim, metrics.FinalValue)
-			}
-			checks, v, reasons := judge(lim, m)
-			s := acceptance.StepResult{
-				Index: k + 1, StartS: st.at, From: st.from, To: st.to, Verdict: v, Reasons: reasons,
-				Metrics: acceptance.MetricsOf(m), Checks: checks,
-			}
-			if st.to == 10 {
-				s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(predM)}
-				gaps := map[metrics.Name]*float64{}
-				for name, pv := range predM {
-					if mv := m[name]; mv.OK && pv.OK {
-						gaps[name] = ptr(mv.V - pv.V)
-					}
-				}
-				s.Gap = acceptance.GapsOf(gaps)
-			}
-			u.Steps = append(u.Steps, s)
-			u.Reasons = append(u.Reasons, reasons...)
-			if v == acceptance.Fail || (v == acceptance.Invalid && u.Verdict == acceptance.Pass) {
-				u.Verdict = v
-			}
-		}
-		if us.keepTrace {
-			u.Trace = tr
-		}
-		if us.zeta < 0.5 {
-			u.Fit = &acceptance.Fit{
-				Step: 1, StaticGain: metrics.Known(1), Damping: metrics.Known(us.zeta),
-				NaturalFrequency: metrics.Known(us.wn), DeadTime: metrics.Known(0), RMSResidual: metrics.Known(0.01),
-			}
-		}
-		b.Units = append(b.Units, u)
+		b.Units = append(b.Units, testUnit(us, limits, predM))
 	}
 	// An unreadable log: an invalid unit with no steps.
 	bad := acceptance.UnitResult{
@@ -227,18 +179,63 @@ func testBatch() *acceptance.Batch {
 		Reasons: []acceptance.Reason{{Kind: acceptance.Unreadable, Text: `log cannot be read: logs/SN-1004.csv:12:3: cannot read "1,2.3" as a number in column "position"; set log.decimal_comma: true if the rig writes decimal commas`}},
 	}
 	b.Units = append(b.Units[:3], append([]acceptance.UnitResult{bad}, b.Units[3:]...)...)
-	for _, u := range b.Units {
-		b.Summary.Units++
-		switch u.Verdict {
-		case acceptance.Pass:
-			b.Summary.Pass++
-		case acceptance.Fail:
-			b.Summary.Fail++
-		default:
-			b.Summary.Invalid++
+	b.Summary = acceptance.Count(b.Units)
+	return b
+}
+
+// testUnit is the unit us: an up-step and a down-step of its closed-form
+// loop, measured in closed form, judged against the limits (the final
+// value's on the up-step only), the up-step predicted by predM.
+func testUnit(us unitSpec, limits map[metrics.Name]spec.Limit, predM map[metrics.Name]metrics.Value) acceptance.UnitResult {
+	tr := secondOrder(us.zeta, us.wn, 0.002, 6, []float64{0.5, 3.5}, []float64{10, 0})
+	u := acceptance.UnitResult{
+		Unit: us.serial, File: us.file, SHA256: sha(us.file), Samples: tr.Len(),
+		Metadata: map[string]string{"rig": "EOL-3", "operator": "B. Tech"},
+		Verdict:  acceptance.Pass,
+	}
+	for k, st := range []struct{ at, from, to float64 }{{0.5, 0, 10}, {3.5, 10, 0}} {
+		m := closedFormMetrics(us.zeta, us.wn, st.from, st.to)
+		if us.unmeasured != "" && k == 1 {
+			m[us.unmeasured] = metrics.Unknown("the record ends before the response stays in the band")
+		}
+		lim := map[metrics.Name]spec.Limit{}
+		for name, l := range limits {
+			lim[name] = l
+		}
+		if st.to < st.from { // the down-step: final value limits apply to the up-step only
+			delete(lim, metrics.FinalValue)
+		}
+		checks, v, reasons := judge(lim, m)
+		s := acceptance.StepResult{
+			Index: k + 1, StartS: st.at, From: st.from, To: st.to, Verdict: v, Reasons: reasons,
+			Metrics: acceptance.MetricsOf(m), Checks: checks,
+		}
+		if st.to == 10 {
+			s.Predicted = &acceptance.Prediction{Kind: "ideal", Metrics: acceptance.MetricsOf(predM)}
+			gaps := map[metrics.Name]*float64{}
+			for name, pv := range predM {
+				if mv := m[name]; mv.OK && pv.OK {
+					gaps[name] = ptr(mv.V - pv.V)
+				}
+			}
+			s.Gap = acceptance.GapsOf(gaps)
+		}
+		u.Steps = append(u.Steps, s)
+		u.Reasons = append(u.Reasons, reasons...)
+		if v == acceptance.Fail || (v == acceptance.Invalid && u.Verdict == acceptance.Pass) {
+			u.Verdict = v
 		}
 	}
-	return b
+	if us.keepTrace {
+		u.Trace = tr
+	}
+	if us.zeta < 0.5 {
+		u.Fit = &acceptance.Fit{
+			Step: 1, StaticGain: metrics.Known(1), Damping: metrics.Known(us.zeta),
+			NaturalFrequency: metrics.Known(us.wn), DeadTime: metrics.Known(0), RMSResidual: metrics.Known(0.01),
+		}
+	}
+	return u
 }
 
 // writeBatch digests b and writes its PDF report to w.
