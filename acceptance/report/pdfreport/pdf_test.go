@@ -187,6 +187,14 @@ func TestWriteText(t *testing.T) {
 	if bytes.Contains(out, []byte(pdfString("SN-9999", false))) {
 		t.Errorf("found a serial that is not in the batch: the search proves nothing")
 	}
+	checkShownText(t, out)
+	checkHeadersAndInfo(t, out, b, id)
+}
+
+// checkShownText fails when a text shown on a page carries a control
+// character, or the serial with a BEL is not shown cleaned.
+func checkShownText(t *testing.T, out []byte) {
+	t.Helper()
 	// No text shown on a page carries a control character.
 	shown := textShown(out)
 	if len(shown) == 0 {
@@ -204,6 +212,12 @@ func TestWriteText(t *testing.T) {
 	if !cleaned {
 		t.Errorf("serial \"SN-1005\\x07\" not shown as \"SN-1005\"")
 	}
+}
+
+// checkHeadersAndInfo checks that the report id heads every page and that
+// the document information holds the report's identification.
+func checkHeadersAndInfo(t *testing.T, out []byte, b *acceptance.Batch, id string) {
+	t.Helper()
 	// Header on every page: the report id occurs once per page at least.
 	pages := len(pageObject.FindAll(out, -1))
 	if n := bytes.Count(out, []byte(pdfString("report "+id, false))); n < pages {
