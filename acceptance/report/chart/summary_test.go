@@ -164,8 +164,31 @@ func TestForUnitSteps(t *testing.T) {
 		math.Abs(p.T[0]-0.26) > 1e-9 || math.Abs(p.T[len(p.T)-1]-2.9) > 1e-9 {
 		t.Errorf("points: %d response from %v to %v, %d command", len(p.T), p.T[0], p.T[len(p.T)-1], len(p.Command))
 	}
-	// Reduced for a panel 87 × 68 mm on paper: at most four samples per
-	// half millimetre, the extremes kept, the command a single step.
+	checkReduced(t, p)
+	// The down-step has no matching prediction and its band centres on the
+	// command, its final value being unknown.
+	q := f.Panels[1]
+	if len(q.PredT) != 0 || math.Abs(q.BandLo+0.2) > 1e-9 {
+		t.Errorf("down-step: prediction %d points, band %v … %v", len(q.PredT), q.BandLo, q.BandHi)
+	}
+	checkFigureText(t, f)
+
+	// More steps than MaxPanels: the rest are counted, not drawn.
+	many := unitBatch(MaxPanels + 2)
+	if f := ForUnitSteps(many, 0, many.Units[0].Trace); len(f.Panels) != MaxPanels || f.NotDrawn != 2 {
+		t.Errorf("%d panels, %d not drawn; want %d and 2", len(f.Panels), f.NotDrawn, MaxPanels)
+	}
+	// Without a record there is nothing to draw.
+	if f := ForUnitSteps(unitBatch(2), 0, nil); len(f.Panels) != 0 || f.Steps != 2 {
+		t.Errorf("no record: %d panels, %d steps", len(f.Panels), f.Steps)
+	}
+}
+
+// checkReduced checks panel p reduced for 87 × 68 mm on paper: at most
+// four samples per half millimetre, the extremes kept, the command a single
+// step, the panel itself unchanged.
+func checkReduced(t *testing.T, p Panel) {
+	t.Helper()
 	r := p.Reduced(87, 68)
 	if n := len(r.T); n > 4*Buckets(87) || n < 10 || n != len(r.Response) {
 		t.Errorf("reduced response: %d times, %d values", n, len(r.Response))
@@ -185,12 +208,11 @@ func TestForUnitSteps(t *testing.T) {
 	if rmin, rmax := r.valueRange(); fmt.Sprint(rmin, rmax) != fmt.Sprint(p.valueRange()) {
 		t.Errorf("reduced value axis %v … %v", rmin, rmax)
 	}
-	// The down-step has no matching prediction and its band centres on the
-	// command, its final value being unknown.
-	q := f.Panels[1]
-	if len(q.PredT) != 0 || math.Abs(q.BandLo+0.2) > 1e-9 {
-		t.Errorf("down-step: prediction %d points, band %v … %v", len(q.PredT), q.BandLo, q.BandHi)
-	}
+}
+
+// checkFigureText checks the texts the figure's panels draw.
+func checkFigureText(t *testing.T, f *UnitFigure) {
+	t.Helper()
 	text := ""
 	for i := range f.Panels {
 		pl, err := f.Panels[i].Plot(f.ResponseUnit, f.PredictionKind)
@@ -203,15 +225,5 @@ func TestForUnitSteps(t *testing.T) {
 		if !strings.Contains(text, w) {
 			t.Errorf("unit figure lacks %q", w)
 		}
-	}
-
-	// More steps than MaxPanels: the rest are counted, not drawn.
-	many := unitBatch(MaxPanels + 2)
-	if f := ForUnitSteps(many, 0, many.Units[0].Trace); len(f.Panels) != MaxPanels || f.NotDrawn != 2 {
-		t.Errorf("%d panels, %d not drawn; want %d and 2", len(f.Panels), f.NotDrawn, MaxPanels)
-	}
-	// Without a record there is nothing to draw.
-	if f := ForUnitSteps(unitBatch(2), 0, nil); len(f.Panels) != 0 || f.Steps != 2 {
-		t.Errorf("no record: %d panels, %d steps", len(f.Panels), f.Steps)
 	}
 }
