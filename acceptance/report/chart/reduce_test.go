@@ -54,25 +54,32 @@ func checkSubsequence(tb testing.TB, t, y, ot, oy []float64) {
 	}
 }
 
-func TestEnvelope(t *testing.T) {
-	spiky := func(i int) float64 {
-		switch i {
-		case 537:
-			return 5 // a one-sample spike
-		case 800:
-			return -3 // a one-sample dip
-		}
-		return math.Sin(float64(i) / 50)
+// envelopeCase is a case of TestEnvelope.
+type envelopeCase struct {
+	name    string
+	t, y    []float64
+	buckets int
+	// want, when set, is the exact result as "times values".
+	want string
+	// same: the input is returned itself.
+	same bool
+}
+
+// spiky is a slow sine with a one-sample spike at 537 and a one-sample
+// dip at 800.
+func spiky(i int) float64 {
+	switch i {
+	case 537:
+		return 5 // a one-sample spike
+	case 800:
+		return -3 // a one-sample dip
 	}
-	tests := []struct {
-		name    string
-		t, y    []float64
-		buckets int
-		// want, when set, is the exact result as "times values".
-		want string
-		// same: the input is returned itself.
-		same bool
-	}{
+	return math.Sin(float64(i) / 50)
+}
+
+// envelopeCases are the cases of TestEnvelope.
+func envelopeCases() []envelopeCase {
+	tests := []envelopeCase{
 		{name: "empty", buckets: 3, same: true},
 		{name: "short enough", t: []float64{0, 1, 2}, y: []float64{0, 5, 1}, buckets: 1, same: true},
 		{name: "exactly four per bucket", t: []float64{0, 1, 2, 3, 4, 5, 6, 7}, y: []float64{0, 1, 2, 3, 4, 5, 6, 7}, buckets: 2, same: true},
@@ -125,7 +132,14 @@ func TestEnvelope(t *testing.T) {
 		{name: "spike and dip", buckets: 10},
 	}
 	tests[len(tests)-1].t, tests[len(tests)-1].y = series(1000, spiky)
-	for _, tc := range tests {
+	return tests
+}
+
+// TestEnvelope checks that a series is reduced to the first, lowest,
+// highest and last sample of each time bucket, in time order, and is
+// returned itself when it is short enough.
+func TestEnvelope(t *testing.T) {
+	for _, tc := range envelopeCases() {
 		t.Run(tc.name, func(t *testing.T) {
 			in := fmt.Sprint(tc.t, tc.y)
 			ot, oy := Envelope(tc.t, tc.y, tc.buckets)
