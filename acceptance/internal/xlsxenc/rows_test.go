@@ -55,7 +55,16 @@ func TestRowWriterRoundTrip(t *testing.T) {
 	if err := Pack(&out, frame(t), map[string]*Body{"Sheet1": body}); err != nil {
 		t.Fatal(err)
 	}
-	g, err := excelize.OpenReader(strings.NewReader(out.String()))
+	checkRoundTrip(t, out.String(), texts, nums, long)
+}
+
+// checkRoundTrip reads the package back with excelize and compares the
+// texts, numbers and long text written to Sheet1 in that order, each in
+// column A with its index or value in column B.
+func checkRoundTrip(t *testing.T, pkg string, texts []string, nums []float64, long string) {
+	t.Helper()
+	rows := len(texts) + len(nums) + 1
+	g, err := excelize.OpenReader(strings.NewReader(pkg))
 	if err != nil {
 		t.Fatal(err)
 	}
