@@ -163,20 +163,27 @@ func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 		m.Overshoot = MeasureOvershoot(m.PeakValue.V, y0, y1)
 	}
 
+	m.settle(t, y, s.To, halfWidth)
+	return m
+}
+
+// settle measures what the band around the final value gives: the settling
+// time, the steady-state error and the last sample outside the band; without
+// a final value, the last sample outside the band around the command to.
+func (m *StepMetrics) settle(t, y []float64, to, halfWidth float64) {
 	if !m.FinalValue.OK {
 		why := "final value unknown: " + m.FinalValue.Why
 		m.SettlingTime = Unknown(why)
 		m.SteadyStateError, m.SteadyStateErrorPct = Unknown(why), Unknown(why)
-		m.LastOutside = aboutCommand()
-		return m
+		m.LastOutside = MeasureLastOutside(t, y, to, halfWidth)
+		return
 	}
 	// One backward scan gives both the settling time and the last sample
 	// outside the band.
 	last := lastOutside(y, m.FinalValue.V, halfWidth)
 	m.SettlingTime = settlingTime(t, y, m.FinalValue.V, halfWidth, last)
-	m.SteadyStateError, m.SteadyStateErrorPct = MeasureSteadyStateError(s.To, m.FinalValue.V, size)
+	m.SteadyStateError, m.SteadyStateErrorPct = MeasureSteadyStateError(to, m.FinalValue.V, m.StepSize.V)
 	m.LastOutside = lastOutsideTime(t, last)
-	return m
 }
 
 // maxGapPeriods is how many median sample periods one interval between

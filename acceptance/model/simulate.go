@@ -207,43 +207,14 @@ func (s *System) simulateIdeal(from, to, dt float64, nPre int, tr metrics.Trace)
 
 func (s *System) simulateIdealDelayed(cl *closedLoop, x0 []float64, from, to, dt float64, nPre int, tr metrics.Trace) error {
 	c, p := cl.ctrl, cl.plant
-	nc, np, n := c.n, p.n, cl.n
-	theta := s.cfg.PlantDeadTime
-	duration := tr.Time[len(tr.Time)-1]
-	hmax := math.Min(math.Min(theta, dt), 0.001/s.fastestRate())
-	hmax = math.Max(hmax, duration/maxEvents*4)
-	nDiv := int(math.Ceil(theta/hmax - 1e-9))
-	// Prefer a grid that also lands on the output instants.
-	for k := nDiv; k <= 4*nDiv; k++ {
-		r := dt * float64(k) / theta
-		if math.Abs(r-math.Round(r)) < 1e-9*r {
-			nDiv = k
-			break
-		}
-	}
-	h := theta / float64(nDiv)
-	if duration/h > maxEvents {
-		return fmt.Errorf("ideal simulation with dead time %v s would need %.0f steps, more than %d", theta, duration/h, maxEvents)
+	nc, n := c.n, cl.n
+	h, nDiv, err := s.delayGrid(dt, tr.Time[len(tr.Time)-1])
+	if err != nil {
+		return err
 	}
 	// Augmented system z = [xc; xp; r; v; slope].
 	m := n + 3
-	aug := make([]float64, m*m)
-	for i := 0; i < nc; i++ {
-		row := aug[i*m : (i+1)*m]
-		copy(row[:nc], c.a[i*nc:(i+1)*nc])
-		for j := 0; j < np; j++ {
-			row[nc+j] = -c.b[i] * p.c[j]
-		}
-		row[n] = c.b[i]
-		row[n+1] = -c.b[i] * p.d
-	}
-	for i := 0; i < np; i++ {
-		row := aug[(nc+i)*m : (nc+i+1)*m]
-		copy(row[nc:n], p.a[i*np:(i+1)*np])
-		row[n+1] = p.b[i]
-	}
-	aug[(n+1)*m+n+2] = 1
-	prop := newPropagator(m, aug, h*1e-9)
+	prop := newPropagator(m, cl.delayedAugmented(), h*1e-9)
 	eh := prop.at(h)
 
 	u0 := dot(cl.ku, x0) + cl.kur*from
@@ -302,4 +273,54 @@ func (s *System) simulateIdealDelayed(cl *closedLoop, x0 []float64, from, to, dt
 		tr.Effort[i] = c.output(next[:nc], to-y)
 	}
 	return nil
+}
+
+// delayGrid picks the time step h of the ideal simulation with dead time:
+// a whole number nDiv of steps per dead time, at most the sample period and
+// fine against the fastest rate of the loop, and preferably one that also
+// lands on the output instants. It refuses a record that would need more
+// than maxEvents steps.
+func (s *System) delayGrid(dt, duration float64) (h float64, nDiv int, err error) {
+	theta := s.cfg.PlantDeadTime
+	hmax := math.Min(math.Min(theta, dt), 0.001/s.fastestRate())
+	hmax = math.Max(hmax, duration/maxEvents*4)
+	nDiv = int(math.Ceil(theta/hmax - 1e-9))
+	for k := nDiv; k <= 4*nDiv; k++ {
+		r := dt * float64(k) / theta
+		if math.Abs(r-math.Round(r)) < 1e-9*r {
+			nDiv = k
+			break
+		}
+	}
+	h = theta / float64(nDiv)
+	if duration/h > maxEvents {
+		return 0, 0, fmt.Errorf("ideal simulation with dead time %v s would need %.0f steps, more than %d", theta, duration/h, maxEvents)
+	}
+	return h, nDiv, nil
+}
+
+// delayedAugmented returns the state matrix of the loop augmented for a
+// delayed, piecewise-linear plant input: z = [xc; xp; r; v; slope], with the
+// reference r constant, v the delayed controller output and slope its rate.
+func (cl *closedLoop) delayedAugmented() []float64 {
+	c, p := cl.ctrl, cl.plant
+	nc, np, n := c.n, p.n, cl.n
+	m := n + 3
+	aug := make([]float64, m*m)
+	for i := 0; i < nc; i++ {
+		row := aug[i*m : (i+1)*m]
+		copy(row[:nc], c.a[i*nc:(i+1)*nc])
+		for j := 0; j < np; j++ {
+			row[nc+j] = -c.b[i] * p.c[j]
+		}
+		row[n] = c.b[i]
+		row[n+1] = -c.b[i] * p.d
+	}
+	for i := 0; i < np; i++ {
+		row := aug[(nc+i)*m : (nc+i+1)*m]
+		copy(row[nc:n], p.a[i*np:(i+1)*np])
+		row[n+1] = p.b[i]
+	}
+	aug[(n+1)*m+n+2] = 1
+	return aug
 }

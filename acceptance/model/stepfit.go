@@ -171,27 +171,7 @@ func (f *stepFit) reset(t, y []float64, nPre, nMove int, dy float64) {
 		}
 	}
 
-	// Bin boundaries as sample indices.
-	bnd := append(f.bnd[:0], 0)
-	if nPre > 0 {
-		bnd = append(bnd, nPre)
-	}
-	np := n - nPre
-	mu := (np + fitBins - 1) / fitBins
-	mf := min(mu, max(1, (2*nMove+fitBins-1)/fitBins))
-	nf := min(np, (nMove+mf-1)/mf*mf)
-	bf := nf / mf
-	mc := max(mf, (np-nf+max(fitBins-bf, 1)-1)/max(fitBins-bf, 1))
-	for k := nPre + mf; k <= nPre+nf; k += mf {
-		bnd = append(bnd, k)
-	}
-	for k := nPre + nf + mc; k < n; k += mc {
-		bnd = append(bnd, k)
-	}
-	if bnd[len(bnd)-1] != n {
-		bnd = append(bnd, n)
-	}
-
+	bnd := binBounds(f.bnd[:0], n, nPre, nMove)
 	f.bnd = bnd
 	nb := len(bnd) - 1
 	grow(&f.edge, nb+1)
@@ -200,19 +180,7 @@ func (f *stepFit) reset(t, y []float64, nPre, nMove int, dy float64) {
 		grow(b, nb)
 	}
 	f.step[0] = 0
-	// cell returns the left boundary of sample i's cell (i = n: the right
-	// boundary of the last).
-	cell := func(i int) float64 {
-		switch {
-		case f.uniform:
-			return t[0] + (float64(i)-0.5)*f.dt
-		case i == 0:
-			return t[0] - 0.5*(t[1]-t[0])
-		case i == n:
-			return t[n-1] + 0.5*(t[n-1]-t[n-2])
-		}
-		return 0.5 * (t[i-1] + t[i])
-	}
+	cell := f.cell
 	for j, k := range bnd {
 		f.edge[j] = cell(k)
 		if j > 0 {
@@ -249,6 +217,48 @@ func (f *stepFit) reset(t, y []float64, nPre, nMove int, dy float64) {
 	f.norm = 1 / (f.sw * dy * dy)
 }
 
+// binBounds appends to bnd the boundaries, as sample indices, of the bins
+// the fit compares: the pre-step samples as one bin, fine bins over the
+// move (nMove samples) and coarser ones after it, about fitBins in all.
+func binBounds(bnd []int, n, nPre, nMove int) []int {
+	bnd = append(bnd, 0)
+	if nPre > 0 {
+		bnd = append(bnd, nPre)
+	}
+	np := n - nPre
+	mu := (np + fitBins - 1) / fitBins
+	mf := min(mu, max(1, (2*nMove+fitBins-1)/fitBins))
+	nf := min(np, (nMove+mf-1)/mf*mf)
+	bf := nf / mf
+	mc := max(mf, (np-nf+max(fitBins-bf, 1)-1)/max(fitBins-bf, 1))
+	for k := nPre + mf; k <= nPre+nf; k += mf {
+		bnd = append(bnd, k)
+	}
+	for k := nPre + nf + mc; k < n; k += mc {
+		bnd = append(bnd, k)
+	}
+	if bnd[len(bnd)-1] != n {
+		bnd = append(bnd, n)
+	}
+	return bnd
+}
+
+// cell returns the left boundary of sample i's cell (i = n: the right
+// boundary of the last).
+func (f *stepFit) cell(i int) float64 {
+	t := f.t
+	n := len(t)
+	switch {
+	case f.uniform:
+		return t[0] + (float64(i)-0.5)*f.dt
+	case i == 0:
+		return t[0] - 0.5*(t[1]-t[0])
+	case i == n:
+		return t[n-1] + 0.5*(t[n-1]-t[n-2])
+	}
+	return 0.5 * (t[i-1] + t[i])
+}
+
 // eval returns the search's objective at (ζ, ωn, θ), the bins' mean square
 // residual over dy² with the initial level and the response change solved
 // for by weighted linear least squares, and its gradient in (θ, ln ωn, ζ).
@@ -259,7 +269,11 @@ func (f *stepFit) reset(t, y []float64, nPre, nMove int, dy float64) {
 // −2·c1·Σ w·r·∂x/∂p. The third result is the Gauss–Newton matrix in the
 // same coordinates, upper triangle by rows (θθ, θω, θζ, ωω, ωζ, ζζ). The
 // objective is +Inf when the model barely varies over the window.
-func (f *stepFit) eval(zeta, wn, th float64) (float64, [3]float64, [6]float64) {
+// binMeans fills, for (ζ, ωn, θ), each bin's mean of the model's unit step
+// response (f.x) and of its derivatives in θ, ln ωn and ζ (f.dth, f.dwn,
+// f.dze), integrating the response across the bin edges, and returns
+// their weighted means over the bins.
+func (f *stepFit) binMeans(zeta, wn, th float64) (xbar, mt, mw, mz float64) {
 	sigma, wn2 := zeta*wn, wn*wn
 	q := wn2 * (1 - zeta*zeta)
 	kz, kw, kq := 2*zeta/wn, 2/wn, 2*zeta*wn2
@@ -271,7 +285,7 @@ func (f *stepFit) eval(zeta, wn, th float64) (float64, [3]float64, [6]float64) {
 		st             kstep
 		started        bool
 		iP, tP, wP, zP float64 // I and its derivatives at the previous edge
-		sx, mt, mw, mz float64
+		sx             float64
 	)
 	for j, e := range edge {
 		var i, dt, dw, dz float64
@@ -303,8 +317,13 @@ func (f *stepFit) eval(zeta, wn, th float64) (float64, [3]float64, [6]float64) {
 		}
 		iP, tP, wP, zP = i, dt, dw, dz
 	}
-	xbar := sx / f.sw
-	mt, mw, mz = mt/f.sw, mw/f.sw, mz/f.sw
+	return sx / f.sw, mt / f.sw, mw / f.sw, mz / f.sw
+}
+
+func (f *stepFit) eval(zeta, wn, th float64) (float64, [3]float64, [6]float64) {
+	xbar, mt, mw, mz := f.binMeans(zeta, wn, th)
+	nb := len(f.w)
+	x, dth, dwn, dze, w := f.x[:nb], f.dth[:nb], f.dwn[:nb], f.dze[:nb], f.w[:nb]
 	// Centred sums, and the Gauss–Newton matrix of the projected residual
 	// (L. Kaufman, "A variable projection method for solving separable
 	// nonlinear least squares problems", BIT 15, 1975): 2·c1²·Σ w·d̃_p·d̃_q,

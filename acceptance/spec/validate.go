@@ -41,8 +41,41 @@ func (p *parser) validate() {
 	s := p.spec
 	p.requireText("spec_id", s.SpecID, "the spec's identifier, printed on every report page")
 	p.requireText("revision", s.Revision, "the spec's revision, printed on every report page")
+	p.validateSignals()
+	if !p.skip("time_unit") {
+		switch s.TimeUnit {
+		case "s", "ms", "us":
+		default:
+			p.problem("time_unit", valNode, "must be one of s, ms, us; got %q", s.TimeUnit)
+		}
+	}
+	p.validateLog()
+	if !p.skip("steps.min_change") {
+		if !p.present("steps.min_change") {
+			p.problem("steps.min_change", valNode, "required: the smallest command change that counts as a step, > 0, in response units")
+		} else if !(s.Steps.MinChange > 0) {
+			p.problem("steps.min_change", valNode, "must be > 0, got %s", formatFloat(s.Steps.MinChange))
+		}
+	}
+	p.validateLevels()
+	p.validateDecision()
+	p.validateLimits()
+	if logo := s.Report.Logo; logo != "" && !p.skip("report.logo") {
+		switch strings.ToLower(filepath.Ext(logo)) {
+		case ".png", ".jpg", ".jpeg":
+		default:
+			p.problem("report.logo", valNode, "must be a .png, .jpg or .jpeg file, got %q", logo)
+		}
+	}
+	if s.Model != nil && !p.skip("model") {
+		p.validateModel(s.Model)
+	}
+}
 
-	// Signals.
+// validateSignals checks the signals section: the three required column
+// names, an effort name that is not blank when given, and no name twice.
+func (p *parser) validateSignals() {
+	s := p.spec
 	sig := []struct{ key, val, what string }{
 		{"signals.time", s.Signals.Time, "the log column holding the time"},
 		{"signals.command", s.Signals.Command, "the log column holding the commanded position"},
@@ -65,39 +98,30 @@ func (p *parser) validate() {
 			}
 		}
 	}
+}
 
-	if !p.skip("time_unit") {
-		switch s.TimeUnit {
-		case "s", "ms", "us":
-		default:
-			p.problem("time_unit", valNode, "must be one of s, ms, us; got %q", s.TimeUnit)
-		}
+// validateLog checks the log section: a known delimiter, and decimal
+// commas only with a delimiter other than the comma.
+func (p *parser) validateLog() {
+	l := p.spec.Log
+	if p.skip("log.delimiter") {
+		return
 	}
-
-	// Log format.
-	if !p.skip("log.delimiter") {
-		switch s.Log.Delimiter {
-		case "auto", "comma", "semicolon", "tab":
-			if s.Log.DecimalComma && s.Log.Delimiter == "comma" && !p.skip("log.decimal_comma") {
-				p.problem("log.decimal_comma", valNode, "cannot be true with delimiter comma: the comma cannot both separate fields and mark decimals; use semicolon or tab")
-			}
-		default:
-			p.problem("log.delimiter", valNode, "must be one of auto, comma, semicolon, tab; got %q", s.Log.Delimiter)
+	switch l.Delimiter {
+	case "auto", "comma", "semicolon", "tab":
+		if l.DecimalComma && l.Delimiter == "comma" && !p.skip("log.decimal_comma") {
+			p.problem("log.decimal_comma", valNode, "cannot be true with delimiter comma: the comma cannot both separate fields and mark decimals; use semicolon or tab")
 		}
+	default:
+		p.problem("log.delimiter", valNode, "must be one of auto, comma, semicolon, tab; got %q", l.Delimiter)
 	}
+}
 
-	// Steps.
-	if !p.skip("steps.min_change") {
-		if !p.present("steps.min_change") {
-			p.problem("steps.min_change", valNode, "required: the smallest command change that counts as a step, > 0, in response units")
-		} else if !(s.Steps.MinChange > 0) {
-			p.problem("steps.min_change", valNode, "must be > 0, got %s", formatFloat(s.Steps.MinChange))
-		}
-	}
-
-	// Measurement levels.
+// validateLevels checks the measurement levels of the metrics section.
+func (p *parser) validateLevels() {
+	m := p.spec.Metrics
 	if !p.skip("metrics.rise_levels_pct") {
-		r := s.Metrics.RiseLevelsPct
+		r := m.RiseLevelsPct
 		switch {
 		case len(r) != 2:
 			p.problem("metrics.rise_levels_pct", valNode, "must be two numbers [low, high], got %d", len(r))
@@ -105,25 +129,9 @@ func (p *parser) validate() {
 			p.problem("metrics.rise_levels_pct", valNode, "must satisfy 0 < low < high < 100, got [%s, %s]", formatFloat(r[0]), formatFloat(r[1]))
 		}
 	}
-	p.openRange("metrics.settling_band_pct", s.Metrics.SettlingBandPct, 0, 100, false)
-	p.openRange("metrics.dead_time_level_pct", s.Metrics.DeadTimeLevelPct, 0, 50, false)
-	p.openRange("metrics.final_window_pct", s.Metrics.FinalWindowPct, 0, 100, true)
-
-	p.validateDecision()
-	p.validateLimits()
-
-	// Report.
-	if logo := s.Report.Logo; logo != "" && !p.skip("report.logo") {
-		switch strings.ToLower(filepath.Ext(logo)) {
-		case ".png", ".jpg", ".jpeg":
-		default:
-			p.problem("report.logo", valNode, "must be a .png, .jpg or .jpeg file, got %q", logo)
-		}
-	}
-
-	if s.Model != nil && !p.skip("model") {
-		p.validateModel(s.Model)
-	}
+	p.openRange("metrics.settling_band_pct", m.SettlingBandPct, 0, 100, false)
+	p.openRange("metrics.dead_time_level_pct", m.DeadTimeLevelPct, 0, 50, false)
+	p.openRange("metrics.final_window_pct", m.FinalWindowPct, 0, 100, true)
 }
 
 // requireText checks a required, non-blank text key.
