@@ -84,21 +84,44 @@ func (u *unknownReasons) encode() (any, error) {
 func stepValues(st Step) (cols []any, unknown any, others []metricRow, err error) {
 	cols = make([]any, 3*len(stepMetrics))
 	var why unknownReasons
-	for _, r := range mergeMetrics(st) {
-		i, ok := stepMetricIndex[r.name]
-		if !ok {
-			others = append(others, r)
-			continue
-		}
-		for k, sl := range r.vals {
+	var rest Step // the metrics without columns
+	lists := [3][]Metric{st.Metrics, nil, st.Gaps}
+	if st.Predicted != nil {
+		lists[1] = st.Predicted.Metrics
+		rest.Predicted = &Prediction{Kind: st.Predicted.Kind}
+	}
+	for k, list := range lists {
+		for _, m := range list {
+			i, ok := stepMetricIndex[m.Name]
+			if !ok {
+				rest.addTo(k, m)
+				continue
+			}
+			sl := slot{m: m, ok: true}
 			cols[3*i+k] = sl.value()
 			if reason, ok := sl.reason().(string); ok {
-				why.set(k, r.name, reason)
+				why.set(k, m.Name, reason)
 			}
 		}
 	}
+	if len(rest.Metrics)+len(rest.Gaps) > 0 || (rest.Predicted != nil && len(rest.Predicted.Metrics) > 0) {
+		others = mergeMetrics(rest)
+	}
 	unknown, err = why.encode()
 	return cols, unknown, others, err
+}
+
+// addTo appends m to the step's measured (k = 0), predicted (1) or gap (2)
+// metrics.
+func (st *Step) addTo(k int, m Metric) {
+	switch k {
+	case 0:
+		st.Metrics = append(st.Metrics, m)
+	case 1:
+		st.Predicted.Metrics = append(st.Predicted.Metrics, m)
+	default:
+		st.Gaps = append(st.Gaps, m)
+	}
 }
 
 // placeColumns puts a step row's metric columns into the step's lists. cols

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"slices"
 )
 
 // RecordRun records a run, the spec its units were judged under, and its
@@ -133,12 +134,10 @@ func validateStep(st Step) error {
 		lists = append(lists, st.Predicted.Metrics)
 	}
 	for _, list := range lists {
-		seen := map[string]bool{}
-		for _, m := range list {
-			if m.Name == "" || seen[m.Name] {
+		for i, m := range list {
+			if m.Name == "" || slices.ContainsFunc(list[:i], func(o Metric) bool { return o.Name == m.Name }) {
 				return fmt.Errorf("metric name %q is empty or repeated", m.Name)
 			}
-			seen[m.Name] = true
 			if !m.Value.Valid && m.Reason == "" {
 				return fmt.Errorf("metric %s has no value and no reason", m.Name)
 			}
