@@ -137,3 +137,35 @@ func TestBusyRetry(t *testing.T) {
 		}
 	})
 }
+
+// Stations starting together on a new record migrate it once.
+func TestConcurrentOpen(t *testing.T) {
+	eachBackend(t, func(t *testing.T, b backend) {
+		dsn := b.fresh(t)
+		const n = 4
+		var wg sync.WaitGroup
+		errs := make(chan error, n)
+		for range n {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				s, err := Open(context.Background(), dsn)
+				if err != nil {
+					errs <- err
+					return
+				}
+				s.Close()
+			}()
+		}
+		wg.Wait()
+		close(errs)
+		for err := range errs {
+			t.Errorf("concurrent Open: %v", err)
+		}
+		s := open(t, dsn)
+		var rows int
+		if err := s.db.QueryRow("SELECT COUNT(*) FROM schema_version").Scan(&rows); err != nil || rows != len(migrations) {
+			t.Errorf("schema_version has %d rows (%v), want %d", rows, err, len(migrations))
+		}
+	})
+}
