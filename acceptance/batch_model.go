@@ -37,6 +37,10 @@ type Batch struct {
 	// carries one.
 	TestDates DateRange `json:"test_dates"`
 
+	// Run is how the batch was asked for: the spec's path and the options
+	// that change the reports; nil for a batch not made by the command line.
+	Run *RunInfo `json:"-"`
+
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *spec.Spec `json:"-"`
 	// MaxPages caps the units with a detail page; 0 means no cap (see
@@ -69,6 +73,34 @@ func (b *Batch) UnitTrace(i int) *metrics.Trace {
 	tr, _ := b.Records.UnitTrace(u)
 	return tr
 }
+
+// RunInfo records how a run was asked for, so that a reader of its
+// results can run it again: the spec's path, the inputs and the options
+// that change what the reports hold. Options that change only how fast a
+// run goes (workers) are left out.
+type RunInfo struct {
+	// SpecPath is the spec's path as given; SpecResolved the same file as
+	// an absolute path with symbolic links resolved.
+	SpecPath, SpecResolved string
+	// Inputs are the log files and directories as given, in order.
+	Inputs []string
+	// ReportDate is the report date given as an option, or "" when the
+	// date was found otherwise; ReportDateFrom says where the batch's date
+	// came from (see the ReportDateFrom constants).
+	ReportDate, ReportDateFrom string
+	// AllUnits gives every unit a detail page; MaxUnitPages caps the units
+	// with a page, 0 meaning no cap.
+	AllUnits     bool
+	MaxUnitPages int
+}
+
+// Where a batch's report date came from (RunInfo.ReportDateFrom).
+const (
+	DateFromOption     = "option"            // --report-date
+	DateFromSourceDate = "SOURCE_DATE_EPOCH" // the environment variable
+	DateFromTests      = "test dates"        // the newest started_at in the logs
+	DateFromFiles      = "file dates"        // the newest modification time of the logs
+)
 
 // DateRange is the first and last date (YYYY-MM-DD) of a set of tests.
 type DateRange struct {

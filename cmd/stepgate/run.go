@@ -202,6 +202,16 @@ func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*accepta
 	if err != nil {
 		return nil, nil, tm, err
 	}
+	from := acceptance.DateFromTests
+	switch {
+	case o.ReportDate != "":
+		from = acceptance.DateFromOption
+	case in.date != "":
+		from = acceptance.DateFromSourceDate
+	case b.ReportDate == "":
+		from = acceptance.DateFromFiles
+	}
+	b.Run = runInfo(o, from)
 	if b.ReportDate == "" {
 		// No flag, no SOURCE_DATE_EPOCH and no test date in any log: the
 		// files themselves date the test.
@@ -212,6 +222,22 @@ func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*accepta
 	}
 	tm.judged = time.Since(tm.started)
 	return b, recs, tm, nil
+}
+
+// runInfo is what results.json records of how the run was asked for; the
+// report date came from where from says.
+func runInfo(o runOptions, from string) *acceptance.RunInfo {
+	resolved, err := filepath.Abs(o.Spec)
+	if err == nil {
+		if r, err := filepath.EvalSymlinks(resolved); err == nil {
+			resolved = r
+		}
+	}
+	return &acceptance.RunInfo{
+		SpecPath: o.Spec, SpecResolved: resolved, Inputs: o.Paths,
+		ReportDate: o.ReportDate, ReportDateFrom: from,
+		AllUnits: o.AllUnits, MaxUnitPages: o.MaxUnitPages,
+	}
 }
 
 // printOutcome prints the verdict table and the reports written on stdout,

@@ -41,3 +41,54 @@ func TestAppendFloatMatchesEncodingJSON(t *testing.T) {
 		check((rng.Float64() - 0.5) * math.Pow(10, float64(rng.IntN(60)-30)))
 	}
 }
+
+// Round keeps the given significant digits and drops binary noise; the
+// expected values are the decimal arithmetic of the inputs, worked by hand.
+func TestRound(t *testing.T) {
+	cases := []struct {
+		v    float64
+		sig  int
+		want string
+	}{
+		{0.1 + 0.187, 12, "0.287"},                 // 0.28700000000000003
+		{0.1 + 0.2, 12, "0.3"},                     // 0.30000000000000004
+		{1.0 / 3, 12, "0.333333333333"},            //
+		{2.0 / 3, 12, "0.666666666667"},            // round half up in the 12th digit
+		{123456789.125, 12, "123456789.125"},       // exactly 12 digits
+		{1234567890123.5, 12, "1234567890120"},     // integer part beyond 12 digits
+		{-9.8999999999999995e-05, 12, "-0.000099"}, // negative, below 1e-4
+		{1e-7 * 3, 12, "3e-7"},                     //
+		{5e-324, 12, "5e-324"},                     // the smallest subnormal stays
+		{math.MaxFloat64, 12, "1.79769313486e+308"},
+		{25, 12, "25"},
+		{0.287, 3, "0.287"},
+		{0.28751, 3, "0.288"}, // (0.2875 is 0.28749999… in binary: 0.287)
+	}
+	for _, c := range cases {
+		got := string(AppendFloat(nil, Round(c.v, c.sig)))
+		if got != c.want {
+			t.Errorf("Round(%v, %d) written as %s, want %s", c.v, c.sig, got, c.want)
+		}
+	}
+	for _, v := range []float64{0, math.Copysign(0, -1), math.Inf(1), math.Inf(-1)} {
+		if r := Round(v, 12); r != v || math.Signbit(r) != math.Signbit(v) {
+			t.Errorf("Round(%v) = %v, want it unchanged", v, r)
+		}
+	}
+	if !math.IsNaN(Round(math.NaN(), 12)) {
+		t.Error("Round(NaN) is a number")
+	}
+	// Rounding twice changes nothing: what results.json holds reads back to
+	// the same bytes.
+	rng := rand.New(rand.NewPCG(3, 4))
+	for range 10000 {
+		v := (rng.Float64() - 0.5) * math.Pow(10, float64(rng.IntN(40)-20))
+		r := Round(v, Digits)
+		if Round(r, Digits) != r {
+			t.Fatalf("Round is not idempotent at %v", v)
+		}
+		if len(AppendFloat(nil, math.Abs(r))) > Digits+8 { // digits, point, exponent
+			t.Fatalf("%v rounded is written %s", v, AppendFloat(nil, r))
+		}
+	}
+}

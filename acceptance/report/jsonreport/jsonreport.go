@@ -21,13 +21,18 @@ func Write(w io.Writer, d *digest.Digest) error {
 	if d == nil || d.Batch == nil {
 		return fmt.Errorf("results.json: no batch to report")
 	}
-	return writeBatch(w, d.Batch)
+	return writeBatch(w, d.Batch, d.ID)
 }
 
-// writeBatch streams b to w through a buffer.
-func writeBatch(w io.Writer, b *acceptance.Batch) error {
+// SchemaVersion is the version of the results.json contract written under
+// "schema_version". Keys are added without raising it; it is raised only
+// if a key ever changes its meaning.
+const SchemaVersion = 1
+
+// writeBatch streams b, whose report id is id, to w through a buffer.
+func writeBatch(w io.Writer, b *acceptance.Batch, id string) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
-	if err := write(bw, b); err != nil {
+	if err := write(bw, b, id); err != nil {
 		return fmt.Errorf("results.json: %w", err)
 	}
 	if err := bw.Flush(); err != nil {
@@ -38,7 +43,7 @@ func writeBatch(w io.Writer, b *acceptance.Batch) error {
 
 // write writes the document's members in their defined order, flushing the
 // encoder's buffer to w after each part.
-func write(w *bufio.Writer, b *acceptance.Batch) error {
+func write(w *bufio.Writer, b *acceptance.Batch, id string) error {
 	e := &encoder{}
 	e.B = make([]byte, 0, 16<<10)
 	flush := func(what string) error {
@@ -49,7 +54,7 @@ func write(w *bufio.Writer, b *acceptance.Batch) error {
 		e.B = e.B[:0]
 		return err
 	}
-	e.head(b)
+	e.head(b, id)
 	if err := flush("the batch"); err != nil {
 		return err
 	}
@@ -61,10 +66,15 @@ func write(w *bufio.Writer, b *acceptance.Batch) error {
 	return flush("the batch")
 }
 
-// head appends the members before the units: the tool, the spec and the
-// counts.
-func (e *encoder) head(b *acceptance.Batch) {
-	e.Open(1, `"tool": `)
+// head appends the members before the units: the contract's version, the
+// report id, the tool, the spec, the run's options, the metrics' units and
+// the counts.
+func (e *encoder) head(b *acceptance.Batch, id string) {
+	e.Open(1, `"schema_version": `)
+	e.Int(SchemaVersion)
+	e.Member(1, `"report_id": `)
+	e.Str(id)
+	e.Member(1, `"tool": `)
 	e.Open(2, `"name": `)
 	e.Str(b.Tool.Name)
 	e.Member(2, `"version": `)
@@ -79,7 +89,12 @@ func (e *encoder) head(b *acceptance.Batch) {
 	e.Str(b.Spec.SHA256)
 	e.Member(2, `"title": `)
 	e.Str(b.Spec.Title)
+	e.specPaths(b.Run)
 	e.Close(1, '}')
+	e.Member(1, `"run": `)
+	e.run(1, b.Run)
+	e.Member(1, `"metric_units": `)
+	e.metricUnits(1, digest.ResponseUnit(b))
 	e.Member(1, `"summary": `)
 	e.Open(2, `"units": `)
 	e.Int(b.Summary.Units)
@@ -140,6 +155,64 @@ func (e *encoder) tail(b *acceptance.Batch) {
 	e.Member(2, `"last": `)
 	e.Str(b.TestDates.Last)
 	e.Close(1, '}')
+}
+
+// specPaths appends the spec's path as given and resolved, members of the
+// spec object; null without run information.
+func (e *encoder) specPaths(r *acceptance.RunInfo) {
+	e.Member(2, `"path": `)
+	if r == nil {
+		e.Null()
+		e.Member(2, `"resolved_path": `)
+		e.Null()
+		return
+	}
+	e.Str(r.SpecPath)
+	e.Member(2, `"resolved_path": `)
+	e.Str(r.SpecResolved)
+}
+
+// run appends the options the run was asked with; null without them.
+func (e *encoder) run(d int, r *acceptance.RunInfo) {
+	if r == nil {
+		e.Null()
+		return
+	}
+	n := d + 1
+	e.Open(n, `"inputs": `)
+	e.Strings(n, r.Inputs)
+	e.Member(n, `"report_date": `)
+	if r.ReportDate == "" {
+		e.Null()
+	} else {
+		e.Str(r.ReportDate)
+	}
+	e.Member(n, `"report_date_from": `)
+	e.Str(r.ReportDateFrom)
+	e.Member(n, `"all_units": `)
+	e.Bool(r.AllUnits)
+	e.Member(n, `"max_unit_pages": `)
+	e.Int(r.MaxUnitPages)
+	e.Close(d, '}')
+}
+
+// metricUnits appends the unit of every metric, in key order: "s", "%" or
+// the spec's response unit; null where the spec names no response unit.
+func (e *encoder) metricUnits(d int, responseUnit string) {
+	e.B = append(e.B, '{')
+	for k := range metricKeys {
+		if k > 0 {
+			e.B = append(e.B, ',')
+		}
+		e.NL(d + 1)
+		e.B = append(e.B, metricKeys[k].member...)
+		if u := metricKeys[k].name.Unit(responseUnit); u != "" {
+			e.Str(u)
+		} else {
+			e.Null()
+		}
+	}
+	e.Close(d, '}')
 }
 
 // limits appends the spec's limits by metric name in key order; null when

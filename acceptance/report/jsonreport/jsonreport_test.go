@@ -6,6 +6,7 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -33,6 +34,11 @@ func TestWriteMatchesReference(t *testing.T) {
 		{"no units", acceptance.Batch{Units: []acceptance.UnitResult{}, Limits: map[metrics.Name]spec.Limit{}}},
 		{"nil units", acceptance.Batch{}},
 		{"one unit", acceptance.Batch{Units: []acceptance.UnitResult{unit("A1")}, ReportDate: "2026-12-01"}},
+		{"run options", acceptance.Batch{Units: []acceptance.UnitResult{unit("A1")}, ReportDate: "2026-12-01",
+			SpecDoc: &spec.Spec{ResponseUnit: "mm"},
+			Run: &acceptance.RunInfo{SpecPath: "specs/<vd25>.yaml", SpecResolved: "/line/specs/<vd25>.yaml", Inputs: []string{"logs", "a b.csv"},
+				ReportDate: "2026-12-01", ReportDateFrom: acceptance.DateFromOption, AllUnits: true, MaxUnitPages: 0}}},
+		{"run without inputs", acceptance.Batch{Run: &acceptance.RunInfo{ReportDateFrom: acceptance.DateFromTests, MaxUnitPages: 200}}},
 		{"three units and a model", acceptance.Batch{
 			Tool: acceptance.ToolInfo{Name: "stepgate", Version: "t"}, Units: []acceptance.UnitResult{unit("A1"), unit("A2"), unit("=1+1")},
 			Model: &acceptance.ModelSummary{Plant: "1 / s", Warnings: []string{"w"}}, Limits: map[metrics.Name]spec.Limit{"overshoot_pct": {Max: &limit}},
@@ -44,7 +50,7 @@ func TestWriteMatchesReference(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var got bytes.Buffer
-			if err := writeBatch(&got, &c.b); err != nil {
+			if err := writeBatch(&got, &c.b, digest.ReportID(&c.b)); err != nil {
 				t.Fatal(err)
 			}
 			if want := referenceJSON(t, &c.b); !bytes.Equal(got.Bytes(), want) {
@@ -76,5 +82,31 @@ func fullModel() *acceptance.ModelSummary {
 			{Target: "damping", Value: 1, Why: "no real solution <&>"},
 		},
 		Warnings: []string{"w1", ""},
+	}
+}
+
+// Numbers are written with at most jsonfmt.Digits significant digits: the
+// binary noise of float64 arithmetic (0.1 + 0.187 = 0.28700000000000003)
+// never reaches the file; the decimal values are worked by hand.
+func TestWriteRoundsNumbers(t *testing.T) {
+	lim := 0.1 + 0.2
+	b := &acceptance.Batch{Units: []acceptance.UnitResult{{Unit: "A1", Steps: []acceptance.StepResult{{
+		Index: 1, StartS: 0.1 + 0.187, To: 25.000000000000004,
+		Metrics: acceptance.MetricsOf(map[metrics.Name]metrics.Value{"rise_time_s": metrics.Known(1.0 / 3)}),
+		Checks:  []acceptance.Check{{Metric: "rise_time_s", Max: &lim}},
+	}}}}}
+	var got bytes.Buffer
+	if err := writeBatch(&got, b, "id"); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`"start_s": 0.287,`, `"to": 25,`, `"rise_time_s": 0.333333333333,`, `"max": 0.3,`} {
+		if !bytes.Contains(got.Bytes(), []byte(want)) {
+			t.Errorf("results.json lacks %s", want)
+		}
+	}
+	for _, noise := range []string{"0.28700000000000003", "25.000000000000004", "0.30000000000000004"} {
+		if bytes.Contains(got.Bytes(), []byte(noise)) {
+			t.Errorf("results.json holds %s", noise)
+		}
 	}
 }

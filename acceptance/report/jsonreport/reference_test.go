@@ -2,9 +2,12 @@ package jsonreport
 
 import (
 	"encoding/json"
+	"reflect"
 	"testing"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/internal/jsonfmt"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
 )
 
@@ -14,15 +17,19 @@ import (
 // product's types carry no JSON definition of their own.
 
 type refBatch struct {
-	Tool       refTool             `json:"tool"`
-	Spec       refSpec             `json:"spec"`
-	Summary    refSummary          `json:"summary"`
-	Units      []refUnit           `json:"units"`
-	Model      *refModel           `json:"model,omitempty"`
-	Limits     map[string]refLimit `json:"limits"`
-	ReportDate string              `json:"report_date"`
-	Notice     string              `json:"notice"`
-	TestDates  refDates            `json:"test_dates"`
+	SchemaVersion int                 `json:"schema_version"`
+	ReportID      string              `json:"report_id"`
+	Tool          refTool             `json:"tool"`
+	Spec          refSpec             `json:"spec"`
+	Run           *refRun             `json:"run"`
+	MetricUnits   map[string]*string  `json:"metric_units"`
+	Summary       refSummary          `json:"summary"`
+	Units         []refUnit           `json:"units"`
+	Model         *refModel           `json:"model,omitempty"`
+	Limits        map[string]refLimit `json:"limits"`
+	ReportDate    string              `json:"report_date"`
+	Notice        string              `json:"notice"`
+	TestDates     refDates            `json:"test_dates"`
 }
 
 type refTool struct {
@@ -31,10 +38,20 @@ type refTool struct {
 }
 
 type refSpec struct {
-	SpecID   string `json:"spec_id"`
-	Revision string `json:"revision"`
-	SHA256   string `json:"sha256"`
-	Title    string `json:"title"`
+	SpecID   string  `json:"spec_id"`
+	Revision string  `json:"revision"`
+	SHA256   string  `json:"sha256"`
+	Title    string  `json:"title"`
+	Path     *string `json:"path"`
+	Resolved *string `json:"resolved_path"`
+}
+
+type refRun struct {
+	Inputs         []string `json:"inputs"`
+	ReportDate     *string  `json:"report_date"`
+	ReportDateFrom string   `json:"report_date_from"`
+	AllUnits       bool     `json:"all_units"`
+	MaxUnitPages   int      `json:"max_unit_pages"`
 }
 
 type refSummary struct {
@@ -168,7 +185,9 @@ type refDesign struct {
 // types, plus the newline Write ends with.
 func referenceJSON(t testing.TB, b *acceptance.Batch) []byte {
 	t.Helper()
-	want, err := json.MarshalIndent(refOf(b), "", "  ")
+	r := refOf(b)
+	roundFloats(reflect.ValueOf(r))
+	want, err := json.MarshalIndent(r, "", "  ")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -177,11 +196,26 @@ func referenceJSON(t testing.TB, b *acceptance.Batch) []byte {
 
 func refOf(b *acceptance.Batch) *refBatch {
 	r := &refBatch{
+		SchemaVersion: 1, ReportID: digest.ReportID(b), MetricUnits: map[string]*string{},
 		Tool:       refTool{b.Tool.Name, b.Tool.Version},
-		Spec:       refSpec{b.Spec.SpecID, b.Spec.Revision, b.Spec.SHA256, b.Spec.Title},
+		Spec:       refSpec{SpecID: b.Spec.SpecID, Revision: b.Spec.Revision, SHA256: b.Spec.SHA256, Title: b.Spec.Title},
 		Summary:    refSummary{b.Summary.Units, b.Summary.Pass, b.Summary.Fail, b.Summary.Invalid},
 		ReportDate: b.ReportDate, Notice: b.Notice,
 		TestDates: refDates{b.TestDates.First, b.TestDates.Last},
+	}
+	for _, n := range metrics.Names {
+		if u := n.Unit(digest.ResponseUnit(b)); u != "" {
+			r.MetricUnits[string(n)] = &u
+		} else {
+			r.MetricUnits[string(n)] = nil
+		}
+	}
+	if ri := b.Run; ri != nil {
+		r.Spec.Path, r.Spec.Resolved = &ri.SpecPath, &ri.SpecResolved
+		r.Run = &refRun{Inputs: ri.Inputs, ReportDateFrom: ri.ReportDateFrom, AllUnits: ri.AllUnits, MaxUnitPages: ri.MaxUnitPages}
+		if ri.ReportDate != "" {
+			r.Run.ReportDate = &ri.ReportDate
+		}
 	}
 	if b.Units != nil {
 		r.Units = make([]refUnit, len(b.Units))
@@ -319,4 +353,53 @@ func refReasons(rs []acceptance.Reason) []string {
 		out[i] = r.Text
 	}
 	return out
+}
+
+// roundFloats rounds every float64 reachable from v in place to the
+// significant digits results.json keeps (jsonfmt.Round): the reference's
+// statement of the precision the encoder writes.
+func roundFloats(v reflect.Value) {
+	switch v.Kind() {
+	case reflect.Float64:
+		if v.CanSet() {
+			v.SetFloat(jsonfmt.Round(v.Float(), jsonfmt.Digits))
+		}
+	case reflect.Pointer:
+		if !v.IsNil() {
+			if v.Elem().Kind() == reflect.Float64 {
+				// A pointer may share its target with the batch: round a copy.
+				x := jsonfmt.Round(v.Elem().Float(), jsonfmt.Digits)
+				if v.CanSet() {
+					v.Set(reflect.ValueOf(&x))
+				}
+				return
+			}
+			roundFloats(v.Elem())
+		}
+	case reflect.Slice:
+		if v.Len() > 0 && v.Type().Elem().Kind() == reflect.Float64 {
+			// A slice may share its array with the batch: round a copy.
+			c := reflect.MakeSlice(v.Type(), v.Len(), v.Len())
+			reflect.Copy(c, v)
+			for i := range c.Len() {
+				roundFloats(c.Index(i))
+			}
+			v.Set(c)
+			return
+		}
+		for i := range v.Len() {
+			roundFloats(v.Index(i))
+		}
+	case reflect.Map:
+		for it := v.MapRange(); it.Next(); {
+			e := reflect.New(it.Value().Type()).Elem()
+			e.Set(it.Value())
+			roundFloats(e)
+			v.SetMapIndex(it.Key(), e)
+		}
+	case reflect.Struct:
+		for i := range v.NumField() {
+			roundFloats(v.Field(i))
+		}
+	}
 }

@@ -15,6 +15,25 @@ type encoder struct {
 	jsonfmt.Indented
 }
 
+// Float appends v rounded to jsonfmt.Digits significant digits: every
+// number in results.json is written at that precision (see jsonfmt.Round).
+func (e *encoder) Float(v float64) { e.Indented.Float(jsonfmt.Round(v, jsonfmt.Digits)) }
+
+// FloatPtr appends *p rounded as Float does, or null when p is nil.
+func (e *encoder) FloatPtr(p *float64) {
+	if p == nil {
+		e.Null()
+		return
+	}
+	e.Float(*p)
+}
+
+// Floats appends s as an array of numbers rounded as Float does; null when
+// nil.
+func (e *encoder) Floats(d int, s []float64) {
+	e.Array(d, s == nil, len(s), func(i int) { e.Float(s[i]) })
+}
+
 // metricKeys are the metric names in byte order, the order of the keys of
 // every metric object, each with its member prefix ready to append.
 var metricKeys = func() []metricKey {

@@ -17,6 +17,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance/batch"
 	"github.com/stepgate/stepgate/acceptance/demo"
 	"github.com/stepgate/stepgate/acceptance/logs"
+	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -26,7 +27,7 @@ import (
 func checkSameBytes(t *testing.T, b *acceptance.Batch) {
 	t.Helper()
 	var got bytes.Buffer
-	if err := writeBatch(&got, b); err != nil {
+	if err := writeBatch(&got, b, digest.ReportID(b)); err != nil {
 		t.Fatal(err)
 	}
 	want := referenceJSON(t, b)
@@ -420,7 +421,7 @@ func TestWriteNonFinite(t *testing.T) {
 			if werr == nil {
 				t.Fatal("MarshalIndent accepted a number that is not finite")
 			}
-			err := writeBatch(io.Discard, b)
+			err := writeBatch(io.Discard, b, "id")
 			if err == nil {
 				t.Fatal("Write accepted a number that is not finite")
 			}
@@ -451,7 +452,7 @@ func BenchmarkWrite(b *testing.B) {
 		f    func(io.Writer, *acceptance.Batch) error
 	}{
 		{"reference", func(w io.Writer, b *acceptance.Batch) error { return json.NewEncoder(w).Encode(refOf(b)) }},
-		{"encoder", writeBatch},
+		{"encoder", func(w io.Writer, b *acceptance.Batch) error { return writeBatch(w, b, "id") }},
 	} {
 		b.Run(c.name, func(b *testing.B) {
 			var n countingWriter
