@@ -13,10 +13,11 @@ import (
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
 )
 
 // Title is the title every report page and the workbook carry.
-const Title = "Step-response acceptance report"
+var Title = templates.MustPhrase("report-title")
 
 // Digest is everything the reports show about one batch beyond its units'
 // own rows. Make one with New.

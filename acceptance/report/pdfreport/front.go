@@ -133,7 +133,7 @@ func (r *report) pareto() error {
 	y := p.GetY()
 	r.drawPlot(pl, marginL, y, contentW, h)
 	p.SetXY(marginL, y+h+0.5)
-	note := "Red: a limit exceeded; orange: the data could not show pass or fail. A unit counts once under each reason it shows."
+	note := textCausesKey
 	if n := len(causes) - bars; n > 0 {
 		note += fmt.Sprintf(" %d less frequent reasons are not drawn; the workbook lists them all.", n)
 	}
@@ -195,8 +195,7 @@ func (r *report) statsTable() {
 		})
 	}
 	r.table(cols, rows)
-	legend := "n: steps on which the metric was measured. sd: sample standard deviation (n − 1). gap: mean of measured − predicted over the steps with a prediction. " +
-		"Capability indices after ISO 22514-2 and the AIAG SPC manual: Cpk for two-sided limits, Cpu for a maximum only, Cpl for a minimum only; see the method page."
+	legend := textStatsKey
 	if flagged {
 		legend += " * indicative only, n < 30."
 	}

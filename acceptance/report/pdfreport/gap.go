@@ -20,7 +20,7 @@ func (r *report) gapSection() error {
 	p.AddPage()
 	if m == nil {
 		r.heading("Likely causes: indications, not proof", 20)
-		r.para("The spec has no model section, so nothing was predicted; the notes below rest on the records alone.", 9, 4.6, black)
+		r.para(textNoModel, 9, 4.6, black)
 		r.causes(false)
 		return nil
 	}
@@ -70,7 +70,7 @@ func (r *report) comparisonTable() {
 	cmp := r.d.Comparisons
 	r.subheading("Predicted against achieved", 6+lineH*3)
 	if len(cmp) == 0 {
-		r.para("The model predicted no nominal step, or the spec limits no metric.", 9, 4.6, black)
+		r.para(textNoComparison, 9, 4.6, black)
 		return
 	}
 	cols := []column{
@@ -143,7 +143,7 @@ func (r *report) loopTable() {
 		foot = append(foot, "Model, fitted: "+l.FitWhy+".")
 	}
 	if l.DeadTime.Model.OK {
-		foot = append(foot, "The model's dead time is the plant dead time plus, for a realised loop, the loop delay and half a sample period (a zero-order hold acts roughly as a delay of half a sample period).")
+		foot = append(foot, textModelDeadTime)
 	}
 	if len(foot) > 0 {
 		r.para(strings.Join(foot, " "), 8, 4.2, grey)

@@ -32,7 +32,7 @@ func (r *report) histograms() error {
 			}
 			r.heading(title, histH)
 			if i == 0 {
-				r.para("Bars: steps per class of the measured value. Red dashed: the limit; black: the model's predicted value; grey dotted: the batch mean.", 8.5, 4.3, grey)
+				r.para(textHistogramKey, 8.5, 4.3, grey)
 				p.Ln(1)
 			}
 		}

@@ -1,8 +1,9 @@
 package pdfreport
 
 import (
-	"github.com/stepgate/stepgate/acceptance/spec"
 	"strings"
+
+	"github.com/stepgate/stepgate/acceptance/spec"
 
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 )
@@ -21,7 +22,7 @@ func (r *report) method() {
 	}
 	r.para("Each log is read as a record of time, command, response and, when present, drive effort. Every command change of at least "+change+
 		" starts a step, measured up to the next step or the end of the record. "+
-		"Each metric below is measured on every step; a metric that cannot be measured is reported as not measured, with the reason, and never as 0.", 9, 4.6, black)
+		textMeasuredHow, 9, 4.6, black)
 	p.Ln(1)
 	cols := []column{
 		{title: "metric", width: 34, align: "L", wrap: 3},

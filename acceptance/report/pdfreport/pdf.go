@@ -16,6 +16,7 @@ import (
 	"github.com/stepgate/stepgate/acceptance/internal/pdfenc"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
 )
 
 // Options choose what the PDF report contains.
@@ -29,11 +30,11 @@ type Options struct {
 }
 
 // ReportTitle is the title printed on every page.
-const ReportTitle = digest.Title
+var ReportTitle = digest.Title
 
 // EndMark is the line that closes the last page, so that the end of the
 // report is clear (ISO/IEC 17025:2017 §7.8.2.1).
-const EndMark = "End of report"
+var EndMark = templates.MustPhrase("end-mark")
 
 // Write writes the PDF report of a digested batch to w. The unit pages draw
 // the records traces gives; a nil store draws none. The same digest,

@@ -40,7 +40,7 @@ func (r *report) drawOverlay(o *chart.Overlay, h float64) error {
 	if len(o.Curves) == 0 {
 		r.ensure(12)
 		p.Ln(2)
-		r.para("No step response can be drawn: no record of a step was kept for this report.", 10, 5, invalidText)
+		r.para(textNoOverlay, 10, 5, invalidText)
 		return nil
 	}
 	r.ensure(h + 2)
@@ -331,12 +331,12 @@ func (r *report) unitFigure(i int, fig *unitFig) error {
 	}
 	if len(f.Panels) == 0 {
 		r.subheading("Record", 8)
-		msg := "No chart: the record of this unit was not kept for the report."
+		msg := textNoChartKept
 		switch {
 		case len(u.Steps) == 0 && u.Trace == nil && u.Samples == 0:
-			msg = "No chart: no record could be read from this file, so there is no trace to draw. The reasons above say where reading stopped."
+			msg = textNoChartUnread
 		case len(u.Steps) == 0:
-			msg = "No chart: the record has no step to draw."
+			msg = textNoChartSteps
 		case fig.readErr != nil:
 			msg = "No chart: the record could not be read again: " + fig.readErr.Error() + "."
 		case len(f.Skipped) > 0:

@@ -134,7 +134,7 @@ func summaryIdentification(w *sheetWriter, d *digest.Digest) {
 	w.pair("tool", b.Tool.Name, 0)
 	w.pair("tool version", b.Tool.Version, 0)
 	w.text("decision rule", digest.DecisionRule, w.st.wrap)
-	w.text("note", digest.Phrase("results-relate")+" An empty metric cell means the metric could not be measured; the Units and Checks sheets give the reason.", w.st.wrap)
+	w.text("note", digest.Phrase("results-relate")+" "+digest.Phrase("xlsx-empty-cell"), w.st.wrap)
 }
 
 // summaryResult writes the counts by verdict and the yield.
