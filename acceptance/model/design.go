@@ -251,22 +251,18 @@ func (s *System) rootFindGain(kind Kind, pct float64, hasOS bool, from, to float
 	if !hasOS {
 		return nil, fmt.Errorf("%s loop: a target without overshoot (damping ≥ 1) cannot be aimed at by root finding on the overshoot; it is designed in closed form only, for P control of a second-order plant without zeros or dead time", kind)
 	}
-	// above reports whether kp overshoots at least pct, counting an unstable
-	// or non-settling loop as above.
-	type point struct {
-		kp, os float64
-		ok     bool // os measured
-	}
-	eval := func(kp float64) (point, bool, error) {
+	// eval reports whether kp overshoots at least pct, counting an
+	// unstable or non-settling loop as above.
+	eval := func(kp float64) (gainPoint, bool, error) {
 		os, err := s.WithGain(kp).overshoot(kind, from, to)
 		var ue *UnstableError
 		switch {
 		case err == nil:
-			return point{kp, os, true}, os >= pct, nil
+			return gainPoint{kp, os, true}, os >= pct, nil
 		case errors.As(err, &ue), errors.Is(err, errNotSettled):
-			return point{kp: kp}, true, nil
+			return gainPoint{kp: kp}, true, nil
 		}
-		return point{}, false, err
+		return gainPoint{}, false, err
 	}
 	k0 := s.Kp()
 	if !(k0 > 0) {
@@ -276,30 +272,9 @@ func (s *System) rootFindGain(kind Kind, pct float64, hasOS bool, from, to float
 	if err != nil {
 		return nil, err
 	}
-	lo, hi := p0, p0
-	found := false
-	for i := 0; i < designScanSteps && !found; i++ {
-		if up0 {
-			p, up, err := eval(lo.kp / designScanFactor)
-			if err != nil {
-				return nil, err
-			}
-			if !up {
-				lo, found = p, true
-			} else {
-				hi, lo = p, p
-			}
-		} else {
-			p, up, err := eval(hi.kp * designScanFactor)
-			if err != nil {
-				return nil, err
-			}
-			if up {
-				hi, found = p, true
-			} else {
-				lo, hi = p, p
-			}
-		}
+	lo, hi, found, err := bracketGain(eval, p0, up0)
+	if err != nil {
+		return nil, err
 	}
 	if !found {
 		if up0 {
@@ -328,4 +303,42 @@ func (s *System) rootFindGain(kind Kind, pct float64, hasOS bool, from, to float
 	}
 	return &GainDesign{Kind: kind, Kp: best.kp, OvershootPct: metrics.Known(best.os),
 		Method: "bisection on the overshoot of the simulated step, measured by the metrics package"}, nil
+}
+
+// gainPoint is one gain tried by rootFindGain and its overshoot.
+type gainPoint struct {
+	kp, os float64
+	ok     bool // os measured
+}
+
+// bracketGain scans the gain by designScanFactor from p0, down when p0
+// overshoots the target (up0) and up when it does not, until a gain on the
+// other side brackets the target between lo and hi; found is false when
+// designScanSteps steps do not reach one.
+func bracketGain(eval func(kp float64) (gainPoint, bool, error), p0 gainPoint, up0 bool) (lo, hi gainPoint, found bool, err error) {
+	lo, hi = p0, p0
+	for i := 0; i < designScanSteps && !found; i++ {
+		if up0 {
+			p, up, err := eval(lo.kp / designScanFactor)
+			if err != nil {
+				return lo, hi, false, err
+			}
+			if !up {
+				lo, found = p, true
+			} else {
+				hi, lo = p, p
+			}
+		} else {
+			p, up, err := eval(hi.kp * designScanFactor)
+			if err != nil {
+				return lo, hi, false, err
+			}
+			if up {
+				hi, found = p, true
+			} else {
+				lo, hi = p, p
+			}
+		}
+	}
+	return lo, hi, found, nil
 }

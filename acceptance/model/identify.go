@@ -116,25 +116,9 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 	tPost := ts[nPre:]
 	dur := tPost[len(tPost)-1]
 
-	finalWin := post[len(post)-max(len(post)/5, 6):]
-	fl, _ := metrics.StateLevel(finalWin)
-	var y0, noise float64
-	if nPre >= 3 {
-		il, _ := metrics.StateLevel(ys[:nPre])
-		y0, noise = il.Value, il.Spread
-	} else {
-		y0, noise = post[0], fl.Spread
-	}
-	dy := fl.Value - y0
-	if !(math.Abs(dy) > identNoiseRatio*noise) || dy == 0 {
-		return fail("the response changes by %s, not clearly above its noise (robust σ %s; %d σ needed)", fmtNum(dy), fmtNum(noise), identNoiseRatio)
-	}
-	if dy*dr < 0 {
-		return fail("the response moves against the command (by %s for a command change of %s)", fmtNum(dy), fmtNum(dr))
-	}
-	if fl.Drift > identBand*math.Abs(dy)+3*noise {
-		return fail("the response is still moving at the end of the record (the last %d samples drift by %s, %s %% of the change)",
-			len(finalWin), fmtNum(fl.Drift), fmtNum(100*fl.Drift/math.Abs(dy)))
+	y0, dy, noise, why := identLevels(ys[:nPre], post, dr)
+	if why != "" {
+		return fail("%s", why)
 	}
 
 	zeta0, wn0, th0 := identStart(tPost, post, y0, dy, noise, grow(&fit.xs, len(post)))
@@ -148,17 +132,8 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 	if math.IsInf(rms, 0) {
 		return fail("least-squares fit failed: the fitted model is constant over the record")
 	}
-	if rms > identMaxResidual*math.Abs(c1) {
-		return fail("the second-order model does not fit: RMS residual %s is %s %% of the response change (at most %s %%)",
-			fmtNum(rms), fmtNum(100*rms/math.Abs(c1)), fmtNum(100*identMaxResidual))
-	}
-	if ls := lastOutsideBand(zeta, wn, dur-th); th+ls > identSettledBy*dur {
-		if th+ls >= dur {
-			return fail("the fitted response is still outside its %s %% band at the end of the %s s record: the record ends too soon",
-				fmtNum(100*identBand), fmtNum(dur))
-		}
-		return fail("the fitted response settles into its %s %% band only %s s after the step, beyond %s %% of the %s s record: the record ends too soon",
-			fmtNum(100*identBand), fmtNum(th+ls), fmtNum(100*identSettledBy), fmtNum(dur))
+	if why := fitProblem(rms, c1, zeta, wn, th, dur); why != "" {
+		return fail("%s", why)
 	}
 	g := c1 / dr
 	return Identified{
@@ -166,6 +141,54 @@ func Identify(tr metrics.Trace, st metrics.Step, gain float64) (Identified, erro
 		InitialValue: c0, RMSResidual: rms, Samples: len(ys),
 		Reference: ReferenceTest{Gain: gain, StaticGain: g, Damping: zeta, NaturalFrequency: wn},
 	}, nil
+}
+
+// identLevels finds the levels a fit starts from: the initial level and
+// the noise from the pre-step samples pre (at least 3, else the first
+// post-step sample and the final window's spread), and the change dy to
+// the final level of post. why says why the record cannot be fitted: a
+// change not clearly above the noise, a response that moves against the
+// command change dr, or one still moving at the end.
+func identLevels(pre, post []float64, dr float64) (y0, dy, noise float64, why string) {
+	finalWin := post[len(post)-max(len(post)/5, 6):]
+	fl, _ := metrics.StateLevel(finalWin)
+	if len(pre) >= 3 {
+		il, _ := metrics.StateLevel(pre)
+		y0, noise = il.Value, il.Spread
+	} else {
+		y0, noise = post[0], fl.Spread
+	}
+	dy = fl.Value - y0
+	switch {
+	case !(math.Abs(dy) > identNoiseRatio*noise) || dy == 0:
+		why = fmt.Sprintf("the response changes by %s, not clearly above its noise (robust σ %s; %d σ needed)", fmtNum(dy), fmtNum(noise), identNoiseRatio)
+	case dy*dr < 0:
+		why = fmt.Sprintf("the response moves against the command (by %s for a command change of %s)", fmtNum(dy), fmtNum(dr))
+	case fl.Drift > identBand*math.Abs(dy)+3*noise:
+		why = fmt.Sprintf("the response is still moving at the end of the record (the last %d samples drift by %s, %s %% of the change)",
+			len(finalWin), fmtNum(fl.Drift), fmtNum(100*fl.Drift/math.Abs(dy)))
+	}
+	return y0, dy, noise, why
+}
+
+// fitProblem says why a converged fit is not accepted: a residual rms
+// too large against the fitted change c1, or a fitted response (ζ, ωn, θ)
+// that settles too late in a record of dur seconds; "" when it is.
+func fitProblem(rms, c1, zeta, wn, th, dur float64) string {
+	if rms > identMaxResidual*math.Abs(c1) {
+		return fmt.Sprintf("the second-order model does not fit: RMS residual %s is %s %% of the response change (at most %s %%)",
+			fmtNum(rms), fmtNum(100*rms/math.Abs(c1)), fmtNum(100*identMaxResidual))
+	}
+	ls := lastOutsideBand(zeta, wn, dur-th)
+	switch {
+	case th+ls <= identSettledBy*dur:
+		return ""
+	case th+ls >= dur:
+		return fmt.Sprintf("the fitted response is still outside its %s %% band at the end of the %s s record: the record ends too soon",
+			fmtNum(100*identBand), fmtNum(dur))
+	}
+	return fmt.Sprintf("the fitted response settles into its %s %% band only %s s after the step, beyond %s %% of the %s s record: the record ends too soon",
+		fmtNum(100*identBand), fmtNum(th+ls), fmtNum(100*identSettledBy), fmtNum(dur))
 }
 
 // unitStep2 is the unit-step response of ωn²/(s² + 2ζωn s + ωn²) at t

@@ -240,8 +240,7 @@ func (s *System) simulateRealised(from, to, dt float64, nPre int, tr metrics.Tra
 	if err != nil {
 		return err
 	}
-	c, p := cl.ctrl, cl.plant
-	nc, np := c.n, p.n
+	p, nc := cl.plant, cl.ctrl.n
 	duration := tr.Time[len(tr.Time)-1]
 	if ev := duration/r.ts*2 + float64(len(tr.Time)); ev > maxEvents {
 		return fmt.Errorf("realised simulation of %v s at sample period %v s needs %.0f events, more than %d", duration, r.ts, ev, maxEvents)
@@ -250,9 +249,21 @@ func (s *System) simulateRealised(from, to, dt float64, nPre int, tr metrics.Tra
 	xp := append([]float64(nil), x0[nc:]...)
 	u0 := dot(cl.ku, x0) + cl.kur*from
 	v := r.drive(u0)
-	veff := r.motion(v)
-	fillPre(tr, nPre, p.output(xp, veff), v)
+	fillPre(tr, nPre, p.output(xp, r.motion(v)), v)
+	return s.runRealised(cl, &r, xc, xp, v, from, to, dt, nPre, tr)
+}
 
+// runRealised steps the realised loop from the state (xc, xp) and the
+// drive output v at the step instant through three kinds of event in time
+// order: the controller's samples every r.ts, the arrival of each sampled
+// output at the drive r.delay later, and the record's output instants,
+// where it writes the response and the effort of tr from sample nPre on.
+// The plant moves between events under a held input.
+func (s *System) runRealised(cl *closedLoop, r *realisation, xc, xp []float64, v, from, to, dt float64, nPre int, tr metrics.Trace) error {
+	c, p := cl.ctrl, cl.plant
+	nc, np := c.n, p.n
+	duration := tr.Time[len(tr.Time)-1]
+	veff := r.motion(v)
 	m := np + 1
 	prop := newPropagator(m, zohBlock(p), 1e-9*math.Min(r.ts, dt))
 	z := make([]float64, m)

@@ -30,9 +30,9 @@ type Spec struct {
 	// ResponseResolution is the resolution of the response signal (the
 	// encoder count) in response units; 0 when the spec leaves it out
 	// and the count is found in each log.
-	ResponseResolution float64 `yaml:"response_resolution"`
-	Model        *model.Config          `yaml:"model"`
-	Report       ReportInfo             `yaml:"report"`
+	ResponseResolution float64       `yaml:"response_resolution"`
+	Model              *model.Config `yaml:"model"`
+	Report             ReportInfo    `yaml:"report"`
 
 	// Source is the file the spec was read from; SHA256 the hex digest of its
 	// bytes. Set by Load, not read from YAML.
