@@ -33,6 +33,9 @@ func verdictStep(over map[metrics.Name]metrics.Value, lastOutside metrics.Value)
 		SettlingTime:        metrics.Known(0.3),
 		SteadyStateError:    metrics.Known(0.01),
 		SteadyStateErrorPct: metrics.Known(0.1),
+		MoveTime:            metrics.Known(0),
+		SettlingAfterMove:   metrics.Known(0.3),
+		MaxFollowingError:   metrics.Known(10),
 		LastOutside:         lastOutside,
 		Duration:            0.499,
 	}

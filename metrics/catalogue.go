@@ -19,6 +19,9 @@ const (
 	SettlingTime        Name = "settling_time_s"
 	SteadyStateError    Name = "steady_state_error"
 	SteadyStateErrorPct Name = "steady_state_error_pct"
+	MoveTime            Name = "move_time_s"
+	SettlingAfterMove   Name = "settling_after_move_s"
+	MaxFollowingError   Name = "max_following_error"
 )
 
 // UnitKind says what a metric's values are expressed in.
@@ -28,7 +31,7 @@ type UnitKind uint8
 const (
 	// ResponseUnit values are levels or errors in the spec's response unit.
 	ResponseUnit UnitKind = iota
-	// Seconds values are times from the step instant.
+	// Seconds values are times from the step instant, or durations.
 	Seconds
 	// Percent values are percentages of the step size or the transition.
 	Percent
@@ -59,6 +62,12 @@ type Metric struct {
 	// Method says in words how MeasureUncertainty evaluates the metric's
 	// standard uncertainty, with the clause it follows.
 	Method string
+	// Move is true for a metric that describes a profiled move (a command
+	// travelling over several samples): on an ideal step it only repeats
+	// what other metrics say (a move time of 0, the settling time, an error
+	// of about the step size), so reports list it for batches that have
+	// moves or limit it.
+	Move bool
 
 	field func(*StepMetrics) *Value // the StepMetrics field holding it
 }
@@ -66,17 +75,20 @@ type Metric struct {
 // catalogue is the one table of metrics, in report order. A new metric is
 // one row here, its field in StepMetrics and the function that measures it.
 var catalogue = [...]Metric{
-	{StepSize, "step size", ResponseUnit, false, "none: the commanded change is set, not measured (u = 0)", func(m *StepMetrics) *Value { return &m.StepSize }},
-	{InitialValue, "initial value", ResponseUnit, false, "GUM §4.2.3: σ/√N over the pre-step window (σ from second differences), with the resolution q/√12 where the noise does not dither the encoder (GUM F.2.2.1)", func(m *StepMetrics) *Value { return &m.InitialValue }},
-	{FinalValue, "final value", ResponseUnit, false, "GUM §4.2.3: σ/√N over the final window (σ from second differences), with the resolution q/√12 where the noise does not dither the encoder (GUM F.2.2.1)", func(m *StepMetrics) *Value { return &m.FinalValue }},
-	{DeadTime, "dead time", Seconds, true, "GUM §5.1.2 through the crossing slope, as IEC 62754:2017 does for reference-level instants: level, sample noise and interpolation; Monte Carlo (JCGM 101:2008) where the noise spans more than a quarter of a sample's rise", func(m *StepMetrics) *Value { return &m.DeadTime }},
-	{RiseTime, "rise time", Seconds, true, "GUM §5.1.2 through both crossing slopes, the shared state levels correlated (IEC 62754:2017); Monte Carlo (JCGM 101:2008) where the noise spans more than a quarter of a sample's rise", func(m *StepMetrics) *Value { return &m.RiseTime }},
-	{PeakValue, "peak value", ResponseUnit, false, "Monte Carlo on the trace (JCGM 101:2008), with the sampled peak's shortfall |ÿ|Δt²/8 taken as rectangular (GUM §4.3.7)", func(m *StepMetrics) *Value { return &m.PeakValue }},
-	{PeakTime, "peak time", Seconds, true, "Monte Carlo on the trace (JCGM 101:2008), with the sample period Δt/√12 (GUM F.2.2.1)", func(m *StepMetrics) *Value { return &m.PeakTime }},
-	{Overshoot, "overshoot", Percent, true, "Monte Carlo on the trace and the state levels (JCGM 101:2008), with the sampled peak's shortfall (GUM §4.3.7)", func(m *StepMetrics) *Value { return &m.Overshoot }},
-	{SettlingTime, "settling time", Seconds, true, "Monte Carlo on the trace and the band's centre (JCGM 101:2008), with the interpolation of the last exit (GUM §4.3.7)", func(m *StepMetrics) *Value { return &m.SettlingTime }},
-	{SteadyStateError, "steady-state error", ResponseUnit, true, "GUM §5.1.2: that of the final value (the command is exact)", func(m *StepMetrics) *Value { return &m.SteadyStateError }},
-	{SteadyStateErrorPct, "steady-state error (rel.)", Percent, true, "GUM §5.1.2: that of the final value over the step size", func(m *StepMetrics) *Value { return &m.SteadyStateErrorPct }},
+	{StepSize, "step size", ResponseUnit, false, "none: the commanded change is set, not measured (u = 0)", false, func(m *StepMetrics) *Value { return &m.StepSize }},
+	{InitialValue, "initial value", ResponseUnit, false, "GUM §4.2.3: σ/√N over the pre-step window (σ from second differences), with the resolution q/√12 where the noise does not dither the encoder (GUM F.2.2.1)", false, func(m *StepMetrics) *Value { return &m.InitialValue }},
+	{FinalValue, "final value", ResponseUnit, false, "GUM §4.2.3: σ/√N over the final window (σ from second differences), with the resolution q/√12 where the noise does not dither the encoder (GUM F.2.2.1)", false, func(m *StepMetrics) *Value { return &m.FinalValue }},
+	{DeadTime, "dead time", Seconds, true, "GUM §5.1.2 through the crossing slope, as IEC 62754:2017 does for reference-level instants: level, sample noise and interpolation; Monte Carlo (JCGM 101:2008) where the noise spans more than a quarter of a sample's rise", false, func(m *StepMetrics) *Value { return &m.DeadTime }},
+	{RiseTime, "rise time", Seconds, true, "GUM §5.1.2 through both crossing slopes, the shared state levels correlated (IEC 62754:2017); Monte Carlo (JCGM 101:2008) where the noise spans more than a quarter of a sample's rise", false, func(m *StepMetrics) *Value { return &m.RiseTime }},
+	{PeakValue, "peak value", ResponseUnit, false, "Monte Carlo on the trace (JCGM 101:2008), with the sampled peak's shortfall |ÿ|Δt²/8 taken as rectangular (GUM §4.3.7)", false, func(m *StepMetrics) *Value { return &m.PeakValue }},
+	{PeakTime, "peak time", Seconds, true, "Monte Carlo on the trace (JCGM 101:2008), with the sample period Δt/√12 (GUM F.2.2.1)", false, func(m *StepMetrics) *Value { return &m.PeakTime }},
+	{Overshoot, "overshoot", Percent, true, "Monte Carlo on the trace and the state levels (JCGM 101:2008), with the sampled peak's shortfall (GUM §4.3.7)", false, func(m *StepMetrics) *Value { return &m.Overshoot }},
+	{SettlingTime, "settling time", Seconds, true, "Monte Carlo on the trace and the band's centre (JCGM 101:2008), with the interpolation of the last exit (GUM §4.3.7)", false, func(m *StepMetrics) *Value { return &m.SettlingTime }},
+	{SteadyStateError, "steady-state error", ResponseUnit, true, "GUM §5.1.2: that of the final value (the command is exact)", false, func(m *StepMetrics) *Value { return &m.SteadyStateError }},
+	{SteadyStateErrorPct, "steady-state error (rel.)", Percent, true, "GUM §5.1.2: that of the final value over the step size", false, func(m *StepMetrics) *Value { return &m.SteadyStateErrorPct }},
+	{MoveTime, "move time", Seconds, true, "none: the move's start and end are samples of the command, which is set, not measured (u = 0)", true, func(m *StepMetrics) *Value { return &m.MoveTime }},
+	{SettlingAfterMove, "settling after move end", Seconds, true, "GUM §5.1.2: that of the settling time (the move time is exact)", true, func(m *StepMetrics) *Value { return &m.SettlingAfterMove }},
+	{MaxFollowingError, "max. following error", ResponseUnit, true, "GUM §5.1.2: the amplitude uncertainty of the one sample that sets the largest error, the larger of its noise and the resolution q/√12 (GUM F.2.2.1); the command is exact", true, func(m *StepMetrics) *Value { return &m.MaxFollowingError }},
 }
 
 // NumNames is the number of metrics, len(Names).

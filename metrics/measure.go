@@ -8,18 +8,21 @@ type Options struct {
 	DeadTimeLevel float64 // departure level that ends the dead time, fraction of the transition (0.02)
 	FinalWindow   float64 // fraction of the step's record, at its end, used for the final value (0.2)
 	MinSamples    int     // fewest samples a step needs to be measured at all (10)
+	// SteadyTime is how long, in seconds, the command must hold its value
+	// for a move to end (FindMoves); Measure segments with it (0.05).
+	SteadyTime float64
 }
 
 // DefaultOptions returns the levels stepgate uses when a spec sets none.
 func DefaultOptions() Options {
-	return Options{RiseLow: 0.10, RiseHigh: 0.90, Band: 0.02, DeadTimeLevel: 0.02, FinalWindow: 0.2, MinSamples: 10}
+	return Options{RiseLow: 0.10, RiseHigh: 0.90, Band: 0.02, DeadTimeLevel: 0.02, FinalWindow: 0.2, MinSamples: 10, SteadyTime: DefaultSteadyTime}
 }
 
 // StepMetrics holds every metric of one step, each measured or unknown with a
 // reason.
 type StepMetrics struct {
 	Step  Step
-	Start float64 // time of the step instant, seconds on the record's clock
+	Start float64 // time of the step instant (the move start), seconds on the record's clock
 
 	StepSize            Value
 	InitialValue        Value
@@ -32,6 +35,9 @@ type StepMetrics struct {
 	SettlingTime        Value
 	SteadyStateError    Value
 	SteadyStateErrorPct Value
+	MoveTime            Value // duration of the commanded move; 0 for an ideal step
+	SettlingAfterMove   Value // settling time measured from the end of the commanded move
+	MaxFollowingError   Value // largest |command − response| during the commanded move
 
 	// LastOutside is the time after the step instant of the last sample
 	// outside the settling band, centred on the final value or, when that is

@@ -29,11 +29,11 @@ const (
 // the band centre the band that the settling time is judged against.
 const steadyFraction = 0.5
 
-// Measure finds the steps of tr (FindSteps with minChange) and measures each
-// with MeasureStep. tr must pass Validate. It returns nil when the record
+// Measure finds the steps of tr (FindMoves with minChange and
+// o.SteadyTime) and measures each with MeasureStep. tr must pass Validate. It returns nil when the record
 // has no step.
 func Measure(tr Trace, minChange float64, o Options) []StepMetrics {
-	steps := FindSteps(tr, minChange)
+	steps := FindMoves(tr, minChange, o.SteadyTime)
 	if len(steps) == 0 {
 		return nil
 	}
@@ -71,6 +71,17 @@ func Measure(tr Trace, minChange float64, o Options) []StepMetrics {
 //   - SteadyStateError(Pct): |To − FinalValue| (MeasureSteadyStateError).
 //   - LastOutside: MeasureLastOutside around FinalValue, or around To when
 //     FinalValue is unknown; known whenever the step has samples.
+//   - MoveTime: t[MoveEnd] − t[Start], 0 for an ideal step
+//     (MeasureMoveTime); MaxFollowingError: the largest |command −
+//     response| from Start to MoveEnd (MeasureMaxFollowingError). Both are
+//     unknown for an Unfinished move.
+//   - SettlingAfterMove: SettlingTime − MoveTime, at least 0
+//     (MeasureSettlingAfterMove).
+//
+// Times are from the move start for a profiled move, as for a step: dead
+// time, peak time and settling time count from the first command change;
+// rise time, overshoot, the final value and the steady-state error are
+// defined as for a step.
 //
 // A step whose record has a gap, an interval between samples (from the last
 // one before the step instant on) longer than 10 times the median sample
@@ -100,7 +111,7 @@ var scratchPool = sync.Pool{New: func() any { return new([]float64) }}
 func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 	m := StepMetrics{Step: s, StepSize: Known(s.Size())}
 	n := min(len(tr.Time), len(tr.Command), len(tr.Response))
-	if s.PreStart < 0 || s.PreStart > s.Start || s.Start >= s.End || s.End > n {
+	if s.PreStart < 0 || s.PreStart > s.Start || s.Start >= s.End || s.End > n || s.moveEnd() >= s.End {
 		m.setAll(fmt.Sprintf("step %d spans samples %d..%d (pre-step from %d), which do not fit a record of %d samples",
 			s.Index, s.Start, s.End-1, s.PreStart, n))
 		m.LastOutside = Unknown("step has no samples in the record")
@@ -163,6 +174,10 @@ func measureStep(tr Trace, s Step, o Options, buf *[]float64) StepMetrics {
 		m.Overshoot = MeasureOvershoot(m.PeakValue.V, y0, y1)
 	}
 
+	end := s.moveEnd()
+	m.MoveTime = MeasureMoveTime(tr.Time[:s.End], s.Start, end, s.Unfinished, o.SteadyTime)
+	m.MaxFollowingError = MeasureMaxFollowingError(tr.Time[:s.End], tr.Command, tr.Response, s.Start, end, s.Unfinished, o.SteadyTime)
+
 	m.settle(t, y, s.To, halfWidth)
 	return m
 }
@@ -174,6 +189,7 @@ func (m *StepMetrics) settle(t, y []float64, to, halfWidth float64) {
 	if !m.FinalValue.OK {
 		why := "final value unknown: " + m.FinalValue.Why
 		m.SettlingTime = Unknown(why)
+		m.SettlingAfterMove = MeasureSettlingAfterMove(m.SettlingTime, m.MoveTime)
 		m.SteadyStateError, m.SteadyStateErrorPct = Unknown(why), Unknown(why)
 		m.LastOutside = MeasureLastOutside(t, y, to, halfWidth)
 		return
@@ -182,6 +198,7 @@ func (m *StepMetrics) settle(t, y []float64, to, halfWidth float64) {
 	// outside the band.
 	last := lastOutside(y, m.FinalValue.V, halfWidth)
 	m.SettlingTime = settlingTime(t, y, m.FinalValue.V, halfWidth, last)
+	m.SettlingAfterMove = MeasureSettlingAfterMove(m.SettlingTime, m.MoveTime)
 	m.SteadyStateError, m.SteadyStateErrorPct = MeasureSteadyStateError(to, m.FinalValue.V, m.StepSize.V)
 	m.LastOutside = lastOutsideTime(t, last)
 }

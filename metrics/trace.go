@@ -43,18 +43,37 @@ func (t *Trace) validated() bool {
 // Len returns the number of samples.
 func (t Trace) Len() int { return len(t.Time) }
 
-// Step is one command change found in a trace. Samples Start..End-1 belong to
-// the step; Start is the first sample at the new command (the step instant).
-// PreStart is the first sample of the window before the step that the
-// initial value is measured from (the previous step's start, or 0).
+// Step is one command change found in a trace: an ideal step, where the
+// command jumps in one sample, or a profiled move (ramp, trapezoid,
+// S-curve), where it travels over several samples (see FindMoves). Samples
+// Start..End-1 belong to the step; Start is the first sample at which the
+// command has left its level (the step instant, or the move start), and
+// MoveEnd the first sample from which it holds its new value (the end of
+// the commanded move; Start for an ideal step). PreStart is the first
+// sample of the window before the step that the initial value is measured
+// from (the previous step's MoveEnd, or 0).
+//
+// A Step built by hand with MoveEnd at or before Start is an ideal step.
 type Step struct {
 	Index    int     // 1-based position of the step in the record
 	PreStart int     // first sample of the pre-step window
-	Start    int     // first sample at the new command
+	Start    int     // first sample at which the command has left its level
+	MoveEnd  int     // first sample holding the final command; ≤ Start for an ideal step
 	End      int     // one past the last sample of the step
 	From     float64 // command level before the step
 	To       float64 // command level after the step
+	// Unfinished is true when the record ends before the command has
+	// held its value for the steady time: the end of the move is not known.
+	Unfinished bool
 }
+
+// moveEnd returns the sample at which the commanded move ends: MoveEnd, or
+// Start when MoveEnd is not after it.
+func (s Step) moveEnd() int { return max(s.MoveEnd, s.Start) }
+
+// Profiled reports whether the command travelled over several samples (a
+// profiled move) rather than jumping in one (an ideal step).
+func (s Step) Profiled() bool { return s.MoveEnd > s.Start }
 
 // Size is the command change To − From (negative for a down-step).
 func (s Step) Size() float64 { return s.To - s.From }

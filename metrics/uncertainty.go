@@ -168,6 +168,14 @@ func MeasureUncertainty(tr Trace, m StepMetrics, o Options, uo UncertaintyOption
 	if m.SettlingTime.OK {
 		set(SettlingTime, e.settlingTime())
 	}
+	// The move's own metrics: the command is set, not measured, so the
+	// move time is exact, the settling after it is as uncertain as the
+	// settling time, and the largest following error as one sample.
+	set(MoveTime, 0)
+	if u := out.u[Index(SettlingTime)]; u.OK {
+		set(SettlingAfterMove, u.V)
+	}
+	set(MaxFollowingError, e.sigmaA)
 	return out
 }
 

@@ -141,8 +141,8 @@ func notFinite(i int, signal string, v float64) error {
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // Validate checks that the options describe a measurement: 0 ≤ RiseLow <
-// RiseHigh ≤ 1, 0 < Band < 1, 0 < DeadTimeLevel < 1, 0 < FinalWindow ≤ 1 and
-// MinSamples ≥ 2. The error names the offending field and its value.
+// RiseHigh ≤ 1, 0 < Band < 1, 0 < DeadTimeLevel < 1, 0 < FinalWindow ≤ 1,
+// MinSamples ≥ 2 and SteadyTime ≥ 0. The error names the offending field and its value.
 func (o Options) Validate() error {
 	bad := func(field string, v float64, want string) error {
 		return fmt.Errorf("metrics options: %s = %v: %s", field, v, want)
@@ -162,6 +162,8 @@ func (o Options) Validate() error {
 		return bad("FinalWindow", o.FinalWindow, "must be above 0 and at most 1")
 	case o.MinSamples < 2:
 		return fmt.Errorf("metrics options: MinSamples = %d: must be at least 2", o.MinSamples)
+	case !finite(o.SteadyTime) || o.SteadyTime < 0:
+		return bad("SteadyTime", o.SteadyTime, "must be zero or positive")
 	}
 	return nil
 }

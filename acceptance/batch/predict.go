@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -133,6 +134,12 @@ func (p *predictor) key(m metrics.StepMetrics, tr metrics.Trace) predKey {
 
 // attach adds the prediction and the gaps to a judged step.
 func (p *predictor) attach(sr *acceptance.StepResult, m metrics.StepMetrics, tr metrics.Trace) {
+	if m.Step.Profiled() {
+		// The model is simulated for an ideal step; set beside a profiled
+		// move its numbers would be gaps of the command, not of the loop.
+		sr.Predicted = p.notPredicted(m)
+		return
+	}
 	k := p.key(m, tr)
 	if !(k.dt > 0) {
 		return
@@ -151,6 +158,21 @@ func (p *predictor) attach(sr *acceptance.StepResult, m metrics.StepMetrics, tr 
 	sr.Gap = acceptance.GapBetween(&sr.Metrics, &pr.Metrics)
 }
 
+// notPredicted is the prediction of a profiled move: every metric unknown,
+// with the reason.
+func (p *predictor) notPredicted(m metrics.StepMetrics) *acceptance.Prediction {
+	why := metrics.Unknown(fmt.Sprintf("not predicted: the model predicts the response to an ideal step, and step %d is a move profiled over %s s",
+		m.Step.Index, strconv.FormatFloat(m.MoveTime.V, 'g', 4, 64)))
+	if !m.MoveTime.OK {
+		why = metrics.Unknown(fmt.Sprintf("not predicted: the model predicts the response to an ideal step, and step %d is a profiled move", m.Step.Index))
+	}
+	out := &acceptance.Prediction{Kind: p.kind().String()}
+	for _, n := range metrics.Names {
+		out.Metrics.Set(n, why)
+	}
+	return out
+}
+
 func (p *predictor) kind() model.Kind {
 	if p.realised {
 		return model.Realised
@@ -161,7 +183,13 @@ func (p *predictor) kind() model.Kind {
 // fit identifies the unit's effective closed loop from its first step.
 func (p *predictor) fit(tr metrics.Trace, st metrics.Step) *acceptance.Fit {
 	f := &acceptance.Fit{Step: st.Index}
-	id, err := model.Identify(tr, st, p.sys.Kp())
+	var err error
+	var id model.Identified
+	if st.Profiled() {
+		err = fmt.Errorf("step %d is a profiled move; the closed loop is identified from an ideal step only", st.Index)
+	} else {
+		id, err = model.Identify(tr, st, p.sys.Kp())
+	}
 	if err != nil {
 		why := err.Error()
 		f.Why = why

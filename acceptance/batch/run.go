@@ -278,7 +278,7 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 		u.Reasons = []acceptance.Reason{acceptance.UnusableReason(verr)}
 		return u, lg.Size, nil
 	}
-	steps := metrics.FindSteps(tr, sp.Steps.MinChange)
+	steps := metrics.FindMoves(tr, sp.Steps.MinChange, opts.SteadyTime)
 	u.Steps = make([]acceptance.StepResult, 0, len(steps))
 	limit := metrics.Unknown("the log has no effort column")
 	if tr.Effort != nil {

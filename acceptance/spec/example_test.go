@@ -35,9 +35,11 @@ limits:
 	//   fields separated by: detected from the header row; decimal mark: point (1.5)
 	//
 	// Steps:
-	//   a step is a change of the command by at least 0.5 mm; each step is
-	//   measured from its step instant (the first sample at the new command)
-	//   to the next step or the end of the record
+	//   a step is a change of the command by at least 0.5 mm, in one sample (an
+	//   ideal step) or over several (a profiled move: ramp, trapezoid, S-curve);
+	//   it starts at the first command change and its move ends when the command
+	//   has held its value for 0.05 s; each is measured from its start to the
+	//   next step or the end of the record
 	//
 	// Measurement levels:
 	//   rise time between 10 % and 90 % of the transition
@@ -80,5 +82,5 @@ limits:
 	// la40.yaml:3:49: signals.response: must differ from signals.command (both are "setpoint")
 	// la40.yaml:5:30: metrics.settling_band_pct: must be > 0 and < 100, got 0
 	// la40.yaml:7:24: limits.overshoot_pct.max: must be ≥ 0, got -3
-	// la40.yaml:8:3: limits.rise_tme_s: unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct
+	// la40.yaml:8:3: limits.rise_tme_s: unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct, move_time_s, settling_after_move_s, max_following_error
 }

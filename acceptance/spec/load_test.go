@@ -149,9 +149,9 @@ func TestDefaultsAndOptions(t *testing.T) {
 		name, extra string
 		want        metrics.Options
 	}{
-		{"defaults", "", metrics.Options{RiseLow: 0.10, RiseHigh: 0.90, Band: 0.02, DeadTimeLevel: 0.02, FinalWindow: 0.20, MinSamples: 10}},
+		{"defaults", "", metrics.Options{RiseLow: 0.10, RiseHigh: 0.90, Band: 0.02, DeadTimeLevel: 0.02, FinalWindow: 0.20, MinSamples: 10, SteadyTime: 0.05}},
 		{"set", "metrics: {rise_levels_pct: [5, 95], settling_band_pct: 5, dead_time_level_pct: 1, final_window_pct: 100}\n",
-			metrics.Options{RiseLow: 0.05, RiseHigh: 0.95, Band: 0.05, DeadTimeLevel: 0.01, FinalWindow: 1, MinSamples: 10}},
+			metrics.Options{RiseLow: 0.05, RiseHigh: 0.95, Band: 0.05, DeadTimeLevel: 0.01, FinalWindow: 1, MinSamples: 10, SteadyTime: 0.05}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -166,7 +166,7 @@ func TestDefaultsAndOptions(t *testing.T) {
 			}{
 				{"RiseLow", o.RiseLow, c.want.RiseLow}, {"RiseHigh", o.RiseHigh, c.want.RiseHigh},
 				{"Band", o.Band, c.want.Band}, {"DeadTimeLevel", o.DeadTimeLevel, c.want.DeadTimeLevel},
-				{"FinalWindow", o.FinalWindow, c.want.FinalWindow},
+				{"FinalWindow", o.FinalWindow, c.want.FinalWindow}, {"SteadyTime", o.SteadyTime, c.want.SteadyTime},
 			} {
 				if math.Abs(f.got-f.want) > 1e-15 {
 					t.Errorf("%s = %v, want %v", f.name, f.got, f.want)

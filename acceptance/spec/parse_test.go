@@ -101,6 +101,11 @@ func TestParseRules(t *testing.T) {
 		{"min_change text", edit{"min_change: 0.5", "min_change: half"}, "steps.min_change", `must be a number, got text "half"`, 8, 15},
 		{"min_change quoted number", edit{"min_change: 0.5", `min_change: "0.5"`}, "steps.min_change", `must be a number, got text "0.5"`, 8, 15},
 		{"min_change infinite", edit{"min_change: 0.5", "min_change: .inf"}, "steps.min_change", "must be a finite number, got .inf", 8, 15},
+		{"steady_s set", edit{"min_change: 0.5", "min_change: 0.5\n  steady_s: 0.2"}, "", "", 0, 0},
+		{"steady_s zero", edit{"min_change: 0.5", "min_change: 0.5\n  steady_s: 0"}, "steps.steady_s", "must be > 0 and ≤ 10, got 0", 9, 13},
+		{"steady_s negative", edit{"min_change: 0.5", "min_change: 0.5\n  steady_s: -0.1"}, "steps.steady_s", "must be > 0 and ≤ 10, got -0.1", 9, 13},
+		{"steady_s too long", edit{"min_change: 0.5", "min_change: 0.5\n  steady_s: 30"}, "steps.steady_s", "must be > 0 and ≤ 10, got 30", 9, 13},
+		{"steady_s text", edit{"min_change: 0.5", "min_change: 0.5\n  steady_s: long"}, "steps.steady_s", `must be a number, got text "long"`, 9, 13},
 
 		// Rise levels: reference levels strictly inside the transition
 		// (IEEE Std 181-2011, reference levels between the two state levels).
@@ -145,7 +150,7 @@ func TestParseRules(t *testing.T) {
 		// Limits.
 		{"no limits key", edit{"limits:\n  overshoot_pct: {max: 8}\n", ""}, "limits", "at least one limit is required", 1, 1},
 		{"empty limits", edit{"limits:\n  overshoot_pct: {max: 8}\n", "limits: {}\n"}, "limits", "at least one limit is required", 9, 1},
-		{"unknown metric", edit{"overshoot_pct: {max: 8}", "overshot_pct: {max: 8}"}, "limits.overshot_pct", "unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct", 10, 3},
+		{"unknown metric", edit{"overshoot_pct: {max: 8}", "overshot_pct: {max: 8}"}, "limits.overshot_pct", "unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct, move_time_s, settling_after_move_s, max_following_error", 10, 3},
 		{"limit without bound", edit{"overshoot_pct: {max: 8}", "overshoot_pct: {}"}, "limits.overshoot_pct", "needs min, max or both", 10, 3},
 		{"limit null", edit{"overshoot_pct: {max: 8}", "overshoot_pct:"}, "limits.overshoot_pct", "needs min, max or both", 10, 3},
 		{"limit min only", edit{"overshoot_pct: {max: 8}", "dead_time_s: {min: 0.001}"}, "", "", 0, 0},
@@ -336,7 +341,7 @@ func TestParseAllProblems(t *testing.T) {
 		"13:20: metrics.rise_levels_pct: must satisfy 0 < low < high < 100, got [90, 10]",
 		"14:22: metrics.settling_band_pct: must be > 0 and < 100, got 100",
 		"16:24: limits.overshoot_pct.max: must be ≥ 0, got -3",
-		"17:3: limits.rise_tme_s: unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct",
+		"17:3: limits.rise_tme_s: unknown metric; valid names: step_size, initial_value, final_value, dead_time_s, rise_time_s, peak_value, peak_time_s, overshoot_pct, settling_time_s, steady_state_error, steady_state_error_pct, move_time_s, settling_after_move_s, max_following_error",
 		"18:26: limits.settling_time_s.min: must be ≤ max, got min 0.5 > max 0.35",
 		"19:3: limits.steady_state_error: needs min, max or both, e.g. {max: 8}",
 		"21:47: model.plant.denominator[0]: the leading coefficient must not be 0",

@@ -57,6 +57,10 @@ type LogFormat struct {
 // StepRules control segmentation.
 type StepRules struct {
 	MinChange float64 `yaml:"min_change"` // command changes smaller than this are not steps
+	// SteadyS is how long, in seconds, the command must hold its value for
+	// a move (a ramp, trapezoid or S-curve over several samples) to end;
+	// default DefaultSteadyS.
+	SteadyS float64 `yaml:"steady_s"`
 }
 
 // MetricRules set the measurement levels, in percent.
@@ -117,6 +121,10 @@ const (
 	DefaultFinalWindowPct   = 20.0
 	DefaultDelimiter        = "auto"
 	DefaultDecisionRule     = RuleSimple
+	DefaultSteadyS          = metrics.DefaultSteadyTime
+	// MaxSteadyS bounds steps.steady_s: a command that must hold still
+	// longer than this to end a move would merge a whole test plan into one.
+	MaxSteadyS = 10.0
 )
 
 // LogoPath returns the report logo's path resolved against the folder of
@@ -148,6 +156,9 @@ func (s *Spec) Options() metrics.Options {
 	}
 	if m.FinalWindowPct > 0 {
 		o.FinalWindow = m.FinalWindowPct / 100
+	}
+	if s.Steps.SteadyS > 0 {
+		o.SteadyTime = s.Steps.SteadyS
 	}
 	return o
 }

@@ -34,6 +34,9 @@ func (p *parser) defaults() {
 	if !p.present("decision_rule") {
 		s.DecisionRule = DefaultDecisionRule
 	}
+	if !p.present("steps.steady_s") {
+		s.Steps.SteadyS = DefaultSteadyS
+	}
 }
 
 // validate applies the value rules to the decoded spec.
@@ -57,6 +60,7 @@ func (p *parser) validate() {
 			p.problem("steps.min_change", valNode, "must be > 0, got %s", formatFloat(s.Steps.MinChange))
 		}
 	}
+	p.openRange("steps.steady_s", s.Steps.SteadyS, 0, MaxSteadyS, true)
 	p.validateLevels()
 	p.validateDecision()
 	p.validateLimits()

@@ -37,6 +37,9 @@ type Digest struct {
 	Band float64
 	// Limited lists the limited metrics in report order (LimitedMetrics).
 	Limited []metrics.Name
+	// Shown lists the metrics the reports' step tables and columns carry,
+	// in report order (ShownMetrics).
+	Shown []metrics.Name
 	// Stats holds one entry per limited metric, in Limited order.
 	Stats []MetricStats
 	// Causes is the failure-reason Pareto, most frequent first.
@@ -74,6 +77,7 @@ func New(b *acceptance.Batch) (*Digest, error) {
 		ResponseUnit: ResponseUnit(b),
 		Band:         SettlingBand(b),
 		Limited:      LimitedMetrics(b),
+		Shown:        ShownMetrics(b),
 	}
 	if y, ok := Yield(b.Summary); ok {
 		d.Yield = metrics.Known(y)
@@ -156,6 +160,39 @@ func ReportTime(b *acceptance.Batch) (time.Time, error) {
 		return time.Time{}, fmt.Errorf("report date %q: want YYYY-MM-DD", b.ReportDate)
 	}
 	return t, nil
+}
+
+// ShownMetrics returns the metrics the reports list for the batch, in the
+// report order of metrics.Names: every metric, except that the
+// profiled-move metrics (metrics.Metric.Move) are left out of a batch in
+// which no step is a profiled move (a known move time above 0) and no
+// limit names them. results.json carries every metric whatever this says.
+func ShownMetrics(b *acceptance.Batch) []metrics.Name {
+	moves := hasMoves(b)
+	for n := range b.Limits {
+		if m, ok := metrics.Lookup(n); ok && m.Move {
+			moves = true
+		}
+	}
+	out := make([]metrics.Name, 0, metrics.NumNames)
+	for i, n := range metrics.Names {
+		if !metrics.At(i).Move || moves {
+			out = append(out, n)
+		}
+	}
+	return out
+}
+
+// hasMoves reports whether a step of the batch is a profiled move.
+func hasMoves(b *acceptance.Batch) bool {
+	for i := range b.Units {
+		for j := range b.Units[i].Steps {
+			if v, _ := b.Units[i].Steps[j].Metrics.Lookup(metrics.MoveTime); v.OK && v.V > 0 {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // LimitedMetrics returns the metrics the batch's limits bound, in the

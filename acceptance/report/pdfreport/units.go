@@ -396,11 +396,11 @@ func (r *report) stepTable(s *acceptance.StepResult) {
 	for _, c := range s.Checks {
 		checks[c.Metric] = c
 	}
-	names := make([]metrics.Name, 0, len(metrics.Names)+len(checks))
-	names = append(names, metrics.Names...)
+	names := make([]metrics.Name, 0, len(r.d.Shown)+len(checks))
+	names = append(names, r.d.Shown...)
 	var extra []metrics.Name
 	for k := range checks {
-		if metrics.Index(k) < 0 {
+		if !slices.Contains(r.d.Shown, k) {
 			extra = append(extra, k)
 		}
 	}

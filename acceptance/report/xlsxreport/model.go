@@ -130,7 +130,7 @@ func modelNominal(w *sheetWriter, d *digest.Digest) {
 		cmp[k][x.Metric] = x
 	}
 	for _, n := range m.Nominal {
-		for _, k := range metrics.Names {
+		for _, k := range d.Shown {
 			iv, rv := n.Ideal.Metrics.Get(k), n.Realised.Metrics.Get(k)
 			compared := iv
 			if m.Realised {

@@ -15,7 +15,7 @@ import (
 
 // unitColumns describes the Units sheet's columns.
 type unitColumns struct {
-	metrics   []metrics.Name // every metric, report order
+	metrics   []metrics.Name // every metric shown (digest.Shown), report order
 	predicted []metrics.Name // limited metrics with predicted and gap columns
 	meta      []string       // metadata keys, sorted
 }
@@ -23,9 +23,7 @@ type unitColumns struct {
 func columnsFor(d *digest.Digest) unitColumns {
 	b := d.Batch
 	var c unitColumns
-	for _, n := range metrics.Names {
-		c.metrics = append(c.metrics, n)
-	}
+	c.metrics = append(c.metrics, d.Shown...)
 	havePred := false
 	keys := map[string]bool{}
 	for _, u := range b.Units {
