@@ -60,16 +60,76 @@ func verdictStep(over map[metrics.Name]metrics.Value, lastOutside metrics.Value)
 // proves a failure (a sample outside the settling band later than the
 // settling-time max).
 func TestJudgeStep(t *testing.T) {
+	for _, c := range judgeStepCases() {
+		t.Run(c.name, func(t *testing.T) { checkJudgeStep(t, c) })
+	}
+}
+
+// checkJudgeStep checks one case of TestJudgeStep.
+func checkJudgeStep(t *testing.T, c judgeStepCase) {
+	t.Helper()
+	s := &spec.Spec{Limits: c.limits, Metrics: spec.MetricRules{SettlingBandPct: 2}}
+	m := verdictStep(c.over, c.last)
+	r := acceptance.JudgeStep(s, m)
+	if r.Verdict != c.verdict {
+		t.Errorf("verdict = %s, want %s", r.Verdict, c.verdict)
+	}
+	if got := acceptance.ReasonTexts(r.Reasons); !reflect.DeepEqual(got, c.reasons) {
+		t.Errorf("reasons = %q, want %q", got, c.reasons)
+	}
+	if r.Index != 2 || r.StartS != 0.5 || r.From != 0 || r.To != 10 {
+		t.Errorf("identity = %d %v %v→%v", r.Index, r.StartS, r.From, r.To)
+	}
+	// Every metric is reported; every null one has its reason.
+	for _, n := range metrics.Names {
+		v, _ := m.Get(n)
+		got, ok := r.Metrics.Lookup(n)
+		if !ok || got.OK != v.OK || (v.OK && got.V != v.V) {
+			t.Errorf("Metrics[%s] = %+v, want %+v", n, got, v)
+		}
+		why, listed := r.Metrics.Unmeasured()[n]
+		if listed == v.OK || (!v.OK && why == "") {
+			t.Errorf("Unmeasured[%s] = %q, %v for value %+v", n, why, listed, v)
+		}
+	}
+	// One check per limit, in metrics.Names order, with copies of the
+	// bounds and the value only when measured.
+	if len(r.Checks) != len(c.limits) {
+		t.Fatalf("%d checks for %d limits", len(r.Checks), len(c.limits))
+	}
+	for i, ch := range r.Checks {
+		if ch.Metric != s.LimitNames()[i] {
+			t.Errorf("check %d is %s, want %s", i, ch.Metric, s.LimitNames()[i])
+		}
+		lim := c.limits[ch.Metric]
+		if !reflect.DeepEqual(ch.Min, lim.Min) || !reflect.DeepEqual(ch.Max, lim.Max) {
+			t.Errorf("check %s bounds = %v %v, want the spec's %v %v", ch.Metric, ch.Min, ch.Max, lim.Min, lim.Max)
+		}
+		v, _ := m.Get(ch.Metric)
+		if (ch.Value != nil) != v.OK || (v.OK && *ch.Value != v.V) {
+			t.Errorf("check %s value = %v, want %+v", ch.Metric, ch.Value, v)
+		}
+		if (ch.Verdict == acceptance.Pass) != (ch.Reason == "") {
+			t.Errorf("check %s: verdict %s with reason %q", ch.Metric, ch.Verdict, ch.Reason)
+		}
+	}
+}
+
+// judgeStepCase is one case of TestJudgeStep.
+type judgeStepCase struct {
+	name    string
+	limits  map[metrics.Name]spec.Limit
+	over    map[metrics.Name]metrics.Value
+	last    metrics.Value
+	verdict acceptance.Verdict
+	reasons []string
+}
+
+// judgeStepCases are the cases of TestJudgeStep.
+func judgeStepCases() []judgeStepCase {
 	unk := metrics.Unknown
 	noLast := unk("step has no samples")
-	cases := []struct {
-		name    string
-		limits  map[metrics.Name]spec.Limit
-		over    map[metrics.Name]metrics.Value
-		last    metrics.Value
-		verdict acceptance.Verdict
-		reasons []string
-	}{
+	return []judgeStepCase{
 		{"max only, inside", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
 			nil, metrics.Known(0.2), acceptance.Pass, []string{}},
 		{"max only, on the limit", map[metrics.Name]spec.Limit{"overshoot_pct": {Max: verdictF(8)}},
@@ -145,55 +205,6 @@ func TestJudgeStep(t *testing.T) {
 		{"limit on a name that is not a metric", map[metrics.Name]spec.Limit{"jerk": {Max: verdictF(1)}},
 			nil, metrics.Known(0.2), acceptance.Invalid, []string{"jerk is not a metric stepgate measures (step 2)"}},
 		{"no limits", nil, nil, metrics.Known(0.2), acceptance.Pass, []string{}},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			s := &spec.Spec{Limits: c.limits, Metrics: spec.MetricRules{SettlingBandPct: 2}}
-			m := verdictStep(c.over, c.last)
-			r := acceptance.JudgeStep(s, m)
-			if r.Verdict != c.verdict {
-				t.Errorf("verdict = %s, want %s", r.Verdict, c.verdict)
-			}
-			if got := acceptance.ReasonTexts(r.Reasons); !reflect.DeepEqual(got, c.reasons) {
-				t.Errorf("reasons = %q, want %q", got, c.reasons)
-			}
-			if r.Index != 2 || r.StartS != 0.5 || r.From != 0 || r.To != 10 {
-				t.Errorf("identity = %d %v %v→%v", r.Index, r.StartS, r.From, r.To)
-			}
-			// Every metric is reported; every null one has its reason.
-			for _, n := range metrics.Names {
-				v, _ := m.Get(n)
-				got, ok := r.Metrics.Lookup(n)
-				if !ok || got.OK != v.OK || (v.OK && got.V != v.V) {
-					t.Errorf("Metrics[%s] = %+v, want %+v", n, got, v)
-				}
-				why, listed := r.Metrics.Unmeasured()[n]
-				if listed == v.OK || (!v.OK && why == "") {
-					t.Errorf("Unmeasured[%s] = %q, %v for value %+v", n, why, listed, v)
-				}
-			}
-			// One check per limit, in metrics.Names order, with copies of the
-			// bounds and the value only when measured.
-			if len(r.Checks) != len(c.limits) {
-				t.Fatalf("%d checks for %d limits", len(r.Checks), len(c.limits))
-			}
-			for i, ch := range r.Checks {
-				if ch.Metric != s.LimitNames()[i] {
-					t.Errorf("check %d is %s, want %s", i, ch.Metric, s.LimitNames()[i])
-				}
-				lim := c.limits[ch.Metric]
-				if !reflect.DeepEqual(ch.Min, lim.Min) || !reflect.DeepEqual(ch.Max, lim.Max) {
-					t.Errorf("check %s bounds = %v %v, want the spec's %v %v", ch.Metric, ch.Min, ch.Max, lim.Min, lim.Max)
-				}
-				v, _ := m.Get(ch.Metric)
-				if (ch.Value != nil) != v.OK || (v.OK && *ch.Value != v.V) {
-					t.Errorf("check %s value = %v, want %+v", ch.Metric, ch.Value, v)
-				}
-				if (ch.Verdict == acceptance.Pass) != (ch.Reason == "") {
-					t.Errorf("check %s: verdict %s with reason %q", ch.Metric, ch.Verdict, ch.Reason)
-				}
-			}
-		})
 	}
 }
 

@@ -29,25 +29,91 @@ func constTrace(n, at int, cmd float64, resp func(ts float64) float64) Trace {
 // unknown with a reason a technician can act on, and that every other metric
 // is still measured. The closed forms are those of references.md §2–§3.
 func TestUnknownsCarryReasons(t *testing.T) {
-	ogata := underdamped(0.6, 5) // Ogata 5th ed. Example 5-1 (from memory)
-	type expect struct {
-		unknown map[Name]string // metric → substring of its reason
-		known   map[Name]float64
-		tol     float64
-		last    float64 // expected LastOutside; NaN: unknown
+	for _, tc := range unknownCases() {
+		t.Run(tc.name, func(t *testing.T) {
+			checkUnknowns(t, tc)
+		})
 	}
-	tests := []struct {
-		name string
-		tr   Trace
-		step func(tr Trace) Step // nil: the single step FindSteps finds
-		opts func(*Options)
-		want expect
-	}{
+}
+
+// checkUnknowns measures the step of tc and checks every metric and
+// LastOutside against tc.want.
+func checkUnknowns(t *testing.T, tc unknownCase) {
+	t.Helper()
+	o := DefaultOptions()
+	if tc.opts != nil {
+		tc.opts(&o)
+	}
+	var s Step
+	if tc.step != nil {
+		s = tc.step(tc.tr)
+	} else {
+		steps := FindSteps(tc.tr, 1)
+		if len(steps) != 1 {
+			t.Fatalf("found %d steps, want 1", len(steps))
+		}
+		s = steps[0]
+	}
+	m := MeasureStep(tc.tr, s, o)
+	for _, n := range Names {
+		v, _ := m.Get(n)
+		if want, ok := tc.want.unknown[n]; ok {
+			if v.OK {
+				t.Errorf("%s = %g, want unknown (%q)", n, v.V, want)
+			} else if !strings.Contains(v.Why, want) {
+				t.Errorf("%s reason %q, want it to contain %q", n, v.Why, want)
+			}
+			continue
+		}
+		if !v.OK {
+			if v.Why == "" {
+				t.Errorf("%s unknown without a reason", n)
+			}
+			if _, ok := tc.want.known[n]; ok {
+				t.Errorf("%s unknown (%s), want %g", n, v.Why, tc.want.known[n])
+			}
+			continue
+		}
+		if want, ok := tc.want.known[n]; ok && math.Abs(v.V-want) > tc.want.tol {
+			t.Errorf("%s = %.9g, want %.9g ± %g", n, v.V, want, tc.want.tol)
+		}
+	}
+	if math.IsNaN(tc.want.last) {
+		if m.LastOutside.OK || m.LastOutside.Why == "" {
+			t.Errorf("LastOutside = %+v, want unknown with a reason", m.LastOutside)
+		}
+	} else {
+		near(t, "LastOutside", m.LastOutside, tc.want.last, 1e-9)
+	}
+}
+
+// unknownWant is what a case of TestUnknownsCarryReasons expects.
+type unknownWant struct {
+	unknown map[Name]string // metric → substring of its reason
+	known   map[Name]float64
+	tol     float64
+	last    float64 // expected LastOutside; NaN: unknown
+}
+
+// unknownCase is a record with a metric that cannot be measured.
+type unknownCase struct {
+	name string
+	tr   Trace
+	step func(tr Trace) Step // nil: the single step FindSteps finds
+	opts func(*Options)
+	want unknownWant
+}
+
+// unknownCases are the records of TestUnknownsCarryReasons. The closed
+// forms are those of references.md §2–§3.
+func unknownCases() []unknownCase {
+	ogata := underdamped(0.6, 5) // Ogata 5th ed. Example 5-1 (from memory)
+	return []unknownCase{
 		{
 			// Record ends 0.5 s after the step, before the 0.785 s peak.
 			name: "record ends before settling",
 			tr:   rig{dt: dt, f: ogata}.record([]segment{{0.5, 0}, {0.5, 25}}),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{
 					FinalValue:          "record ends 0.5 s after the step, before the response settles",
 					RiseTime:            "final value unknown: record ends",
@@ -68,7 +134,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 			// First order, τ = 1 s, recorded for 1.5 s: still rising.
 			name: "slow first order cut short",
 			tr:   rig{dt: dt, f: firstOrder(1)}.record([]segment{{1, 0}, {1.5, 10}}),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{
 					FinalValue:   "record ends 1.5 s after the step",
 					SettlingTime: "final value unknown",
@@ -88,7 +154,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 				tr.Response[len(tr.Response)-1] += 3
 				return tr
 			}(),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{SettlingTime: "still outside the ±0.5 band around 25 at the end of the record, 1 s after the step"},
 				// Overshoot (28 − 25)/25 = 12 %; the final value of a
 				// first-order tail is short of 25 by < 1e-6 of the step.
@@ -99,7 +165,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 		{
 			name: "too few samples",
 			tr:   constTrace(105, 100, 25, func(float64) float64 { return 0 }),
-			want: expect{
+			want: unknownWant{
 				unknown: allBut(StepSize, "step has only 5 samples (0.004 s); 10 are needed to measure it"),
 				known:   map[Name]float64{StepSize: 25},
 				last:    0.004,
@@ -111,7 +177,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 			// settling time is 0 by definition and the error is 100 %.
 			name: "response never moves",
 			tr:   constTrace(3000, 500, 25, func(float64) float64 { return 0.003 }),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{
 					RiseTime:  "response moved only 0 (from 0.003 to 0.003), within the ±0.5 settling band: no transition to time",
 					DeadTime:  "no transition to time",
@@ -133,7 +199,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 				}
 				return -25 * firstOrder(0.05)(ts)
 			}),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{RiseTime: "against the command change of 25", Overshoot: "against the command"},
 				// The response settles (at −25), so the band is centred on
 				// the final value and the last sample outside it is the one
@@ -152,7 +218,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 				}
 				return 25 + 2*math.Sin(2*math.Pi*3*ts)
 			}),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{
 					FinalValue:   "response does not hold a steady level by the end of the record",
 					SettlingTime: "final value unknown",
@@ -168,7 +234,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 		{
 			name: "step two samples into the record",
 			tr:   constTrace(2000, 2, 25, func(ts float64) float64 { return 25 * firstOrder(0.05)(math.Max(ts, 0)) }),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{
 					InitialValue: "only 2 samples before the step; 3 are needed for the initial value",
 					RiseTime:     "initial value unknown: only 2 samples",
@@ -181,7 +247,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 			// The response is still ramping when the step comes.
 			name: "not steady before the step",
 			tr:   constTrace(2000, 500, 25, func(ts float64) float64 { return 25*firstOrder(0.05)(math.Max(ts, 0)) + math.Min(ts, 0)*4 }),
-			want: expect{
+			want: unknownWant{
 				unknown: map[Name]string{InitialValue: "response is not steady before the step: its level drifts by 0.5 over the 0.25 s before it (limit 0.25)"},
 				known:   map[Name]float64{FinalValue: 25},
 				tol:     1e-5, last: 0.195,
@@ -191,7 +257,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 			name: "invalid options",
 			tr:   rig{dt: dt, f: ogata}.record([]segment{{0.5, 0}, {2, 25}}),
 			opts: func(o *Options) { o.RiseLow, o.RiseHigh = 0.9, 0.1 },
-			want: expect{
+			want: unknownWant{
 				unknown: allBut(StepSize, "metrics options: RiseLow = 0.9 is not below RiseHigh = 0.1"),
 				known:   map[Name]float64{StepSize: 25},
 				last:    math.NaN(),
@@ -201,7 +267,7 @@ func TestUnknownsCarryReasons(t *testing.T) {
 			name: "step outside the record",
 			tr:   rig{dt: dt, f: ogata}.record([]segment{{0.5, 0}, {2, 25}}),
 			step: func(tr Trace) Step { return Step{Index: 1, Start: 500, End: 9000, From: 0, To: 25} },
-			want: expect{
+			want: unknownWant{
 				unknown: allBut(StepSize, "step 1 spans samples 500..8999 (pre-step from 0), which do not fit a record of 2501 samples"),
 				known:   map[Name]float64{StepSize: 25},
 				last:    math.NaN(),
@@ -214,61 +280,12 @@ func TestUnknownsCarryReasons(t *testing.T) {
 				tr.Response[700] = math.NaN()
 				return tr
 			}(),
-			want: expect{
+			want: unknownWant{
 				unknown: allBut(StepSize, "trace: sample index 700, response: value NaN is not a finite number"),
 				known:   map[Name]float64{StepSize: 25},
 				last:    math.NaN(),
 			},
 		},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			o := DefaultOptions()
-			if tc.opts != nil {
-				tc.opts(&o)
-			}
-			var s Step
-			if tc.step != nil {
-				s = tc.step(tc.tr)
-			} else {
-				steps := FindSteps(tc.tr, 1)
-				if len(steps) != 1 {
-					t.Fatalf("found %d steps, want 1", len(steps))
-				}
-				s = steps[0]
-			}
-			m := MeasureStep(tc.tr, s, o)
-			for _, n := range Names {
-				v, _ := m.Get(n)
-				if want, ok := tc.want.unknown[n]; ok {
-					if v.OK {
-						t.Errorf("%s = %g, want unknown (%q)", n, v.V, want)
-					} else if !strings.Contains(v.Why, want) {
-						t.Errorf("%s reason %q, want it to contain %q", n, v.Why, want)
-					}
-					continue
-				}
-				if !v.OK {
-					if v.Why == "" {
-						t.Errorf("%s unknown without a reason", n)
-					}
-					if _, ok := tc.want.known[n]; ok {
-						t.Errorf("%s unknown (%s), want %g", n, v.Why, tc.want.known[n])
-					}
-					continue
-				}
-				if want, ok := tc.want.known[n]; ok && math.Abs(v.V-want) > tc.want.tol {
-					t.Errorf("%s = %.9g, want %.9g ± %g", n, v.V, want, tc.want.tol)
-				}
-			}
-			if math.IsNaN(tc.want.last) {
-				if m.LastOutside.OK || m.LastOutside.Why == "" {
-					t.Errorf("LastOutside = %+v, want unknown with a reason", m.LastOutside)
-				}
-			} else {
-				near(t, "LastOutside", m.LastOutside, tc.want.last, 1e-9)
-			}
-		})
 	}
 }
 

@@ -81,16 +81,56 @@ func ref(texts ...string) []float64 {
 }
 
 func TestReadAccepts(t *testing.T) {
+	for _, c := range readAcceptCases() {
+		t.Run(c.name, func(t *testing.T) { checkReadAccept(t, c) })
+	}
+}
+
+// checkReadAccept checks one case of TestReadAccepts.
+func checkReadAccept(t *testing.T, c readAcceptCase) {
+	t.Helper()
+	lg, err := Read(strings.NewReader(c.in), "log.csv", c.f)
+	if err != nil {
+		t.Fatalf("Read: %v", err)
+	}
+	w := c.want
+	if lg.Path != "log.csv" || lg.Delimiter != w.delim || lg.Rows != len(w.time) || lg.Size != int64(len(c.in)) {
+		t.Errorf("Path %q, Delimiter %q, Rows %d, Size %d; want log.csv, %q, %d, %d",
+			lg.Path, lg.Delimiter, lg.Rows, lg.Size, w.delim, len(w.time), len(c.in))
+	}
+	if !reflect.DeepEqual(lg.Metadata, w.meta) {
+		t.Errorf("Metadata %v, want %v", lg.Metadata, w.meta)
+	}
+	sum := sha256.Sum256([]byte(c.in))
+	if lg.SHA256 != hex.EncodeToString(sum[:]) {
+		t.Errorf("SHA256 %s, crypto/sha256 gives %x", lg.SHA256, sum)
+	}
+	checkColumn(t, "time", lg.Trace.Time, w.time)
+	checkColumn(t, "command", lg.Trace.Command, w.cmd)
+	checkColumn(t, "response", lg.Trace.Response, w.resp)
+	if w.eff == nil && lg.Trace.Effort != nil {
+		t.Errorf("Effort %v, want nil", lg.Trace.Effort)
+	}
+	if w.eff != nil {
+		checkColumn(t, "effort", lg.Trace.Effort, w.eff)
+	}
+}
+
+// readAcceptCase is one case of TestReadAccepts.
+type readAcceptCase struct {
+	name string
+	in   string
+	f    Format
+	want parsed
+}
+
+// readAcceptCases are the cases of TestReadAccepts.
+func readAcceptCases() []readAcceptCase {
 	simple := parsed{
 		meta: map[string]string{}, delim: ',',
 		time: ref("0", "0.001", "0.002"), cmd: ref("0", "1", "1"), resp: ref("0", "0.25", "0.5"),
 	}
-	cases := []struct {
-		name string
-		in   string
-		f    Format
-		want parsed
-	}{
+	return []readAcceptCase{
 		{"comma", "time,command,position\n0,0,0\n0.001,1,0.25\n0.002,1,0.5\n", base, simple},
 		{"semicolon", "time;command;position\n0;0;0\n0.001;1;0.25\n0.002;1;0.5\n", base,
 			func() parsed { p := simple; p.delim = ';'; return p }()},
@@ -134,35 +174,6 @@ func TestReadAccepts(t *testing.T) {
 		{"two rows", "time,command,position\n0,0,0\n0.001,1,0.25\n", base,
 			parsed{meta: map[string]string{}, delim: ',', time: ref("0", "0.001"), cmd: ref("0", "1"), resp: ref("0", "0.25")}},
 	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			lg, err := Read(strings.NewReader(c.in), "log.csv", c.f)
-			if err != nil {
-				t.Fatalf("Read: %v", err)
-			}
-			w := c.want
-			if lg.Path != "log.csv" || lg.Delimiter != w.delim || lg.Rows != len(w.time) || lg.Size != int64(len(c.in)) {
-				t.Errorf("Path %q, Delimiter %q, Rows %d, Size %d; want log.csv, %q, %d, %d",
-					lg.Path, lg.Delimiter, lg.Rows, lg.Size, w.delim, len(w.time), len(c.in))
-			}
-			if !reflect.DeepEqual(lg.Metadata, w.meta) {
-				t.Errorf("Metadata %v, want %v", lg.Metadata, w.meta)
-			}
-			sum := sha256.Sum256([]byte(c.in))
-			if lg.SHA256 != hex.EncodeToString(sum[:]) {
-				t.Errorf("SHA256 %s, crypto/sha256 gives %x", lg.SHA256, sum)
-			}
-			checkColumn(t, "time", lg.Trace.Time, w.time)
-			checkColumn(t, "command", lg.Trace.Command, w.cmd)
-			checkColumn(t, "response", lg.Trace.Response, w.resp)
-			if w.eff == nil && lg.Trace.Effort != nil {
-				t.Errorf("Effort %v, want nil", lg.Trace.Effort)
-			}
-			if w.eff != nil {
-				checkColumn(t, "effort", lg.Trace.Effort, w.eff)
-			}
-		})
-	}
 }
 
 func checkColumn(t *testing.T, name string, got, want []float64) {
@@ -179,17 +190,50 @@ func checkColumn(t *testing.T, name string, got, want []float64) {
 }
 
 func TestReadRejects(t *testing.T) {
+	for _, c := range readRejectCases() {
+		t.Run(c.name, func(t *testing.T) { checkReadReject(t, c) })
+	}
+}
+
+// checkReadReject checks one case of TestReadRejects.
+func checkReadReject(t *testing.T, c readRejectCase) {
+	t.Helper()
+	lg, err := Read(strings.NewReader(c.in), "vd25.csv", c.f)
+	if err == nil {
+		t.Fatalf("Read succeeded with %d rows, want an error", lg.Rows)
+	}
+	if !errors.Is(err, c.kind) {
+		t.Errorf("error %q does not match %v", err, c.kind)
+	}
+	var pe *ParseError
+	if !errors.As(err, &pe) {
+		t.Fatalf("error %q is not a *ParseError", err)
+	}
+	if pe.File != "vd25.csv" || pe.Line != c.line || pe.Column != c.col || pe.Field != c.field {
+		t.Errorf("at %s:%d:%d field %q, want vd25.csv:%d:%d field %q (%v)",
+			pe.File, pe.Line, pe.Column, pe.Field, c.line, c.col, c.field, err)
+	}
+	if !strings.Contains(err.Error(), c.phrase) {
+		t.Errorf("message %q lacks %q", err, c.phrase)
+	}
+}
+
+// readRejectCase is one case of TestReadRejects.
+type readRejectCase struct {
+	name   string
+	in     string
+	f      Format
+	kind   error
+	line   int
+	col    int
+	field  string
+	phrase string // must appear in the message
+}
+
+// readRejectCases are the cases of TestReadRejects.
+func readRejectCases() []readRejectCase {
 	const head = "time,command,position\n"
-	cases := []struct {
-		name   string
-		in     string
-		f      Format
-		kind   error
-		line   int
-		col    int
-		field  string
-		phrase string // must appear in the message
-	}{
+	return []readRejectCase{
 		{"empty file", "", base, ErrEmpty, 0, 0, "", "file is empty"},
 		{"only blank lines", "\n \r\n\t\n", base, ErrEmpty, 0, 0, "", "only blank lines"},
 		{"only comments", "# serial: X\n# note\n", base, ErrNoHeader, 0, 0, "", "only comment and metadata lines"},
@@ -261,28 +305,6 @@ func TestReadRejects(t *testing.T) {
 			func() Format { f := base; f.MaxLineBytes = 30; return f }(), ErrLineTooLong, 3, 0, "", "longer than the 30-byte limit"},
 		{"file too large", head + strings.Repeat("0.001,1,1\n", 10),
 			func() Format { f := base; f.MaxBytes = 50; return f }(), ErrTooLarge, 0, 0, "", "larger than the 50-byte limit"},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			lg, err := Read(strings.NewReader(c.in), "vd25.csv", c.f)
-			if err == nil {
-				t.Fatalf("Read succeeded with %d rows, want an error", lg.Rows)
-			}
-			if !errors.Is(err, c.kind) {
-				t.Errorf("error %q does not match %v", err, c.kind)
-			}
-			var pe *ParseError
-			if !errors.As(err, &pe) {
-				t.Fatalf("error %q is not a *ParseError", err)
-			}
-			if pe.File != "vd25.csv" || pe.Line != c.line || pe.Column != c.col || pe.Field != c.field {
-				t.Errorf("at %s:%d:%d field %q, want vd25.csv:%d:%d field %q (%v)",
-					pe.File, pe.Line, pe.Column, pe.Field, c.line, c.col, c.field, err)
-			}
-			if !strings.Contains(err.Error(), c.phrase) {
-				t.Errorf("message %q lacks %q", err, c.phrase)
-			}
-		})
 	}
 }
 

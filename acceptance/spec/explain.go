@@ -23,31 +23,7 @@ func (s *Spec) Explain() string {
 	}
 	line("%s", head)
 	line("")
-	line("Read from each log:")
-	tu := s.TimeUnit
-	if tu == "" {
-		tu = DefaultTimeUnit
-	}
-	line("  time      column %q, in %s", s.Signals.Time, tu)
-	line("  command   column %q%s", s.Signals.Command, inUnit(s.ResponseUnit))
-	line("  response  column %q%s", s.Signals.Response, inUnit(s.ResponseUnit))
-	if s.Signals.Effort != "" {
-		line("  effort    column %q%s", s.Signals.Effort, inUnit(s.EffortUnit))
-	} else {
-		line("  effort    not read (signals.effort not set)")
-	}
-	delim := map[string]string{
-		"": "detected from the header row", "auto": "detected from the header row",
-		"comma": "comma", "semicolon": "semicolon", "tab": "tab",
-	}[s.Log.Delimiter]
-	if delim == "" {
-		delim = s.Log.Delimiter
-	}
-	mark := "point (1.5)"
-	if s.Log.DecimalComma {
-		mark = "comma (1,5)"
-	}
-	line("  fields separated by: %s; decimal mark: %s", delim, mark)
+	s.explainLog(line)
 	line("")
 	line("Steps:")
 	line("  a step is a change of the command by at least %s%s, in one sample (an", formatFloat(s.Steps.MinChange), ru)
@@ -88,6 +64,42 @@ func (s *Spec) Explain() string {
 			line("  %s", l)
 		}
 	}
+	s.explainReport(line)
+	return b.String()
+}
+
+// explainLog words what is read from each log: the columns, their units,
+// the delimiter and the decimal mark.
+func (s *Spec) explainLog(line func(format string, a ...any)) {
+	line("Read from each log:")
+	tu := s.TimeUnit
+	if tu == "" {
+		tu = DefaultTimeUnit
+	}
+	line("  time      column %q, in %s", s.Signals.Time, tu)
+	line("  command   column %q%s", s.Signals.Command, inUnit(s.ResponseUnit))
+	line("  response  column %q%s", s.Signals.Response, inUnit(s.ResponseUnit))
+	if s.Signals.Effort != "" {
+		line("  effort    column %q%s", s.Signals.Effort, inUnit(s.EffortUnit))
+	} else {
+		line("  effort    not read (signals.effort not set)")
+	}
+	delim := map[string]string{
+		"": "detected from the header row", "auto": "detected from the header row",
+		"comma": "comma", "semicolon": "semicolon", "tab": "tab",
+	}[s.Log.Delimiter]
+	if delim == "" {
+		delim = s.Log.Delimiter
+	}
+	mark := "point (1.5)"
+	if s.Log.DecimalComma {
+		mark = "comma (1,5)"
+	}
+	line("  fields separated by: %s; decimal mark: %s", delim, mark)
+}
+
+// explainReport words the report section, when the spec fills it.
+func (s *Spec) explainReport(line func(format string, a ...any)) {
 	if r := s.Report; r.Company != "" || r.Site != "" || r.Customer != "" || r.Logo != "" {
 		line("")
 		line("Report:")
@@ -97,7 +109,6 @@ func (s *Spec) Explain() string {
 			}
 		}
 	}
-	return b.String()
 }
 
 // describeLimit words one limit, e.g. "overshoot_pct ≤ 8 %".

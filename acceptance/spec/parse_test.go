@@ -59,16 +59,51 @@ func problemsOf(t *testing.T, doc string) []spec.Problem {
 // stepgate's spec format; where a rule follows from an outside definition,
 // the case says which.
 func TestParseRules(t *testing.T) {
-	type edit struct{ old, new string }
-	cases := []struct {
-		name string
-		edit edit
-		// key and msg (a substring) of the single problem expected; key ""
-		// means the spec is valid. line 0 skips the position check.
-		key       string
-		msg       string
-		line, col int
-	}{
+	for _, c := range parseRuleCases() {
+		t.Run(c.name, func(t *testing.T) { checkParseRule(t, c) })
+	}
+}
+
+// checkParseRule checks one case of TestParseRules.
+func checkParseRule(t *testing.T, c parseRuleCase) {
+	t.Helper()
+	doc := editSpec(t, c.edit.old, c.edit.new)
+	probs := problemsOf(t, doc)
+	if c.key == "" {
+		if len(probs) != 0 {
+			t.Fatalf("want a valid spec, got %v", probs)
+		}
+		return
+	}
+	if len(probs) != 1 {
+		t.Fatalf("want 1 problem at %s, got %d: %v", c.key, len(probs), probs)
+	}
+	p := probs[0]
+	if p.Key != c.key || !strings.Contains(p.Msg, c.msg) {
+		t.Errorf("problem = %s: %s\nwant      %s: …%s…", p.Key, p.Msg, c.key, c.msg)
+	}
+	if c.line != 0 && (p.Line != c.line || p.Column != c.col) {
+		t.Errorf("position = %d:%d, want %d:%d", p.Line, p.Column, c.line, c.col)
+	}
+}
+
+// edit replaces old by new in the base spec.
+type edit struct{ old, new string }
+
+// parseRuleCase is one case of TestParseRules.
+type parseRuleCase struct {
+	name string
+	edit edit
+	// key and msg (a substring) of the single problem expected; key ""
+	// means the spec is valid. line 0 skips the position check.
+	key       string
+	msg       string
+	line, col int
+}
+
+// parseRuleCases are the cases of TestParseRules.
+func parseRuleCases() []parseRuleCase {
+	return []parseRuleCase{
 		// Identification: required, printed on every report page
 		// (ISO/IEC 17025:2017 §7.8.2.1, unique identification, from memory).
 		{"spec_id missing", edit{"spec_id: T-1\n", ""}, "spec_id", "required", 1, 1},
@@ -197,28 +232,6 @@ func TestParseRules(t *testing.T) {
 		// Unknown and duplicate keys anywhere.
 		{"unknown top-level key", edit{"", "limit: {}\n"}, "limit", "unknown key; valid keys here: spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, decision_rule, response_resolution, model, report", 11, 1},
 		{"duplicate key", edit{"", "spec_id: T-2\n"}, "spec_id", "key given twice (first at line 1)", 11, 1},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			doc := editSpec(t, c.edit.old, c.edit.new)
-			probs := problemsOf(t, doc)
-			if c.key == "" {
-				if len(probs) != 0 {
-					t.Fatalf("want a valid spec, got %v", probs)
-				}
-				return
-			}
-			if len(probs) != 1 {
-				t.Fatalf("want 1 problem at %s, got %d: %v", c.key, len(probs), probs)
-			}
-			p := probs[0]
-			if p.Key != c.key || !strings.Contains(p.Msg, c.msg) {
-				t.Errorf("problem = %s: %s\nwant      %s: …%s…", p.Key, p.Msg, c.key, c.msg)
-			}
-			if c.line != 0 && (p.Line != c.line || p.Column != c.col) {
-				t.Errorf("position = %d:%d, want %d:%d", p.Line, p.Column, c.line, c.col)
-			}
-		})
 	}
 }
 
