@@ -2,31 +2,31 @@ package pdfreport
 
 import "strings"
 
-// BlockKind says how a block of template text is printed.
-type BlockKind int
+// blockKind says how a block of template text is printed.
+type blockKind int
 
 // The kinds of block in a text template such as templates.Cautions.
 const (
-	BlockParagraph BlockKind = iota // lines joined into one paragraph
-	BlockHeading                    // a line starting "# "
-	BlockList                       // lines starting "- ", one item each
+	blockParagraph blockKind = iota // lines joined into one paragraph
+	blockHeading                    // a line starting "# "
+	blockList                       // lines starting "- ", one item each
 )
 
-// Block is one unit of template text. A heading has one line, the text
+// textBlock is one unit of template text. A heading has one line, the text
 // after "# "; a list has one line per item, without the "- "; a paragraph
 // has its lines as written, to be joined with spaces.
-type Block struct {
-	Kind  BlockKind
+type textBlock struct {
+	Kind  blockKind
 	Lines []string
 }
 
-// Blocks splits template text into blocks: blank lines separate blocks, a
+// textBlocks splits template text into blocks: blank lines separate blocks, a
 // line starting "# " is a heading on its own, and a block whose lines start
 // with "- " is a list (a line without the dash continues the item above).
 // The same text reads as Markdown, so it can be pasted into a README.
-func Blocks(text string) []Block {
-	var out []Block
-	var cur *Block
+func textBlocks(text string) []textBlock {
+	var out []textBlock
+	var cur *textBlock
 	flush := func() {
 		if cur != nil && len(cur.Lines) > 0 {
 			out = append(out, *cur)
@@ -40,18 +40,18 @@ func Blocks(text string) []Block {
 			flush()
 		case strings.HasPrefix(line, "# "):
 			flush()
-			out = append(out, Block{Kind: BlockHeading, Lines: []string{strings.TrimSpace(line[2:])}})
+			out = append(out, textBlock{Kind: blockHeading, Lines: []string{strings.TrimSpace(line[2:])}})
 		case strings.HasPrefix(line, "- "):
-			if cur == nil || cur.Kind != BlockList {
+			if cur == nil || cur.Kind != blockList {
 				flush()
-				cur = &Block{Kind: BlockList}
+				cur = &textBlock{Kind: blockList}
 			}
 			cur.Lines = append(cur.Lines, strings.TrimSpace(line[2:]))
 		default:
 			if cur == nil {
-				cur = &Block{Kind: BlockParagraph}
+				cur = &textBlock{Kind: blockParagraph}
 			}
-			if cur.Kind == BlockList {
+			if cur.Kind == blockList {
 				cur.Lines[len(cur.Lines)-1] += " " + line
 			} else {
 				cur.Lines = append(cur.Lines, line)

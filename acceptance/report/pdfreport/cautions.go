@@ -10,11 +10,11 @@ import (
 func (r *report) cautions() {
 	p := r.pdf
 	p.AddPage()
-	for _, blk := range Blocks(templates.Cautions) {
+	for _, blk := range textBlocks(templates.Cautions) {
 		switch blk.Kind {
-		case BlockHeading:
+		case blockHeading:
 			r.heading(blk.Lines[0], 15)
-		case BlockList:
+		case blockList:
 			for _, item := range blk.Lines {
 				r.bullet(item, 9, 4.5)
 			}

@@ -14,13 +14,13 @@ import (
 
 func TestBlocks(t *testing.T) {
 	in := "# Title\n\nFirst line\nsecond line.\n\n- one\n- two\n  continued\n# Next\ntext"
-	got := Blocks(in)
-	want := []Block{
-		{BlockHeading, []string{"Title"}},
-		{BlockParagraph, []string{"First line", "second line."}},
-		{BlockList, []string{"one", "two continued"}},
-		{BlockHeading, []string{"Next"}},
-		{BlockParagraph, []string{"text"}},
+	got := textBlocks(in)
+	want := []textBlock{
+		{blockHeading, []string{"Title"}},
+		{blockParagraph, []string{"First line", "second line."}},
+		{blockList, []string{"one", "two continued"}},
+		{blockHeading, []string{"Next"}},
+		{blockParagraph, []string{"text"}},
 	}
 	if fmt.Sprint(got) != fmt.Sprint(want) {
 		t.Errorf("Blocks = %v\nwant %v", got, want)
@@ -45,8 +45,8 @@ func TestCautions(t *testing.T) {
 			t.Errorf("cautions lack %q", w)
 		}
 	}
-	blocks := Blocks(templates.Cautions)
-	if len(blocks) == 0 || blocks[0].Kind != BlockHeading {
+	blocks := textBlocks(templates.Cautions)
+	if len(blocks) == 0 || blocks[0].Kind != blockHeading {
 		t.Fatalf("cautions should open with a heading, got %v", blocks)
 	}
 	for _, b := range blocks {

@@ -27,11 +27,11 @@ func safety(f *excelize.File, st *styles, d *digest.Digest) error {
 		}
 		if strings.HasPrefix(block, "# ") {
 			w.row++
-			w.set(1, Text(strings.TrimPrefix(block, "# ")), st.bold)
+			w.set(1, cellText(strings.TrimPrefix(block, "# ")), st.bold)
 			w.row++
 			continue
 		}
-		w.set(1, Text(strings.Join(strings.Fields(block), " ")), st.wrap)
+		w.set(1, cellText(strings.Join(strings.Fields(block), " ")), st.wrap)
 		w.row++
 	}
 	if w.err != nil {

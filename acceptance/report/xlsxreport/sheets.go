@@ -137,7 +137,7 @@ func newUnitsLayout(d *digest.Digest) *unitsLayout {
 	}
 	l.header = append(l.header, "step reason", "unit reason")
 	for _, k := range l.cols.meta {
-		l.header = append(l.header, "log: "+Text(k))
+		l.header = append(l.header, "log: "+cellText(k))
 	}
 	l.header = append(l.header, "file SHA-256")
 	l.shaCol = len(l.header)
@@ -169,12 +169,12 @@ func (l *unitsLayout) widths(b *acceptance.Batch) map[int]float64 {
 func (l *unitsLayout) unit(rw *xlsxenc.RowWriter, u *acceptance.UnitResult) error {
 	unitReason := ""
 	if len(u.Reasons) > 0 {
-		unitReason = Text(u.Reasons[0].Text)
+		unitReason = cellText(u.Reasons[0].Text)
 	}
-	unitText, fileText := Text(u.Unit), Text(u.File)
+	unitText, fileText := cellText(u.Unit), cellText(u.File)
 	meta := make([]string, len(l.cols.meta))
 	for j, key := range l.cols.meta {
-		meta[j] = Text(u.Metadata[key])
+		meta[j] = cellText(u.Metadata[key])
 	}
 	n := max(len(u.Steps), 1)
 	for k := 0; k < n; k++ {
@@ -230,7 +230,7 @@ func (l *unitsLayout) step(rw *xlsxenc.RowWriter, s *acceptance.StepResult, unit
 		c += 2
 	}
 	if len(s.Reasons) > 0 {
-		rw.Str(l.reasonCol, Text(s.Reasons[0].Text))
+		rw.Str(l.reasonCol, cellText(s.Reasons[0].Text))
 	}
 }
 
@@ -259,9 +259,9 @@ func streamHead(sw *excelize.StreamWriter, st *styles, header []string, w map[in
 	return sw.SetRow("A1", hdr, excelize.RowOpts{Height: 18})
 }
 
-// CheckRows counts the rows of the Checks sheet: one per limit check of
+// checkRows counts the rows of the Checks sheet: one per limit check of
 // every step of every unit.
-func CheckRows(b *acceptance.Batch) int {
+func checkRows(b *acceptance.Batch) int {
 	n := 0
 	for i := range b.Units {
 		for k := range b.Units[i].Steps {
@@ -276,7 +276,7 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 	const sh = SheetChecks
 	b := d.Batch
 	header := []string{"unit", "file", "step", "metric", "value", "unit of value", "min", "max", "verdict", "reason", "unit verdict"}
-	rows := CheckRows(b)
+	rows := checkRows(b)
 	if err := openTable(f, st, sh, header, rows, "checks", []string{"I", "K"},
 		map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12}); err != nil {
 		return err
@@ -285,7 +285,7 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
 			u := &b.Units[i]
-			unitText, fileText := Text(u.Unit), Text(u.File)
+			unitText, fileText := cellText(u.Unit), cellText(u.File)
 			for k := range u.Steps {
 				s := &u.Steps[k]
 				for _, c := range s.Checks {
@@ -293,18 +293,18 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 					rw.Str(1, unitText)
 					rw.Str(2, fileText)
 					rw.Int(3, s.Index)
-					rw.Str(4, Text(string(c.Metric)))
+					rw.Str(4, cellText(string(c.Metric)))
 					rw.NumPtr(5, c.Value)
 					mu, ok := units[c.Metric]
 					if !ok {
-						mu = Text(digest.MetricUnit(c.Metric, d.ResponseUnit))
+						mu = cellText(digest.MetricUnit(c.Metric, d.ResponseUnit))
 						units[c.Metric] = mu
 					}
 					rw.Str(6, mu)
 					rw.NumPtr(7, c.Min)
 					rw.NumPtr(8, c.Max)
 					rw.Str(9, string(c.Verdict))
-					rw.Str(10, Text(c.Reason))
+					rw.Str(10, cellText(c.Reason))
 					rw.Str(11, string(u.Verdict))
 					if err := rw.End(); err != nil {
 						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.Row(), u.Unit, s.Index, c.Metric, err)
@@ -317,9 +317,9 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 	return nil
 }
 
-// GapRows counts the rows of the Gaps sheet: one per limited metric of
+// gapRows counts the rows of the Gaps sheet: one per limited metric of
 // every step that has a prediction.
-func GapRows(b *acceptance.Batch, limited []metrics.Name) int {
+func gapRows(b *acceptance.Batch, limited []metrics.Name) int {
 	n := 0
 	for i := range b.Units {
 		for k := range b.Units[i].Steps {
@@ -339,7 +339,7 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xls
 	b := d.Batch
 	header := []string{"unit", "file", "step", withUnit("from", d.ResponseUnit), withUnit("to", d.ResponseUnit), "metric", "unit of value",
 		"measured", "predicted", "gap (measured − predicted)", "gap (% of predicted)", "prediction", "check", "note"}
-	rows := GapRows(b, d.Limited)
+	rows := gapRows(b, d.Limited)
 	if err := openTable(f, st, sh, header, rows, "step metrics", []string{"M"},
 		map[int]float64{1: 16, 2: 24, 3: 6, 6: 22, 8: 12, 9: 12, 10: 14, 11: 14, 12: 11, 13: 10, 14: 50}); err != nil {
 		return err
@@ -355,18 +355,18 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xls
 		if i < 0 {
 			return fmt.Errorf("limited metric %q is not a metric", m)
 		}
-		limited = append(limited, column{name: m, text: Text(string(m)), unit: Text(digest.MetricUnit(m, d.ResponseUnit)), idx: i})
+		limited = append(limited, column{name: m, text: cellText(string(m)), unit: cellText(digest.MetricUnit(m, d.ResponseUnit)), idx: i})
 	}
 	bodies[sh] = &xlsxenc.Body{Rows: rows, Cols: len(header), Write: func(rw *xlsxenc.RowWriter) error {
 		for i := range b.Units {
 			u := &b.Units[i]
-			unitText, fileText := Text(u.Unit), Text(u.File)
+			unitText, fileText := cellText(u.Unit), cellText(u.File)
 			for k := range u.Steps {
 				s := &u.Steps[k]
 				if s.Predicted == nil {
 					continue
 				}
-				kind := Text(s.Predicted.Kind)
+				kind := cellText(s.Predicted.Kind)
 				for _, m := range limited {
 					rw.Start()
 					rw.Str(1, unitText)
@@ -398,9 +398,9 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xls
 					}
 					switch {
 					case !meas.OK:
-						rw.Str(14, Text("not measured: "+orWhy(meas.Why, s.Metrics.Reason(m.name))))
+						rw.Str(14, cellText("not measured: "+orWhy(meas.Why, s.Metrics.Reason(m.name))))
 					case !pred.OK:
-						rw.Str(14, Text("not predicted: "+orWhy(pred.Why, s.Predicted.Metrics.Reason(m.name))))
+						rw.Str(14, cellText("not predicted: "+orWhy(pred.Why, s.Predicted.Metrics.Reason(m.name))))
 					}
 					if err := rw.End(); err != nil {
 						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.Row(), u.Unit, s.Index, m.name, err)

@@ -30,8 +30,8 @@ func TestChecksSheet(t *testing.T) {
 	}
 	f := open(t, writeBook(t, b))
 	rows := rowsOf(t, f, SheetChecks)
-	if got := len(rows) - 1; got != want || CheckRows(b) != want {
-		t.Errorf("Checks has %d rows (CheckRows %d), want one per check: %d", got, CheckRows(b), want)
+	if got := len(rows) - 1; got != want || checkRows(b) != want {
+		t.Errorf("Checks has %d rows (checkRows %d), want one per check: %d", got, checkRows(b), want)
 	}
 	if h := strings.Join(rows[0], "|"); h != "unit|file|step|metric|value|unit of value|min|max|verdict|reason|unit verdict" {
 		t.Errorf("Checks header %s", h)
@@ -88,7 +88,7 @@ func TestGapsSheet(t *testing.T) {
 			}
 		}
 	}
-	if len(rows)-1 != steps*len(limited) || GapRows(b, limited) != steps*len(limited) {
+	if len(rows)-1 != steps*len(limited) || gapRows(b, limited) != steps*len(limited) {
 		t.Errorf("Gaps has %d rows, want %d steps × %d metrics", len(rows)-1, steps, len(limited))
 	}
 	for r, row := range rows[1:] {

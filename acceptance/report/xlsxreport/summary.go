@@ -36,7 +36,7 @@ func (w *sheetWriter) set(col int, v interface{}, style int) {
 	ref := cellRef(col, w.row)
 	switch v := v.(type) {
 	case string:
-		w.err = w.f.SetCellStr(w.sh, ref, Text(v))
+		w.err = w.f.SetCellStr(w.sh, ref, cellText(v))
 	default:
 		w.err = w.f.SetCellValue(w.sh, ref, v)
 	}

@@ -43,10 +43,10 @@ func Write(w io.Writer, d *digest.Digest) error {
 	stamp := d.Date.UTC().Format("2006-01-02T15:04:05Z")
 	tool := strings.TrimSpace(b.Tool.Name + " " + b.Tool.Version)
 	if err := f.SetDocProps(&excelize.DocProperties{
-		Created: stamp, Modified: stamp, Creator: Text(tool), LastModifiedBy: Text(tool),
-		Title:      Text(digest.Title + ": " + b.Spec.Title),
-		Subject:    Text(fmt.Sprintf("spec %s rev %s", b.Spec.SpecID, b.Spec.Revision)),
-		Identifier: Text(d.ID), Keywords: Text("step response; acceptance; " + b.Spec.SpecID),
+		Created: stamp, Modified: stamp, Creator: cellText(tool), LastModifiedBy: cellText(tool),
+		Title:      cellText(digest.Title + ": " + b.Spec.Title),
+		Subject:    cellText(fmt.Sprintf("spec %s rev %s", b.Spec.SpecID, b.Spec.Revision)),
+		Identifier: cellText(d.ID), Keywords: cellText("step response; acceptance; " + b.Spec.SpecID),
 	}); err != nil {
 		return fmt.Errorf("xlsxreport: document properties: %w", err)
 	}
@@ -198,11 +198,11 @@ func withUnit(name, unit string) string {
 	return name + " (" + unit + ")"
 }
 
-// Text returns s as a workbook can hold it: characters that XML 1.0 does not
+// cellText returns s as a workbook can hold it: characters that XML 1.0 does not
 // allow in a document (control characters other than tab, line feed and
 // carriage return, and bytes that are not UTF-8) become U+FFFD, so that a
 // damaged serial stays visibly damaged instead of silently shortened.
-func Text(s string) string {
+func cellText(s string) string {
 	ok := true
 	for _, r := range s {
 		if !xmlChar(r) {
@@ -253,7 +253,7 @@ func table(f *excelize.File, sh string, st *styles, first int, rows [][]interfac
 			ref := cellRef(c+1, first+r)
 			var err error
 			if s, ok := v.(string); ok {
-				err = f.SetCellStr(sh, ref, Text(s))
+				err = f.SetCellStr(sh, ref, cellText(s))
 			} else {
 				err = f.SetCellValue(sh, ref, v)
 			}

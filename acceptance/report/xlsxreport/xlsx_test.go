@@ -422,7 +422,7 @@ func TestText(t *testing.T) {
 		{"\uFFFE", "\uFFFD"},
 	}
 	for _, tc := range tests {
-		if got := Text(tc.in); got != tc.want {
+		if got := cellText(tc.in); got != tc.want {
 			t.Errorf("Text(%q) = %q, want %q", tc.in, got, tc.want)
 		}
 	}
