@@ -112,15 +112,19 @@ func trendStore(b *testing.B, total int) *Store {
 
 // BenchmarkTrend100k streams 100,000 recorded units of one spec, with the
 // four limited metrics of every step, as a trend over them reads them.
-func BenchmarkTrend100k(b *testing.B) { benchTrend(b, 100_000) }
+func BenchmarkTrend100k(b *testing.B) { benchTrend(b, 100_000, false) }
+
+// BenchmarkTrend100kMeasured is the same with measured values only, as the
+// control charts read them (no predictions or gaps).
+func BenchmarkTrend100kMeasured(b *testing.B) { benchTrend(b, 100_000, true) }
 
 // BenchmarkTrend20k is the same over 20,000 units, to show how the time grows.
-func BenchmarkTrend20k(b *testing.B) { benchTrend(b, 20_000) }
+func BenchmarkTrend20k(b *testing.B) { benchTrend(b, 20_000, false) }
 
-func benchTrend(b *testing.B, total int) {
+func benchTrend(b *testing.B, total int, measuredOnly bool) {
 	s := trendStore(b, total)
 	ctx := context.Background()
-	f := Filter{SpecID: "VD25-EOL", Steps: true,
+	f := Filter{SpecID: "VD25-EOL", Steps: true, MeasuredOnly: measuredOnly,
 		Metrics: []string{"rise_time_s", "overshoot_pct", "settling_time_s", "steady_state_error"}}
 	b.ResetTimer()
 	var took, cpu time.Duration

@@ -124,10 +124,10 @@ func (st *Step) addTo(k int, m Metric) {
 	}
 }
 
-// placeColumns puts a step row's metric columns into the step's lists. cols
-// are the stepMetrics chosen (indexes into stepMetrics); vals holds three
-// Numbers per chosen metric.
-func placeColumns(st *Step, chosen []int, vals []Number, unknown *string) error {
+// placeColumns puts a step row's metric columns into the step's lists.
+// chosen are indexes into stepMetrics; vals holds the first slots values
+// (measured, then predicted and gap when slots is 3) of each chosen metric.
+func placeColumns(st *Step, chosen []int, slots int, vals []Number, unknown *string) error {
 	var why unknownReasons
 	if unknown != nil {
 		if err := json.Unmarshal([]byte(*unknown), &why); err != nil {
@@ -138,8 +138,8 @@ func placeColumns(st *Step, chosen []int, vals []Number, unknown *string) error 
 		name := stepMetrics[mi]
 		var v [3]Number
 		var reasons [3]*string
-		for k := range 3 {
-			v[k] = vals[3*j+k]
+		for k := range slots {
+			v[k] = vals[slots*j+k]
 			if r, ok := (*why.slot(k))[name]; ok {
 				reasons[k] = &r
 			}
@@ -168,11 +168,12 @@ func splitNames(names []string) (chosen []int, others []string, all bool) {
 	return chosen, others, false
 }
 
-// chosenColumns gives the column names of the chosen step metrics.
-func chosenColumns(chosen []int) string {
+// chosenColumns gives the column names of the chosen step metrics: the
+// first slots of measured, predicted, gap.
+func chosenColumns(chosen []int, slots int) string {
 	var b strings.Builder
 	for _, i := range chosen {
-		for _, p := range slotPrefix {
+		for _, p := range slotPrefix[:slots] {
 			b.WriteString(", ")
 			b.WriteString(p + stepMetrics[i])
 		}

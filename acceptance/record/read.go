@@ -75,7 +75,7 @@ func (s *Store) Attempts(ctx context.Context, serial string) ([]Attempt, error) 
 	if err != nil {
 		return nil, fmt.Errorf("%w (serial %q)", err, serial)
 	}
-	if err := s.attachSteps(ctx, out, nil, true); err != nil {
+	if err := s.attachSteps(ctx, out, allOfSteps); err != nil {
 		return nil, fmt.Errorf("%w (serial %q)", err, serial)
 	}
 	return out, nil
@@ -137,9 +137,12 @@ type Filter struct {
 	// Steps loads each attempt's steps with their metrics, predictions and
 	// gaps; Metrics, when not nil, limits those to these names; Checks
 	// loads the steps' limit checks too.
-	Steps   bool
-	Metrics []string
-	Checks  bool
+	// MeasuredOnly leaves out predictions and gaps (a third of the
+	// columns a trend reads).
+	Steps        bool
+	Metrics      []string
+	Checks       bool
+	MeasuredOnly bool
 }
 
 // where renders the filter as a WHERE clause with its arguments.
@@ -174,36 +177,76 @@ func (f Filter) where(d dialect) (string, []any) {
 // Units streams the attempts that match the filter to fn, in attempt order
 // (start time, file time, recording order; no start time last), without
 // holding them all in memory. fn's error stops the stream and is returned.
+//
+// With Filter.Steps, the attempts are read a page at a time on one
+// connection while the steps of the page before are read on another.
 func (s *Store) Units(ctx context.Context, f Filter, fn func(Attempt) error) error {
 	where, args := f.where(s.d)
-	const page = 1000
-	buf := make([]Attempt, 0, page)
-	emit := func() error {
-		if f.Steps {
-			if err := s.attachSteps(ctx, buf, f.Metrics, f.Checks); err != nil {
-				return err
-			}
+	q := "SELECT " + attemptCols + attemptFrom + where + attemptOrder
+	if !f.Steps {
+		return s.queryAttempts(ctx, q, args, fn)
+	}
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	pages := make(chan []Attempt, 1)
+	scanned := make(chan error, 1)
+	go func() {
+		defer close(pages)
+		scanned <- s.pageAttempts(ctx, q, args, pages)
+	}()
+	err := s.fillPages(ctx, pages, stepLoad{f.Metrics, f.Checks, f.MeasuredOnly}, fn)
+	if err != nil {
+		cancel()
+		for range pages { // let the scan see the cancellation and end
 		}
-		for _, a := range buf {
+		<-scanned
+		return err
+	}
+	return <-scanned
+}
+
+// unitsPage is how many attempts Units reads the steps of at once.
+const unitsPage = 1000
+
+// pageAttempts scans the attempts of a query and sends them in pages.
+func (s *Store) pageAttempts(ctx context.Context, q string, args []any, pages chan<- []Attempt) error {
+	buf := make([]Attempt, 0, unitsPage)
+	send := func() error {
+		select {
+		case pages <- buf:
+			buf = make([]Attempt, 0, unitsPage)
+			return nil
+		case <-ctx.Done():
+			return ctx.Err()
+		}
+	}
+	err := s.queryAttempts(ctx, q, args, func(a Attempt) error {
+		buf = append(buf, a)
+		if len(buf) == unitsPage {
+			return send()
+		}
+		return nil
+	})
+	if err == nil && len(buf) > 0 {
+		err = send()
+	}
+	return err
+}
+
+// fillPages loads the steps of each page of attempts and passes the
+// attempts to fn.
+func (s *Store) fillPages(ctx context.Context, pages <-chan []Attempt, load stepLoad, fn func(Attempt) error) error {
+	for page := range pages {
+		if err := s.attachSteps(ctx, page, load); err != nil {
+			return err
+		}
+		for _, a := range page {
 			if err := fn(a); err != nil {
 				return err
 			}
 		}
-		buf = buf[:0]
-		return nil
 	}
-	err := s.queryAttempts(ctx, "SELECT "+attemptCols+attemptFrom+where+attemptOrder, args,
-		func(a Attempt) error {
-			buf = append(buf, a)
-			if len(buf) == page {
-				return emit()
-			}
-			return nil
-		})
-	if err != nil {
-		return err
-	}
-	return emit()
+	return nil
 }
 
 // decodeJSON decodes a JSON column into v, leaving v nil when the column

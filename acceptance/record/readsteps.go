@@ -12,11 +12,20 @@ type stepKey struct {
 	index   int
 }
 
-// attachSteps loads the steps of the attempts (metrics, predictions, gaps,
-// and checks when asked) and sets them on each attempt's Unit. names, when
-// not nil, limits the metrics loaded. Attempt rows are never changed once recorded, so the
-// steps read here belong to the attempts read before.
-func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string, checks bool) error {
+// stepLoad says what attachSteps loads.
+type stepLoad struct {
+	names        []string // the metrics; nil for all
+	checks       bool     // the limit checks too
+	measuredOnly bool     // no predictions or gaps
+}
+
+// allOfSteps loads everything.
+var allOfSteps = stepLoad{checks: true}
+
+// attachSteps loads the steps of the attempts and sets them on each
+// attempt's Unit. Attempt rows are never changed once recorded, so the steps
+// read here belong to the attempts read before.
+func (s *Store) attachSteps(ctx context.Context, as []Attempt, load stepLoad) error {
 	if len(as) == 0 {
 		return nil
 	}
@@ -26,19 +35,23 @@ func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string, c
 	}
 	steps := map[stepKey]*Step{}
 	byAttempt := map[int64][]*Step{}
-	chosen, others, all := splitNames(names)
-	if err := s.loadStepRows(ctx, ids, chosen, steps, byAttempt); err != nil {
+	chosen, others, all := splitNames(load.names)
+	slots := 3
+	if load.measuredOnly {
+		slots = 1
+	}
+	if err := s.loadStepRows(ctx, ids, chosen, slots, steps, byAttempt); err != nil {
 		return err
 	}
 	if all || len(others) > 0 {
 		if all {
 			others = nil
 		}
-		if err := s.loadMetricRows(ctx, ids, others, steps); err != nil {
+		if err := s.loadMetricRows(ctx, ids, others, slots, steps); err != nil {
 			return err
 		}
 	}
-	if checks {
+	if load.checks {
 		if err := s.loadCheckRows(ctx, ids, steps); err != nil {
 			return err
 		}
@@ -59,16 +72,16 @@ func (s *Store) attachSteps(ctx context.Context, as []Attempt, names []string, c
 
 // loadStepRows reads the steps of the attempts with the chosen metric
 // columns (indexes into stepMetrics).
-func (s *Store) loadStepRows(ctx context.Context, ids []any, chosen []int, steps map[stepKey]*Step, by map[int64][]*Step) error {
+func (s *Store) loadStepRows(ctx context.Context, ids []any, chosen []int, slots int, steps map[stepKey]*Step, by map[int64][]*Step) error {
 	q := `SELECT attempt_id, step_index, start_s, from_level, to_level, verdict, reasons, predicted_kind` +
-		chosenColumns(chosen) + `, unknown FROM step WHERE attempt_id IN (` + marks(len(ids)) + `)
+		chosenColumns(chosen, slots) + `, unknown FROM step WHERE attempt_id IN (` + marks(len(ids)) + `)
 		ORDER BY attempt_id, step_index`
 	rows, err := s.db.QueryContext(ctx, s.d.render(q), ids...)
 	if err != nil {
 		return fmt.Errorf("record: querying steps: %w", err)
 	}
 	defer rows.Close()
-	vals := make([]Number, 3*len(chosen))
+	vals := make([]Number, slots*len(chosen))
 	for rows.Next() {
 		st := &Step{}
 		var id int64
@@ -87,7 +100,7 @@ func (s *Store) loadStepRows(ctx context.Context, ids []any, chosen []int, steps
 		if kind != nil {
 			st.Predicted = &Prediction{Kind: *kind}
 		}
-		if err := placeColumns(st, chosen, vals, unknown); err != nil {
+		if err := placeColumns(st, chosen, slots, vals, unknown); err != nil {
 			return fmt.Errorf("record: attempt %d: %w", id, err)
 		}
 		steps[stepKey{id, st.Index}] = st
@@ -99,7 +112,7 @@ func (s *Store) loadStepRows(ctx context.Context, ids []any, chosen []int, steps
 	return nil
 }
 
-func (s *Store) loadMetricRows(ctx context.Context, ids []any, names []string, steps map[stepKey]*Step) error {
+func (s *Store) loadMetricRows(ctx context.Context, ids []any, names []string, slots int, steps map[stepKey]*Step) error {
 	q := `SELECT attempt_id, step_index, name, measured, measured_reason, predicted, predicted_reason,
 		gap, gap_reason FROM metric WHERE attempt_id IN (` + marks(len(ids)) + `)`
 	args := ids
@@ -129,6 +142,9 @@ func (s *Store) loadMetricRows(ctx context.Context, ids []any, names []string, s
 		st := steps[k]
 		if st == nil {
 			return fmt.Errorf("record: metric %s of attempt %d step %d has no step", name, k.attempt, k.index)
+		}
+		for k := slots; k < 3; k++ {
+			v[k], why[k] = None, nil
 		}
 		placeMetric(st, name, v, why)
 	}

@@ -135,6 +135,10 @@ func TestRoundTrip(t *testing.T) {
 		if got := trend[0].Unit.Steps[1].Metrics; len(got) != 2 || got[1].Name != "zz_jerk" || got[1].Value != Some(1.5) {
 			t.Errorf("trend with a long-form metric: %+v", got)
 		}
+		trend = collect(t, s, Filter{Steps: true, Metrics: []string{"zz_jerk"}, MeasuredOnly: true})
+		if st := trend[0].Unit.Steps[1]; len(st.Metrics) != 1 || st.Gaps != nil {
+			t.Errorf("measured only, long-form metric: %+v", st)
+		}
 		for _, want := range units {
 			got, err := s.Attempts(ctx, want.Serial)
 			if err != nil || len(got) != 1 {

@@ -117,7 +117,8 @@ type Step struct {
 	Gaps      []Metric    // measured minus predicted
 }
 
-// Unit is one attempt of a unit under test: one log file judged once.
+// Unit is one attempt of a unit under test: one log file judged once. Its
+// times are kept in UTC to the microsecond.
 type Unit struct {
 	Serial      string
 	File        string    // the log's path

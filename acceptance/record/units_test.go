@@ -96,6 +96,14 @@ func TestUnitsWithMetrics(t *testing.T) {
 				}
 			}
 		}
+		// Measured values only: the prediction keeps its kind, not its values.
+		for _, a := range collect(t, s, Filter{Lot: "L1", Steps: true, Metrics: []string{"overshoot_pct"}, MeasuredOnly: true}) {
+			st := a.Unit.Steps[0]
+			if len(st.Metrics) != 1 || st.Metrics[0].Name != "overshoot_pct" || st.Gaps != nil ||
+				st.Predicted == nil || st.Predicted.Metrics != nil {
+				t.Errorf("%s measured only: %+v", a.Unit.Serial, st)
+			}
+		}
 		// An error from the callback stops the stream and comes back.
 		stop := errors.New("enough")
 		n := 0
@@ -132,6 +140,19 @@ func TestUnitsAcrossPages(t *testing.T) {
 		})
 		if err != nil || i != -1 {
 			t.Errorf("streamed %d of %d units: %v", n-1-i, n, err)
+		}
+		// A callback error in the middle of the stream ends it, page
+		// reading included.
+		stop, seen := errors.New("enough"), 0
+		err = s.Units(context.Background(), Filter{Steps: true}, func(Attempt) error {
+			seen++
+			if seen == 5 {
+				return stop
+			}
+			return nil
+		})
+		if !errors.Is(err, stop) || seen != 5 {
+			t.Errorf("stopping a stream with steps: %v after %d units", err, seen)
 		}
 		// Without Checks, the steps come without their checks.
 		err = s.Units(context.Background(), Filter{Steps: true, Metrics: []string{}}, func(a Attempt) error {
