@@ -2,6 +2,7 @@ package acceptance
 
 import (
 	"math"
+	"time"
 
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/spec"
@@ -40,6 +41,11 @@ type Batch struct {
 	// Run is how the batch was asked for: the spec's path and the options
 	// that change the reports; nil for a batch not made by the command line.
 	Run *RunInfo `json:"-"`
+
+	// Retests lists the serials tested more than once, each with its
+	// attempts in order (earlier runs' attempts from the line record
+	// included), for the reports' retest tables; set by ChainAttempts.
+	Retests []Retest `json:"-"`
 
 	// SpecDoc is the full spec the batch ran under.
 	SpecDoc *spec.Spec `json:"-"`
@@ -122,12 +128,27 @@ type SpecInfo struct {
 	Title    string `json:"title"`
 }
 
-// Summary counts units by verdict.
+// Summary counts units by verdict, and serials by their attempts.
+//
+// Units, Pass, Fail and Invalid count the log files judged (a retest is a
+// file of its own, and so is a second copy of one log); Serials, Retested
+// and the two yields count serials, each once, over its chain of attempts
+// (see ChainAttempts).
 type Summary struct {
 	Units   int `json:"units"`
 	Pass    int `json:"pass"`
 	Fail    int `json:"fail"`
 	Invalid int `json:"invalid"`
+	// Serials is the number of distinct serials in the batch.
+	Serials int `json:"serials"`
+	// Retested is the number of serials with more than one attempt.
+	Retested int `json:"retested"`
+	// FirstPassYieldPct is the share of serials whose first attempt passed,
+	// in %; nil when the batch has no serial.
+	FirstPassYieldPct *float64 `json:"first_pass_yield_pct"`
+	// FinalYieldPct is the share of serials whose latest attempt passed,
+	// in %; nil when the batch has no serial.
+	FinalYieldPct *float64 `json:"final_yield_pct"`
 }
 
 // UnitResult is one log file's outcome.
@@ -144,6 +165,17 @@ type UnitResult struct {
 
 	// Fit is the identified effective closed loop; nil without a model.
 	Fit *Fit `json:"fit,omitempty"`
+
+	// Attempt is the unit's place in its serial's chain of attempts, 1 for
+	// the first (earlier runs' attempts in the line record included); a
+	// second copy of a log carries the attempt of the copy it repeats.
+	Attempt int `json:"attempt"`
+	// Attempts is the number of attempts of the unit's serial.
+	Attempts int `json:"attempts"`
+
+	// FileTime is the log's modification time, which orders attempts
+	// that carry no start time; zero when unknown.
+	FileTime time.Time `json:"-"`
 
 	// Trace is the record, kept only for units that get a page or a chart.
 	Trace *metrics.Trace `json:"-"`

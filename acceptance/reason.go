@@ -25,6 +25,7 @@ const (
 	NoStep                   // the command never changed by the spec's min_change
 	DuplicateUnit            // the unit id appears in more than one file
 	InternalError            // stepgate failed while judging the log
+	DuplicateFile            // the log is a second copy of another file of the batch (same SHA-256)
 )
 
 // Fails reports whether a reason of kind k is a failure (a limit exceeded)
@@ -109,6 +110,12 @@ func UnusableReason(err error) Reason {
 // DuplicateReason renders a unit id found in other files too.
 func DuplicateReason(unit string, others []string) Reason {
 	return Reason{Kind: DuplicateUnit, Text: fmt.Sprintf("unit id %q also appears in %s", unit, strings.Join(others, ", "))}
+}
+
+// DuplicateFileReason renders a second copy of a log: a file whose bytes
+// are those of first (same SHA-256), one test filed twice.
+func DuplicateFileReason(unit, first string) Reason {
+	return Reason{Kind: DuplicateFile, Text: fmt.Sprintf("unit id %q: this file is a copy of %s (same SHA-256), one test filed twice; counted once as an attempt", unit, first)}
 }
 
 // InternalReason renders a failure of stepgate itself while judging a log.

@@ -30,6 +30,9 @@ type badCase struct {
 	// reason (the one the PDF's unit table shows).
 	verdict acceptance.Verdict
 	reason  string
+	// verdictOf, when set, gives the verdict of the named files (base
+	// names) instead of verdict: a case whose files differ.
+	verdictOf map[string]acceptance.Verdict
 	// check, when set, runs extra checks on each of the case's units.
 	check func(t *testing.T, b *acceptance.Batch, u acceptance.UnitResult)
 }
@@ -157,7 +160,7 @@ func badRecordCases() []badCase {
 
 // goodInDisguiseCases are the cases of good data in another dress, traceability and the file system.
 func goodInDisguiseCases() []badCase {
-	inv, pass := acceptance.Invalid, acceptance.Pass
+	inv, fail, pass := acceptance.Invalid, acceptance.Fail, acceptance.Pass
 	return []badCase{
 		// Good data in another dress: they pass, with the good log's metrics.
 		{name: "CRLF line ends and a byte-order mark", files: []string{"crlf_bom.csv"}, verdict: pass, check: sameStepsAsGood},
@@ -170,7 +173,20 @@ func goodInDisguiseCases() []badCase {
 			}},
 
 		// Traceability.
-		{name: "same serial in two files", files: []string{"duplicate_serial_a.csv", "duplicate_serial_b.csv"}, verdict: inv, reason: `unit id "DUP-0001" also appears in `},
+		{name: "one log filed twice", files: []string{"duplicate_serial_a.csv", "duplicate_serial_b.csv"}, verdict: inv,
+			verdictOf: map[string]acceptance.Verdict{"duplicate_serial_a.csv": pass},
+			reason:    `unit id "DUP-0001": this file is a copy of ` + filepath.Join(badDir, "duplicate_serial_a.csv"),
+			check:     chainCheck(1, 2)},
+		{name: "a retest", files: []string{"retest_1.csv", "retest_2.csv"}, verdict: fail,
+			verdictOf: map[string]acceptance.Verdict{"retest_2.csv": pass},
+			reason:    "settling_time_s > 0.5 at step 1", check: chainCheck(2, 1)},
+		{name: "two logs of one serial with one start time", files: []string{"clash_a.csv", "clash_b.csv"}, verdict: fail,
+			verdictOf: map[string]acceptance.Verdict{"clash_a.csv": inv},
+			check: func(t *testing.T, b *acceptance.Batch, u acceptance.UnitResult) {
+				if last(u.Reasons).Kind != acceptance.DuplicateUnit || !strings.Contains(last(u.Reasons).Text, `unit id "CLASH-0001" also appears in `) {
+					t.Errorf("%s: last reason %q, want the clash", u.File, last(u.Reasons).Text)
+				}
+			}},
 
 		// The file system.
 		{name: "directory symlink loop", make: loopCase, verdict: inv, reason: "too many levels of symbolic links"},
@@ -353,4 +369,44 @@ func writeCase(t *testing.T, path string, data []byte) string {
 		t.Fatal(err)
 	}
 	return path
+}
+
+// last returns the last of rs, or the zero Reason.
+func last(rs []acceptance.Reason) acceptance.Reason {
+	if len(rs) == 0 {
+		return acceptance.Reason{}
+	}
+	return rs[len(rs)-1]
+}
+
+// chainCheck checks a case whose files are one serial: it has attempts
+// attempts, and with the good log (one serial passing at its first
+// attempt) the batch has 2 serials, one retested when attempts > 1, and
+// firstPass of them passing at the first attempt. The yields are the
+// common-practice definitions (common practice, no source): first-pass
+// yield counts serials whose first attempt passed, final yield serials
+// whose latest attempt passed; both of the batch's serials end passing.
+func chainCheck(attempts, firstPass int) func(t *testing.T, b *acceptance.Batch, u acceptance.UnitResult) {
+	return func(t *testing.T, b *acceptance.Batch, u acceptance.UnitResult) {
+		t.Helper()
+		s := b.Summary
+		if u.Attempts != attempts || u.Attempt < 1 || u.Attempt > attempts {
+			t.Errorf("%s: attempt %d of %d, want one of %d", u.File, u.Attempt, u.Attempts, attempts)
+		}
+		if s.Serials != 2 || s.Retested != min(attempts-1, 1) {
+			t.Errorf("serials %d, retested %d; want 2 and %d", s.Serials, s.Retested, min(attempts-1, 1))
+		}
+		fp, fy := 100*float64(firstPass)/2, 100.0
+		if s.FirstPassYieldPct == nil || *s.FirstPassYieldPct != fp || s.FinalYieldPct == nil || *s.FinalYieldPct != fy {
+			t.Errorf("yields %v, %v; want %v %%, %v %%", deref(s.FirstPassYieldPct), deref(s.FinalYieldPct), fp, fy)
+		}
+	}
+}
+
+// deref is *p, or NaN for nil.
+func deref(p *float64) float64 {
+	if p == nil {
+		return math.NaN()
+	}
+	return *p
 }

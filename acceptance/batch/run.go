@@ -189,16 +189,17 @@ func (r *runner) judge(src logs.Source, path string) (acceptance.UnitResult, int
 	return u, n
 }
 
-// assemble orders the units, flags duplicate unit ids and builds the
-// batch around them.
+// assemble orders the units by serial and, within a serial, as attempts
+// (start time, else file time, then file), flags copies and clashing
+// attempts, numbers the attempts and builds the batch around them.
 func (r *runner) assemble(results []acceptance.UnitResult) *acceptance.Batch {
 	sort.SliceStable(results, func(i, j int) bool {
 		if results[i].Unit != results[j].Unit {
 			return results[i].Unit < results[j].Unit
 		}
-		return results[i].File < results[j].File
+		return acceptance.CompareAttempts(&results[i], &results[j]) < 0
 	})
-	flagDuplicateSerials(results)
+	flagDuplicates(results)
 	sp := r.sp
 	b := &acceptance.Batch{
 		Tool:      r.o.Tool,
@@ -214,6 +215,7 @@ func (r *runner) assemble(results []acceptance.UnitResult) *acceptance.Batch {
 	if b.Limits == nil {
 		b.Limits = map[metrics.Name]spec.Limit{}
 	}
+	acceptance.ChainAttempts(b, nil)
 	b.ReportDate = r.o.ReportDate
 	if b.ReportDate == "" {
 		b.ReportDate = b.TestDates.Last
@@ -246,6 +248,9 @@ func judgeFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predic
 // reader's buffers until its next file.
 func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *predictor, cs *curveSampler, path string, policy TracePolicy) (acceptance.UnitResult, int64, *metrics.Trace) {
 	u := acceptance.UnitResult{File: path, Unit: unitFromPath(path), Metadata: map[string]string{}, Reasons: []acceptance.Reason{}, Steps: []acceptance.StepResult{}}
+	if fi, err := os.Stat(path); err == nil {
+		u.FileTime = fi.ModTime().UTC()
+	}
 	lg, err := rd.ReadFile(path)
 	if lg != nil {
 		u.SHA256 = lg.SHA256
@@ -355,31 +360,72 @@ func unitFromPath(path string) string {
 	return strings.TrimSuffix(base, filepath.Ext(base))
 }
 
-// flagDuplicateSerials adds a reason to every unit whose id appears in more
-// than one file. Units are sorted by id, so duplicates are adjacent. Both
-// files are kept; a duplicate serial is a traceability problem, so a unit
-// that would pass is made invalid.
-func flagDuplicateSerials(units []acceptance.UnitResult) {
+// flagDuplicates flags, within each serial (units are sorted by serial,
+// then as attempts, so a serial's files are adjacent):
+//
+//   - a second copy of a log (the same SHA-256 as an earlier file of the
+//     serial): one test filed twice, which counts as one attempt; the copy
+//     gets a DuplicateFile reason;
+//   - two different logs claiming the same start time: they cannot both be
+//     attempts of one unit, a traceability problem; each gets a
+//     DuplicateUnit reason naming the others.
+//
+// Other files of one serial are retests, not duplicates. Flagged files are
+// kept, and a flagged unit that would pass is made invalid.
+func flagDuplicates(units []acceptance.UnitResult) {
 	for i := 0; i < len(units); {
 		j := i + 1
 		for j < len(units) && units[j].Unit == units[i].Unit {
 			j++
 		}
 		if j-i > 1 {
-			for k := i; k < j; k++ {
-				var others []string
-				for m := i; m < j; m++ {
-					if m != k {
-						others = append(others, units[m].File)
-					}
-				}
-				units[k].Reasons = append(units[k].Reasons, acceptance.DuplicateReason(units[k].Unit, others))
-				if units[k].Verdict == acceptance.Pass {
-					units[k].Verdict = acceptance.Invalid
-				}
-			}
+			flagSerial(units[i:j])
 		}
 		i = j
+	}
+}
+
+// flagSerial flags the copies and start-time clashes among the files of
+// one serial.
+func flagSerial(us []acceptance.UnitResult) {
+	first := map[string]string{}
+	var attempts []int
+	for k := range us {
+		u := &us[k]
+		if f, ok := first[u.SHA256]; ok && u.SHA256 != "" {
+			flag(u, acceptance.DuplicateFileReason(u.Unit, f))
+			continue
+		}
+		first[u.SHA256] = u.File
+		attempts = append(attempts, k)
+	}
+	byStart := map[time.Time][]int{}
+	for _, k := range attempts {
+		if t := acceptance.StartedAt(us[k].Metadata); !t.IsZero() {
+			byStart[t] = append(byStart[t], k)
+		}
+	}
+	for _, k := range attempts {
+		same := byStart[acceptance.StartedAt(us[k].Metadata)]
+		if len(same) < 2 {
+			continue
+		}
+		var others []string
+		for _, m := range same {
+			if m != k {
+				others = append(others, us[m].File)
+			}
+		}
+		flag(&us[k], acceptance.DuplicateReason(us[k].Unit, others))
+	}
+}
+
+// flag adds a traceability reason to u; a unit that would pass is made
+// invalid.
+func flag(u *acceptance.UnitResult, r acceptance.Reason) {
+	u.Reasons = append(u.Reasons, r)
+	if u.Verdict == acceptance.Pass {
+		u.Verdict = acceptance.Invalid
 	}
 }
 

@@ -257,9 +257,16 @@ func main() {
 	put("quoted_header.csv", fmt.Sprintf(first, "BAD-QUOTED")+`"t","cmd","pos","effort"`+"\n"+rows(g))
 	put("bad_started_at.csv", strings.Replace(log("BAD-DATEMETA", g), "2026-11-30T06:00:00Z", "2026-13-45T06:00:00Z", 1))
 
-	// The same serial in two files.
+	// The same serial in two files: one log filed twice (identical bytes).
 	put("duplicate_serial_a.csv", log("DUP-0001", g))
 	put("duplicate_serial_b.csv", log("DUP-0001", g))
+	// A retest: a unit failed at 06:00, reworked and passed at 07:00.
+	osc := withResponse(func(tau float64) float64 { return size * (1 - math.Cos(wn*tau)) })
+	put("retest_1.csv", log("RETEST-0001", osc))
+	put("retest_2.csv", strings.Replace(log("RETEST-0001", g), "T06:00:00Z", "T07:00:00Z", 1))
+	// Two different logs claiming one serial and one start time.
+	put("clash_a.csv", log("CLASH-0001", g))
+	put("clash_b.csv", log("CLASH-0001", osc))
 
 	for name, text := range files {
 		if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {

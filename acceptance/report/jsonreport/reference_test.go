@@ -55,10 +55,14 @@ type refRun struct {
 }
 
 type refSummary struct {
-	Units   int `json:"units"`
-	Pass    int `json:"pass"`
-	Fail    int `json:"fail"`
-	Invalid int `json:"invalid"`
+	Units             int      `json:"units"`
+	Pass              int      `json:"pass"`
+	Fail              int      `json:"fail"`
+	Invalid           int      `json:"invalid"`
+	Serials           int      `json:"serials"`
+	Retested          int      `json:"retested"`
+	FirstPassYieldPct *float64 `json:"first_pass_yield_pct"`
+	FinalYieldPct     *float64 `json:"final_yield_pct"`
 }
 
 type refLimit struct {
@@ -80,6 +84,8 @@ type refUnit struct {
 	Reasons  []string          `json:"reasons"`
 	Steps    []refStep         `json:"steps"`
 	Samples  int               `json:"samples"`
+	Attempt  int               `json:"attempt"`
+	Attempts int               `json:"attempts"`
 	Fit      *refFit           `json:"fit,omitempty"`
 }
 
@@ -197,9 +203,10 @@ func referenceJSON(t testing.TB, b *acceptance.Batch) []byte {
 func refOf(b *acceptance.Batch) *refBatch {
 	r := &refBatch{
 		SchemaVersion: 1, ReportID: digest.ReportID(b), MetricUnits: map[string]*string{},
-		Tool:       refTool{b.Tool.Name, b.Tool.Version},
-		Spec:       refSpec{SpecID: b.Spec.SpecID, Revision: b.Spec.Revision, SHA256: b.Spec.SHA256, Title: b.Spec.Title},
-		Summary:    refSummary{b.Summary.Units, b.Summary.Pass, b.Summary.Fail, b.Summary.Invalid},
+		Tool: refTool{b.Tool.Name, b.Tool.Version},
+		Spec: refSpec{SpecID: b.Spec.SpecID, Revision: b.Spec.Revision, SHA256: b.Spec.SHA256, Title: b.Spec.Title},
+		Summary: refSummary{b.Summary.Units, b.Summary.Pass, b.Summary.Fail, b.Summary.Invalid,
+			b.Summary.Serials, b.Summary.Retested, b.Summary.FirstPassYieldPct, b.Summary.FinalYieldPct},
 		ReportDate: b.ReportDate, Notice: b.Notice,
 		TestDates: refDates{b.TestDates.First, b.TestDates.Last},
 	}
@@ -236,7 +243,8 @@ func refOf(b *acceptance.Batch) *refBatch {
 }
 
 func refOfUnit(u *acceptance.UnitResult) refUnit {
-	r := refUnit{Unit: u.Unit, File: u.File, SHA256: u.SHA256, Metadata: u.Metadata, Verdict: string(u.Verdict), Reasons: refReasons(u.Reasons), Samples: u.Samples}
+	r := refUnit{Unit: u.Unit, File: u.File, SHA256: u.SHA256, Metadata: u.Metadata, Verdict: string(u.Verdict), Reasons: refReasons(u.Reasons), Samples: u.Samples,
+		Attempt: u.Attempt, Attempts: u.Attempts}
 	if u.Steps != nil {
 		r.Steps = make([]refStep, len(u.Steps))
 		for i := range u.Steps {

@@ -72,6 +72,10 @@ func (e *encoder) unit(d int, u *acceptance.UnitResult) {
 	e.Array(m, u.Steps == nil, len(u.Steps), func(i int) { e.step(m+1, &u.Steps[i]) })
 	e.Member(m, `"samples": `)
 	e.Int(u.Samples)
+	e.Member(m, `"attempt": `)
+	e.Int(u.Attempt)
+	e.Member(m, `"attempts": `)
+	e.Int(u.Attempts)
 	if u.Fit != nil {
 		e.Member(m, `"fit": `)
 		e.fit(m, u.Fit)

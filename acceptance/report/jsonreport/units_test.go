@@ -12,6 +12,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/batch"
@@ -242,7 +243,8 @@ func fixtureUnits() []acceptance.UnitResult {
 				{Text: awkward[2]},
 			},
 			Steps:   []acceptance.StepResult{full, allKnown, bare, zeroStep},
-			Samples: 3500,
+			Samples: 3500, Attempt: 2, Attempts: 3,
+			FileTime: time.Date(2026, 11, 30, 6, 0, 0, 0, time.UTC),
 			Fit: &acceptance.Fit{
 				Step: 1, StaticGain: metrics.Known(1.0000000000000002), Damping: metrics.Known(0.45),
 				NaturalFrequency: metrics.Known(1.7976931348623157e308), DeadTime: metrics.Known(5e-324),
@@ -318,8 +320,9 @@ func fieldKey(t reflect.Type, f reflect.StructField) string {
 // leaves out: records and chart curves kept for the other reports. The
 // fixture still sets them, to show that they stay out.
 var notInResults = map[string]bool{
-	"acceptance.UnitResult.Trace": true,
-	"acceptance.StepResult.Curve": true,
+	"acceptance.UnitResult.Trace":    true,
+	"acceptance.StepResult.Curve":    true,
+	"acceptance.UnitResult.FileTime": true,
 }
 
 // encoded reports whether results.json holds field f of type t.

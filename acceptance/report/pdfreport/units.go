@@ -99,6 +99,8 @@ func (r *report) unitTable() {
 			txt(strconv.Itoa(len(u.Steps))), verdictCell(u.Verdict), txt(reason),
 		}
 	}
+	r.retests()
+	p.Ln(3)
 	if len(r.b.Units) == 0 {
 		r.heading("Units", 10)
 		r.para("The batch has no units.", 9, 4.6, black)

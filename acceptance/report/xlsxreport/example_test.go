@@ -52,6 +52,6 @@ func ExampleWrite() {
 	rows, _ := f.GetRows(xlsxreport.SheetUnits)
 	fmt.Printf("%s | %s | %s | %q\n", rows[1][0], rows[0][15], rows[1][15], rows[1][16])
 	// Output:
-	// [Summary Units Checks Limits Safety]
+	// [Summary Units Checks Retests Limits Safety]
 	// =1+1 | overshoot_pct (%) | 44.43 | ""
 }

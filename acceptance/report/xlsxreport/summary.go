@@ -153,6 +153,20 @@ func summaryResult(w *sheetWriter, d *digest.Digest) {
 		w.set(3, "not defined: "+d.Yield.Why, 0)
 		w.row++
 	}
+	w.pair("serials", s.Serials, 0)
+	w.pair("serials retested", s.Retested, 0)
+	for _, y := range []struct {
+		label string
+		pct   *float64
+	}{{"first-pass yield (of serials)", s.FirstPassYieldPct}, {"final yield (of serials)", s.FinalYieldPct}} {
+		if y.pct != nil {
+			w.pair(y.label, *y.pct/100, st.percent)
+		} else {
+			w.set(1, y.label, st.label)
+			w.set(3, "not defined: the batch has no units", 0)
+			w.row++
+		}
+	}
 }
 
 // summaryStats writes the capability table: the statistics of every

@@ -63,6 +63,7 @@ func Write(w io.Writer, d *digest.Digest) error {
 		{SheetUnits, func() error { return units(f, st, d, bodies) }},
 		{SheetChecks, func() error { return checks(f, st, d, bodies) }},
 		{SheetGaps, func() error { return gaps(f, st, d, bodies) }},
+		{SheetRetests, func() error { return retests(f, st, d) }},
 		{SheetLimits, func() error { return limits(f, st, d) }},
 		{SheetModel, func() error { return modelSheet(f, st, d) }},
 		{SheetSafety, func() error { return safety(f, st, d) }},

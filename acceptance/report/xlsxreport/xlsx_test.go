@@ -172,7 +172,7 @@ func ref(c, r int) string { s, _ := excelize.CoordinatesToCellName(c, r); return
 
 func TestWorkbookLayout(t *testing.T) {
 	f := open(t, writeBook(t, testBatch()))
-	if got, want := strings.Join(f.GetSheetList(), ","), "Summary,Units,Checks,Gaps,Limits,Model,Safety"; got != want {
+	if got, want := strings.Join(f.GetSheetList(), ","), "Summary,Units,Checks,Gaps,Retests,Limits,Model,Safety"; got != want {
 		t.Errorf("sheets %s, want %s", got, want)
 	}
 	rows, err := f.GetRows(SheetUnits)
@@ -396,7 +396,7 @@ func TestEmptyBatch(t *testing.T) {
 	b := testBatch()
 	b.Units, b.Summary, b.Model = nil, acceptance.Summary{}, nil
 	f := open(t, writeBook(t, b))
-	if got := strings.Join(f.GetSheetList(), ","); got != "Summary,Units,Checks,Limits,Safety" {
+	if got := strings.Join(f.GetSheetList(), ","); got != "Summary,Units,Checks,Retests,Limits,Safety" {
 		t.Errorf("sheets %s", got)
 	}
 	rows, _ := f.GetRows(SheetSummary)
@@ -467,4 +467,34 @@ func writeBatch(w io.Writer, b *acceptance.Batch) error {
 		return err
 	}
 	return Write(w, d)
+}
+
+// The Retests sheet lists every attempt of a retested serial with its
+// disposition; the Summary gives both yields over serials.
+func TestRetestsSheet(t *testing.T) {
+	b := testBatch()
+	fp, fy := 50.0, 100.0
+	b.Summary.Serials, b.Summary.Retested, b.Summary.FirstPassYieldPct, b.Summary.FinalYieldPct = 2, 1, &fp, &fy
+	b.Retests = []acceptance.Retest{{Serial: "S-1", Attempts: []acceptance.RetestAttempt{
+		{Attempt: 1, File: "old/S-1.csv", Verdict: acceptance.Fail, Earlier: true},
+		{Attempt: 2, File: "S-1b.csv", Verdict: acceptance.Pass},
+	}}}
+	f := open(t, writeBook(t, b))
+	rows, err := f.GetRows(SheetRetests)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 3 || rows[1][0] != "S-1" || rows[1][1] != "1" || rows[1][6] != "an earlier run" || rows[2][3] != "S-1b.csv" || rows[2][7] != "pass" {
+		t.Errorf("Retests rows %q", rows)
+	}
+	sum, _ := f.GetRows(SheetSummary)
+	found := 0
+	for _, r := range sum {
+		if len(r) > 1 && (r[0] == "first-pass yield (of serials)" && r[1] == "50.0%" || r[0] == "final yield (of serials)" && r[1] == "100.0%") {
+			found++
+		}
+	}
+	if found != 2 {
+		t.Errorf("Summary lacks the yields: %q", sum)
+	}
 }
