@@ -53,10 +53,10 @@ func TestRunEndToEnd(t *testing.T) {
 
 // e2eResults is the part of results.json TestRunEndToEnd reads.
 type e2eResults struct {
-	Tool    map[string]string `json:"tool"`
-	Spec    map[string]string `json:"spec"`
-	Summary map[string]int    `json:"summary"`
-	Units   []e2eUnit         `json:"units"`
+	Tool    map[string]string  `json:"tool"`
+	Spec    map[string]string  `json:"spec"`
+	Summary map[string]float64 `json:"summary"`
+	Units   []e2eUnit          `json:"units"`
 }
 
 type e2eUnit struct {
