@@ -101,11 +101,11 @@ func StartIndex(tr *metrics.Trace, startS float64) (int, error) {
 	return best, nil
 }
 
-// CommandStart returns the first sample of a simulated record at which the
+// commandStart returns the first sample of a simulated record at which the
 // command is nearer to the level after the step, to, than to the level
 // before it, from: the step instant. It is 0 when the record starts at the
 // new level.
-func CommandStart(tr *metrics.Trace, from, to float64) (int, error) {
+func commandStart(tr *metrics.Trace, from, to float64) (int, error) {
 	for i, c := range tr.Command {
 		if math.Abs(c-to) < math.Abs(c-from) {
 			return i, nil
@@ -201,9 +201,9 @@ func ForBatch(b *acceptance.Batch) *Overlay {
 	return build(b, idx)
 }
 
-// ForUnit lays out the steps of unit number i of the batch (an index into
+// forUnit lays out the steps of unit number i of the batch (an index into
 // b.Units) with the model's predictions.
-func ForUnit(b *acceptance.Batch, i int) *Overlay {
+func forUnit(b *acceptance.Batch, i int) *Overlay {
 	return build(b, []int{i})
 }
 
@@ -424,7 +424,7 @@ func predictionSegments(b *acceptance.Batch, o *Overlay) []segment {
 			o.Skipped = append(o.Skipped, label+": the step has no size to normalise by")
 			continue
 		}
-		start, err := CommandStart(tr, n.From, n.To)
+		start, err := commandStart(tr, n.From, n.To)
 		if err != nil {
 			o.Skipped = append(o.Skipped, label+": "+err.Error())
 			continue

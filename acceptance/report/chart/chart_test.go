@@ -81,9 +81,9 @@ func TestCommandStart(t *testing.T) {
 		{[]float64{0, 0, 0}, 0, 10, 0, false},
 	}
 	for _, tc := range tests {
-		got, err := CommandStart(&metrics.Trace{Command: tc.cmd}, tc.from, tc.to)
+		got, err := commandStart(&metrics.Trace{Command: tc.cmd}, tc.from, tc.to)
 		if (err == nil) != tc.ok || (tc.ok && got != tc.want) {
-			t.Errorf("CommandStart(%v, %v → %v) = %d, %v; want %d (ok %v)", tc.cmd, tc.from, tc.to, got, err, tc.want, tc.ok)
+			t.Errorf("commandStart(%v, %v → %v) = %d, %v; want %d (ok %v)", tc.cmd, tc.from, tc.to, got, err, tc.want, tc.ok)
 		}
 	}
 }
@@ -225,8 +225,8 @@ func TestForBatch(t *testing.T) {
 		t.Errorf("skipped %v", o.Skipped)
 	}
 
-	if o := ForUnit(overlayBatch(), 1); o.Steps != 1 || o.Shown != 1 || len(o.Curves) != 2 {
-		t.Errorf("ForUnit: steps %d shown %d curves %d, want 1, 1, 2", o.Steps, o.Shown, len(o.Curves))
+	if o := forUnit(overlayBatch(), 1); o.Steps != 1 || o.Shown != 1 || len(o.Curves) != 2 {
+		t.Errorf("forUnit: steps %d shown %d curves %d, want 1, 1, 2", o.Steps, o.Shown, len(o.Curves))
 	}
 }
 
@@ -269,7 +269,7 @@ func TestNiceTicks(t *testing.T) {
 	}
 	for _, tc := range tests {
 		var labels []string
-		for _, tk := range (NiceTicks{}).Ticks(tc.min, tc.max) {
+		for _, tk := range (niceTicks{}).Ticks(tc.min, tc.max) {
 			if tk.Label != "" {
 				labels = append(labels, tk.Label)
 			}

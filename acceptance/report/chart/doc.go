@@ -14,7 +14,7 @@
 // their peaks (Downsample); a unit figure keeps every sample of its
 // windows, and Panel.Reduced thins them to what the plot's size on paper
 // shows (Envelope, then only the samples a line needs to pass within
-// TolMM of every other). A figure holds a bounded number of curves
+// a fraction of a millimetre of every other). A figure holds a bounded number of curves
 // whatever the batch size.
 // The package draws nothing itself: a report writer renders the returned
 // plot on its own canvas (vector graphics in the PDF report). It never

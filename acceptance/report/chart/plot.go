@@ -17,11 +17,11 @@ import (
 // prediction black and heavier so that it also stands out in a greyscale
 // print. Verdicts are also spelt out in every table.
 var (
-	ColourPass       = color.RGBA{R: 0x44, G: 0x77, B: 0xAA, A: 0xFF}
-	ColourFail       = color.RGBA{R: 0xCC, G: 0x33, B: 0x11, A: 0xFF}
-	ColourInvalid    = color.RGBA{R: 0xEE, G: 0x77, B: 0x33, A: 0xFF}
-	ColourPrediction = color.RGBA{A: 0xFF}
-	ColourBand       = color.RGBA{R: 0xDD, G: 0xEE, B: 0xDD, A: 0xFF}
+	colourPass       = color.RGBA{R: 0x44, G: 0x77, B: 0xAA, A: 0xFF}
+	colourFail       = color.RGBA{R: 0xCC, G: 0x33, B: 0x11, A: 0xFF}
+	colourInvalid    = color.RGBA{R: 0xEE, G: 0x77, B: 0x33, A: 0xFF}
+	colourPrediction = color.RGBA{A: 0xFF}
+	colourBand       = color.RGBA{R: 0xDD, G: 0xEE, B: 0xDD, A: 0xFF}
 	colourBandEdge   = color.RGBA{R: 0x55, G: 0x88, B: 0x55, A: 0xFF}
 	colourGrid       = color.RGBA{R: 0xDD, G: 0xDD, B: 0xDD, A: 0xFF}
 )
@@ -38,8 +38,8 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 	setFonts(p)
 	p.X.Label.Text = "time from the step instant (s)"
 	p.Y.Label.Text = "normalised response"
-	p.X.Tick.Marker = NiceTicks{}
-	p.Y.Tick.Marker = NiceTicks{}
+	p.X.Tick.Marker = niceTicks{}
+	p.Y.Tick.Marker = niceTicks{}
 	p.BackgroundColor = color.White
 
 	grid := plotter.NewGrid()
@@ -56,7 +56,7 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 	if err != nil {
 		return nil, fmt.Errorf("chart: settling band: %w", err)
 	}
-	band.Color = ColourBand
+	band.Color = colourBand
 	band.LineStyle.Color = colourBandEdge
 	band.LineStyle.Width = vg.Points(0.5)
 	band.LineStyle.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
@@ -111,14 +111,14 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 func styleLine(l *plotter.Line, k Kind) {
 	switch k {
 	case StepPass:
-		l.Color, l.Width = ColourPass, vg.Points(0.6)
+		l.Color, l.Width = colourPass, vg.Points(0.6)
 	case StepInvalid:
-		l.Color, l.Width = ColourInvalid, vg.Points(0.9)
+		l.Color, l.Width = colourInvalid, vg.Points(0.9)
 		l.Dashes = []vg.Length{vg.Points(3), vg.Points(1.5)}
 	case StepFail:
-		l.Color, l.Width = ColourFail, vg.Points(0.9)
+		l.Color, l.Width = colourFail, vg.Points(0.9)
 	case Prediction:
-		l.Color, l.Width = ColourPrediction, vg.Points(1.6)
+		l.Color, l.Width = colourPrediction, vg.Points(1.6)
 	}
 }
 
@@ -139,13 +139,13 @@ func pct(f float64) string {
 	return strconv.FormatFloat(f*100, 'g', 4, 64) + " %"
 }
 
-// NiceTicks marks an axis every 1, 2 or 5 times a power of ten: the widest
+// niceTicks marks an axis every 1, 2 or 5 times a power of ten: the widest
 // such spacing that still gives at least five labelled ticks, with an
 // unlabelled tick halfway between labels.
-type NiceTicks struct{}
+type niceTicks struct{}
 
 // Ticks returns the ticks for the range min..max.
-func (NiceTicks) Ticks(min, max float64) []plot.Tick {
+func (niceTicks) Ticks(min, max float64) []plot.Tick {
 	if !(max > min) {
 		return []plot.Tick{{Value: min, Label: strconv.FormatFloat(min, 'g', 4, 64)}}
 	}

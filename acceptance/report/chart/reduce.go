@@ -2,21 +2,21 @@ package chart
 
 import "math"
 
-// TolMM is how far on paper, in millimetres, a line through the samples
+// tolMM is how far on paper, in millimetres, a line through the samples
 // a unit figure keeps may pass from a sample it leaves out: a twentieth of
 // the 1 pt response line and half a dot of a 600 dpi printer.
-const TolMM = 0.02
+const tolMM = 0.02
 
-// BucketMM is the width on paper, in millimetres, of one bucket of a
+// bucketMM is the width on paper, in millimetres, of one bucket of a
 // series reduced with Envelope for a unit figure: less than two widths of
 // the 1 pt (0.35 mm) response line, and within each the reduced line
 // still reaches the bucket's lowest and highest sample.
-const BucketMM = 0.5
+const bucketMM = 0.5
 
-// Buckets returns the number of Envelope buckets for a plot w millimetres
+// bucketCount returns the number of Envelope buckets for a plot w millimetres
 // wide on paper, at least one.
-func Buckets(w float64) int {
-	n := int(math.Ceil(w / BucketMM))
+func bucketCount(w float64) int {
+	n := int(math.Ceil(w / bucketMM))
 	if n < 1 {
 		return 1
 	}

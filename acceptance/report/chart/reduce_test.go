@@ -196,8 +196,8 @@ func TestBuckets(t *testing.T) {
 		w    float64
 		want int
 	}{{87, 174}, {180, 360}, {0.1, 1}, {0, 1}, {-5, 1}} {
-		if got := Buckets(tc.w); got != tc.want {
-			t.Errorf("Buckets(%v) = %d, want %d", tc.w, got, tc.want)
+		if got := bucketCount(tc.w); got != tc.want {
+			t.Errorf("bucketCount(%v) = %d, want %d", tc.w, got, tc.want)
 		}
 	}
 }

@@ -20,9 +20,9 @@ const MaxBars = 10
 
 // Colours of the summary charts.
 var (
-	ColourBars      = color.RGBA{R: 0x44, G: 0x77, B: 0xAA, A: 0xFF} // histogram bars, as passed steps
-	ColourLimit     = ColourFail                                     // limit lines
-	ColourPredicted = ColourPrediction                               // predicted value
+	colourBars      = color.RGBA{R: 0x44, G: 0x77, B: 0xAA, A: 0xFF} // histogram bars, as passed steps
+	colourLimit     = colourFail                                     // limit lines
+	colourPredicted = colourPrediction                               // predicted value
 	colourMean      = color.RGBA{R: 0x66, G: 0x66, B: 0x66, A: 0xFF}
 )
 
@@ -58,9 +58,9 @@ func Pareto(causes []digest.Cause, units int) (*plot.Plot, error) {
 		bar.Horizontal = true
 		bar.XMin = pos
 		bar.LineStyle.Width = 0
-		bar.Color = ColourInvalid
+		bar.Color = colourInvalid
 		if c.Verdict == acceptance.Fail {
-			bar.Color = ColourFail
+			bar.Color = colourFail
 		}
 		p.Add(bar)
 		text := strconv.Itoa(c.Units)
@@ -132,7 +132,7 @@ func Histogram(s digest.MetricStats) (*plot.Plot, error) {
 	}
 	p.X.Min, p.X.Max = v.lo-pad, v.hi+pad
 	p.Y.Min, p.Y.Max = 0, v.top*1.15
-	p.X.Tick.Marker = NiceTicks{}
+	p.X.Tick.Marker = niceTicks{}
 	p.Y.Tick.Marker = countTicks{}
 	return p, nil
 }
@@ -140,8 +140,8 @@ func Histogram(s digest.MetricStats) (*plot.Plot, error) {
 // addBins draws the bins, those inside the limits in blue and those beyond
 // them in red, and returns the largest count.
 func addBins(p *plot.Plot, bins []digest.Bin) int {
-	in := &plotter.Histogram{FillColor: ColourBars}
-	out := &plotter.Histogram{FillColor: ColourFail}
+	in := &plotter.Histogram{FillColor: colourBars}
+	out := &plotter.Histogram{FillColor: colourFail}
 	most := 0
 	for _, b := range bins {
 		bin := plotter.HistogramBin{Min: b.Lo, Max: b.Hi, Weight: float64(b.Count)}
@@ -186,7 +186,7 @@ func (v *vlines) add(p *plot.Plot, s digest.MetricStats) error {
 		if lim == nil {
 			continue
 		}
-		l, err := v.line(*lim, ColourLimit, 1.2, []vg.Length{vg.Points(4), vg.Points(2)})
+		l, err := v.line(*lim, colourLimit, 1.2, []vg.Length{vg.Points(4), vg.Points(2)})
 		if err != nil {
 			return fmt.Errorf("chart: %s limit: %w", s.Metric, err)
 		}
@@ -203,7 +203,7 @@ func (v *vlines) add(p *plot.Plot, s digest.MetricStats) error {
 		meanLine = l
 	}
 	if s.Predicted.OK {
-		l, err := v.line(s.Predicted.V, ColourPredicted, 1.4, nil)
+		l, err := v.line(s.Predicted.V, colourPredicted, 1.4, nil)
 		if err != nil {
 			return fmt.Errorf("chart: %s prediction: %w", s.Metric, err)
 		}

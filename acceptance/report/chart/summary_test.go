@@ -173,10 +173,10 @@ func TestForUnitSteps(t *testing.T) {
 	}
 	checkFigureText(t, f)
 
-	// More steps than MaxPanels: the rest are counted, not drawn.
-	many := unitBatch(MaxPanels + 2)
-	if f := ForUnitSteps(many, 0, many.Units[0].Trace); len(f.Panels) != MaxPanels || f.NotDrawn != 2 {
-		t.Errorf("%d panels, %d not drawn; want %d and 2", len(f.Panels), f.NotDrawn, MaxPanels)
+	// More steps than maxPanels: the rest are counted, not drawn.
+	many := unitBatch(maxPanels + 2)
+	if f := ForUnitSteps(many, 0, many.Units[0].Trace); len(f.Panels) != maxPanels || f.NotDrawn != 2 {
+		t.Errorf("%d panels, %d not drawn; want %d and 2", len(f.Panels), f.NotDrawn, maxPanels)
 	}
 	// Without a record there is nothing to draw.
 	if f := ForUnitSteps(unitBatch(2), 0, nil); len(f.Panels) != 0 || f.Steps != 2 {
@@ -190,13 +190,13 @@ func TestForUnitSteps(t *testing.T) {
 func checkReduced(t *testing.T, p Panel) {
 	t.Helper()
 	r := p.Reduced(87, 68)
-	if n := len(r.T); n > 4*Buckets(87) || n < 10 || n != len(r.Response) {
+	if n := len(r.T); n > 4*bucketCount(87) || n < 10 || n != len(r.Response) {
 		t.Errorf("reduced response: %d times, %d values", n, len(r.Response))
 	}
 	if lo, hi := extremes(r.Response); lo != minOf(p.Response) || hi != maxOf(p.Response) {
 		t.Errorf("reduced response spans %v … %v, the record %v … %v", lo, hi, minOf(p.Response), maxOf(p.Response))
 	}
-	if len(r.PredT) > 4*Buckets(87) || r.PredT[0] != p.PredT[0] || r.PredT[len(r.PredT)-1] != p.PredT[len(p.PredT)-1] {
+	if len(r.PredT) > 4*bucketCount(87) || r.PredT[0] != p.PredT[0] || r.PredT[len(r.PredT)-1] != p.PredT[len(p.PredT)-1] {
 		t.Errorf("reduced prediction: %d points", len(r.PredT))
 	}
 	if fmt.Sprint(r.CmdT, r.Command) != fmt.Sprint([]float64{p.T[0], 0.5, p.T[len(p.T)-1]}, []float64{0, 10, 10}) {

@@ -16,24 +16,24 @@ import (
 	"github.com/stepgate/stepgate/metrics"
 )
 
-// MaxPanels is the most steps a unit's figure draws; the unit page lists
+// maxPanels is the most steps a unit's figure draws; the unit page lists
 // every step in its tables.
-const MaxPanels = 4
+const maxPanels = 4
 
 // Colours of the unit figure: the command grey, the limit instants in
 // P. Tol's purple and green (SRON/EPS/TN/09-002, from memory).
 var (
-	ColourCommand  = color.RGBA{R: 0x88, G: 0x88, B: 0x88, A: 0xFF}
+	colourCommand  = color.RGBA{R: 0x88, G: 0x88, B: 0x88, A: 0xFF}
 	colourRiseMark = color.RGBA{R: 0xAA, G: 0x33, B: 0x77, A: 0xFF}
 	colourSettMark = color.RGBA{R: 0x22, G: 0x88, B: 0x33, A: 0xFF}
 	colourMark     = color.RGBA{R: 0x66, G: 0x66, B: 0x66, A: 0xFF}
 )
 
 // UnitFigure is the figure of one unit: one panel per step, up to
-// MaxPanels, each in the record's own units and clock.
+// maxPanels, each in the record's own units and clock.
 type UnitFigure struct {
 	Panels []Panel
-	// Steps counts the unit's steps; NotDrawn those beyond MaxPanels.
+	// Steps counts the unit's steps; NotDrawn those beyond maxPanels.
 	Steps, NotDrawn int
 	// Skipped lists steps that could not be drawn, with the reason.
 	Skipped []string
@@ -85,7 +85,7 @@ func ForUnitSteps(b *acceptance.Batch, i int, tr *metrics.Trace) *UnitFigure {
 	}
 	band := digest.SettlingBand(b)
 	for si := range u.Steps {
-		if len(f.Panels) == MaxPanels {
+		if len(f.Panels) == maxPanels {
 			f.NotDrawn = len(u.Steps) - si
 			break
 		}
@@ -189,7 +189,7 @@ func shiftedPrediction(b *acceptance.Batch, s *acceptance.StepResult, t0, at, en
 		if tr == nil || tr.Len() == 0 {
 			continue
 		}
-		k0, err := CommandStart(tr, n.From, n.To)
+		k0, err := commandStart(tr, n.From, n.To)
 		if err != nil {
 			continue
 		}
@@ -213,19 +213,19 @@ func shiftedPrediction(b *acceptance.Batch, s *acceptance.StepResult, t0, at, en
 
 // Reduced returns a copy of the panel with its series reduced for a plot
 // w × h millimetres on paper, to what that plot can show: the response and
-// the prediction keep the envelope of each of Buckets(w) time buckets (see
+// the prediction keep the envelope of each of bucketCount(w) time buckets (see
 // Envelope) and of that the samples a line needs to pass within TolMM of
 // every other, the lowest and the highest; the command, drawn as steps,
 // keeps the samples at which it changes. The panel itself is not changed,
 // and its plot has the same axes.
 func (pn *Panel) Reduced(w, h float64) Panel {
 	r := *pn
-	buckets := Buckets(w)
+	buckets := bucketCount(w)
 	tol := 0.0
 	if ymin, ymax := pn.valueRange(); h > 0 {
 		// The data area is smaller than the plot, so this tolerance is
 		// less than TolMM on paper.
-		tol = TolMM * (ymax - ymin) / h
+		tol = tolMM * (ymax - ymin) / h
 	}
 	reduce := func(t, y []float64) ([]float64, []float64) {
 		t, y = Envelope(t, y, buckets)
@@ -266,7 +266,7 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	if err != nil {
 		return nil, fmt.Errorf("chart: step %d settling band: %w", pn.Step, err)
 	}
-	band.Color = ColourBand
+	band.Color = colourBand
 	band.LineStyle.Color = colourBandEdge
 	band.LineStyle.Width = vg.Points(0.4)
 	band.LineStyle.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
@@ -305,8 +305,8 @@ func (pn *Panel) frame(responseUnit string) *plot.Plot {
 	}
 	p.X.Label.TextStyle.Font = fontOf(8)
 	p.Y.Label.TextStyle.Font = fontOf(8)
-	p.X.Tick.Marker = NiceTicks{}
-	p.Y.Tick.Marker = NiceTicks{}
+	p.X.Tick.Marker = niceTicks{}
+	p.Y.Tick.Marker = niceTicks{}
 	grid := plotter.NewGrid()
 	grid.Vertical.Color, grid.Horizontal.Color = colourGrid, colourGrid
 	grid.Vertical.Width, grid.Horizontal.Width = vg.Points(0.4), vg.Points(0.4)
@@ -322,7 +322,7 @@ func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
 		if err != nil {
 			return fmt.Errorf("chart: step %d command: %w", pn.Step, err)
 		}
-		l.Color, l.Width = ColourCommand, vg.Points(0.8)
+		l.Color, l.Width = colourCommand, vg.Points(0.8)
 		l.StepStyle = plotter.PostStep
 		p.Add(l)
 		p.Legend.Add("command", l)
@@ -332,7 +332,7 @@ func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
 		if err != nil {
 			return fmt.Errorf("chart: step %d prediction: %w", pn.Step, err)
 		}
-		l.Color, l.Width = ColourPrediction, vg.Points(1.3)
+		l.Color, l.Width = colourPrediction, vg.Points(1.3)
 		p.Add(l)
 		p.Legend.Add("prediction ("+predictionKind+")", l)
 	}
