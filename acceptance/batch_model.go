@@ -52,32 +52,6 @@ type Batch struct {
 	// MaxPages caps the units with a detail page; 0 means no cap (see
 	// PageUnits and batch.Options.MaxUnitPages).
 	MaxPages int `json:"-"`
-
-	// Records gives the full records of the units as the run kept them;
-	// nil for a batch not made by batch.Run.
-	//
-	// Deprecated: pass the *batch.Records that batch.Run returns to the
-	// reports instead; this field keeps UnitTrace working until then.
-	Records TraceSource `json:"-"`
-}
-
-// TraceSource gives the full record of a unit of a batch: kept in memory or
-// read again from its log (batch.Records).
-type TraceSource interface {
-	UnitTrace(u *UnitResult) (*metrics.Trace, error)
-}
-
-// UnitTrace returns the record of unit i: the one kept with the unit, else
-// the one b.Records gives, else nil.
-//
-// Deprecated: use the *batch.Records that batch.Run returns.
-func (b *Batch) UnitTrace(i int) *metrics.Trace {
-	u := &b.Units[i]
-	if u.Trace != nil || b.Records == nil {
-		return u.Trace
-	}
-	tr, _ := b.Records.UnitTrace(u)
-	return tr
 }
 
 // RunInfo records how a run was asked for, so that a reader of its

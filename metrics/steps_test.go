@@ -11,12 +11,41 @@ import (
 // and ends where the command holds (one sample of 1 s here, longer than the
 // default steady time) or turns back; each runs to the next one's start.
 func TestFindSteps(t *testing.T) {
-	tests := []struct {
-		name      string
-		cmd       []float64
-		minChange float64
-		want      []Step
-	}{
+	for _, tc := range findStepsCases() {
+		t.Run(tc.name, func(t *testing.T) { checkFindSteps(t, tc) })
+	}
+}
+
+// checkFindSteps checks one case of TestFindSteps.
+func checkFindSteps(t *testing.T, tc findStepsCase) {
+	t.Helper()
+	tr := Trace{Command: tc.cmd, Time: make([]float64, len(tc.cmd)), Response: make([]float64, len(tc.cmd))}
+	for i := range tr.Time {
+		tr.Time[i] = float64(i)
+	}
+	got := FindSteps(tr, tc.minChange)
+	if !reflect.DeepEqual(got, tc.want) {
+		t.Errorf("FindSteps = %+v\nwant        %+v", got, tc.want)
+	}
+	// Steps tile the record from the first step on.
+	for i, s := range got {
+		if s.Start >= s.End || (i > 0 && s.Start != got[i-1].End) || (i == len(got)-1 && s.End != len(tc.cmd)) {
+			t.Errorf("step %d bounds %d..%d do not tile the record", s.Index, s.Start, s.End)
+		}
+	}
+}
+
+// findStepsCase is one case of TestFindSteps.
+type findStepsCase struct {
+	name      string
+	cmd       []float64
+	minChange float64
+	want      []Step
+}
+
+// findStepsCases are the cases of TestFindSteps.
+func findStepsCases() []findStepsCase {
+	return []findStepsCase{
 		{"no change", []float64{5, 5, 5, 5}, 0.1, nil},
 		{"empty", nil, 0.1, nil},
 		{"one up-step", []float64{0, 0, 0, 25, 25, 25}, 1,
@@ -81,23 +110,5 @@ func TestFindSteps(t *testing.T) {
 			[]Step{{Index: 1, PreStart: 0, Start: 2, MoveEnd: 2, End: 4, From: 1, To: 1.001}}},
 		{"step on the last sample", []float64{0, 0, 0, 3}, 1,
 			[]Step{{Index: 1, PreStart: 0, Start: 3, MoveEnd: 3, End: 4, From: 0, To: 3, Unfinished: true}}},
-	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			tr := Trace{Command: tc.cmd, Time: make([]float64, len(tc.cmd)), Response: make([]float64, len(tc.cmd))}
-			for i := range tr.Time {
-				tr.Time[i] = float64(i)
-			}
-			got := FindSteps(tr, tc.minChange)
-			if !reflect.DeepEqual(got, tc.want) {
-				t.Errorf("FindSteps = %+v\nwant        %+v", got, tc.want)
-			}
-			// Steps tile the record from the first step on.
-			for i, s := range got {
-				if s.Start >= s.End || (i > 0 && s.Start != got[i-1].End) || (i == len(got)-1 && s.End != len(tc.cmd)) {
-					t.Errorf("step %d bounds %d..%d do not tile the record", s.Index, s.Start, s.End)
-				}
-			}
-		})
 	}
 }

@@ -88,7 +88,6 @@ func Run(ctx context.Context, sp *spec.Spec, files []string, o Options) (*accept
 		recs.kept = r.pages.traces()
 		recs.src = r.open(logs.Options{})
 	}
-	b.Records = recs
 	return b, recs, nil
 }
 
