@@ -96,6 +96,9 @@ func (s *Spec) explainLog(line func(format string, a ...any)) {
 		mark = "comma (1,5)"
 	}
 	line("  fields separated by: %s; decimal mark: %s", delim, mark)
+	for _, l := range s.explainLayout() {
+		line("  %s", l)
+	}
 }
 
 // explainReport words the report section, when the spec fills it.
@@ -235,4 +238,44 @@ func pct(f float64) string {
 // it, so a limit appears as written in the spec.
 func formatFloat(f float64) string {
 	return strconv.FormatFloat(f, 'g', -1, 64)
+}
+
+// explainLayout describes the log keys of a layout and the file patterns,
+// one line each; nothing for a spec that sets none.
+func (s *Spec) explainLayout() []string {
+	var out []string
+	l := s.Log
+	if l.HeaderLine > 0 {
+		out = append(out, fmt.Sprintf("header row on line %d; the lines before it are metadata or comments", l.HeaderLine))
+	}
+	if l.SkipRows > 0 {
+		out = append(out, fmt.Sprintf("%d line(s) under the header are not data", l.SkipRows))
+	}
+	if l.SampleRateHz > 0 {
+		out = append(out, fmt.Sprintf("the time column counts samples at %s Hz (time = sample / %s Hz)", formatFloat(l.SampleRateHz), formatFloat(l.SampleRateHz)))
+	}
+	for _, sig := range []struct {
+		name string
+		sc   *SignalScale
+	}{{"command", l.Scale.Command}, {"response", l.Scale.Response}, {"effort", l.Scale.Effort}} {
+		if sig.sc == nil {
+			continue
+		}
+		f := sig.sc.Factor
+		if f == 0 {
+			f = 1
+		}
+		raw := "raw"
+		if sig.sc.Invert {
+			raw = "(−raw)"
+		}
+		out = append(out, fmt.Sprintf("%s converted: value = %s × %s + %s", sig.name, formatFloat(f), raw, formatFloat(sig.sc.Offset)))
+	}
+	if len(l.Include) > 0 {
+		out = append(out, "files judged: those matching "+strings.Join(l.Include, ", "))
+	}
+	if len(l.Exclude) > 0 {
+		out = append(out, "files left out (listed in the reports): those matching "+strings.Join(l.Exclude, ", "))
+	}
+	return out
 }

@@ -48,10 +48,55 @@ type Signals struct {
 	Effort   string `yaml:"effort"` // optional
 }
 
-// LogFormat describes how logs are written.
+// LogFormat describes how logs are written and which files of a lot are
+// logs.
 type LogFormat struct {
 	DecimalComma bool   `yaml:"decimal_comma"` // numbers use ',' as the decimal mark
 	Delimiter    string `yaml:"delimiter"`     // auto (default) | comma | semicolon | tab
+	// HeaderLine is the 1-based line of the header row, for logs whose
+	// header detection cannot be sure of; 0 (default) finds it as the first
+	// line naming the time and command columns.
+	HeaderLine int `yaml:"header_line"`
+	// SkipRows is how many lines under the header are not data (units or
+	// descriptions); a units row is recognised without it.
+	SkipRows int `yaml:"skip_rows"`
+	// SampleRateHz, when set, says that the time column counts samples at
+	// this rate: time in s = sample number / rate.
+	SampleRateHz float64 `yaml:"sample_rate_hz"`
+	// Scale converts columns written in other units (encoder counts,
+	// inverted sense) into the spec's.
+	Scale SignalScales `yaml:"scale"`
+	// Include and Exclude are file name patterns (path.Match syntax); a
+	// pattern with a '/' is matched against the path below the searched
+	// directory, one without against the file name. A file matched by an
+	// Exclude pattern, or by no Include pattern when some are given, is not
+	// judged; the reports list it with the pattern.
+	Include []string `yaml:"include"`
+	Exclude []string `yaml:"exclude"`
+}
+
+// SignalScales holds the conversion of each signal; an unset one is read
+// as written.
+type SignalScales struct {
+	Command  *SignalScale `yaml:"command"`
+	Response *SignalScale `yaml:"response"`
+	Effort   *SignalScale `yaml:"effort"`
+}
+
+// SignalScale converts a column as written into the spec's units: value =
+// factor × (−raw when invert, else raw) + offset.
+type SignalScale struct {
+	Factor float64 `yaml:"factor"` // default 1; must not be 0
+	Offset float64 `yaml:"offset"` // default 0, in the spec's units
+	Invert bool    `yaml:"invert"` // the sensor counts the other way
+}
+
+// transform is the reader's form of a SignalScale.
+func (s *SignalScale) transform() logs.Transform {
+	if s == nil {
+		return logs.Transform{}
+	}
+	return logs.Transform{Factor: s.Factor, Offset: s.Offset, Invert: s.Invert}
 }
 
 // StepRules control segmentation.
@@ -208,6 +253,17 @@ func (s *Spec) Format() logs.Format {
 		Effort:       s.Signals.Effort,
 		TimeScale:    s.TimeScale(),
 		DecimalComma: s.Log.DecimalComma,
+		HeaderLine:   s.Log.HeaderLine,
+		SkipRows:     s.Log.SkipRows,
+		TimeUnit:     s.TimeUnit,
+		ValueUnit:    s.ResponseUnit,
+		Scale: [3]logs.Transform{s.Log.Scale.Command.transform(), s.Log.Scale.Response.transform(),
+			s.Log.Scale.Effort.transform()},
+		Plausible: true,
+	}
+	if r := s.Log.SampleRateHz; r > 0 {
+		f.TimeScale = 1 / r
+		f.TimeUnit = "samples"
 	}
 	switch s.Log.Delimiter {
 	case "comma":

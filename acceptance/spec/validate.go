@@ -2,6 +2,8 @@ package spec
 
 import (
 	"errors"
+	"fmt"
+	"path"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -53,6 +55,7 @@ func (p *parser) validate() {
 		}
 	}
 	p.validateLog()
+	p.validateLogLayout()
 	if !p.skip("steps.min_change") {
 		if !p.present("steps.min_change") {
 			p.problem("steps.min_change", valNode, "required: the smallest command change that counts as a step, > 0, in response units")
@@ -341,5 +344,49 @@ func (p *parser) positive(path string, v float64, what string) {
 func (p *parser) nonNegative(path string, v float64) {
 	if !p.skip(path) && v < 0 {
 		p.problem(path, valNode, "must be ≥ 0, got %s", formatFloat(v))
+	}
+}
+
+// validateLogLayout checks the log keys that describe a layout and the
+// file patterns.
+func (p *parser) validateLogLayout() {
+	l := p.spec.Log
+	if !p.skip("log.header_line") && l.HeaderLine < 0 {
+		p.problem("log.header_line", valNode, "must be 1 or more (the header's line number), got %d", l.HeaderLine)
+	}
+	if !p.skip("log.skip_rows") && l.SkipRows < 0 {
+		p.problem("log.skip_rows", valNode, "must be 0 or more, got %d", l.SkipRows)
+	}
+	if p.present("log.sample_rate_hz") && !p.skip("log.sample_rate_hz") {
+		switch {
+		case !(l.SampleRateHz > 0):
+			p.problem("log.sample_rate_hz", valNode, "must be > 0 (samples per second), got %s", formatFloat(l.SampleRateHz))
+		case p.present("time_unit") && p.spec.TimeUnit != "s":
+			p.problem("log.sample_rate_hz", valNode, "a time column that counts samples has no time_unit: leave time_unit out (or s), got %q", p.spec.TimeUnit)
+		}
+	}
+	for _, sig := range []struct {
+		key string
+		s   *SignalScale
+	}{{"command", l.Scale.Command}, {"response", l.Scale.Response}, {"effort", l.Scale.Effort}} {
+		key := "log.scale." + sig.key + ".factor"
+		if sig.s != nil && p.present(key) && sig.s.Factor == 0 && !p.skip(key) {
+			p.problem(key, valNode, "must not be 0 (leave it out for 1)")
+		}
+	}
+	for _, list := range []string{"include", "exclude"} {
+		pats := l.Include
+		if list == "exclude" {
+			pats = l.Exclude
+		}
+		for i, pat := range pats {
+			key := fmt.Sprintf("log.%s[%d]", list, i)
+			if p.skip(key) {
+				continue
+			}
+			if _, err := path.Match(pat, ""); err != nil || strings.TrimSpace(pat) == "" {
+				p.problem(key, valNode, "is not a file name pattern (path.Match syntax: *, ?, [a-z]), got %q", pat)
+			}
+		}
 	}
 }

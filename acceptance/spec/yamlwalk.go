@@ -227,7 +227,11 @@ func (p *parser) walk(n *yaml.Node, t reflect.Type, path string) {
 		p.walkMapping(n, path, func(k, v *yaml.Node, kp string) { p.walk(v, t.Elem(), kp) })
 	case reflect.Slice:
 		if n.Kind != yaml.SequenceNode {
-			p.problemAt(n, path, "must be a list of numbers such as [1, 2]; got %s", describe(n))
+			if t.Elem().Kind() == reflect.String {
+				p.problemAt(n, path, "must be a list of text such as [\"*.csv\"]; got %s", describe(n))
+			} else {
+				p.problemAt(n, path, "must be a list of numbers such as [1, 2]; got %s", describe(n))
+			}
 			return
 		}
 		for i, e := range n.Content {
@@ -247,6 +251,11 @@ func (p *parser) walk(n *yaml.Node, t reflect.Type, path string) {
 		}
 		if math.IsNaN(f) || math.IsInf(f, 0) {
 			p.problemAt(n, path, "must be a finite number, got %s", n.Value)
+		}
+	case reflect.Int:
+		var i int
+		if n.Kind != yaml.ScalarNode || n.Decode(&i) != nil {
+			p.problemAt(n, path, "must be a whole number, got %s", describe(n))
 		}
 	case reflect.String:
 		if n.Kind != yaml.ScalarNode {
