@@ -33,12 +33,12 @@ func (c Comparison) Gap() metrics.Value {
 	return metrics.Known(c.Mean.V - c.Predicted.V)
 }
 
-// Compare returns, for every nominal step of the batch's model and every
+// compare returns, for every nominal step of the batch's model and every
 // limited metric, the prediction (realised when b.Model.Realised, else
 // ideal) and the mean, lowest and highest measured value over the recorded
 // steps with the same command change (levels within 1 % of the step size).
 // It returns nil when the batch has no model.
-func Compare(b *acceptance.Batch) []Comparison {
+func compare(b *acceptance.Batch) []Comparison {
 	if b.Model == nil {
 		return nil
 	}

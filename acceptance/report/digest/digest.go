@@ -66,7 +66,7 @@ func New(b *acceptance.Batch) (*Digest, error) {
 	if b == nil {
 		return nil, fmt.Errorf("digest: no batch to report")
 	}
-	date, err := ReportTime(b)
+	date, err := reportTime(b)
 	if err != nil {
 		return nil, fmt.Errorf("digest: %w", err)
 	}
@@ -79,7 +79,7 @@ func New(b *acceptance.Batch) (*Digest, error) {
 		Limited:      LimitedMetrics(b),
 		Shown:        ShownMetrics(b),
 	}
-	if y, ok := Yield(b.Summary); ok {
+	if y, ok := yieldOf(b.Summary); ok {
 		d.Yield = metrics.Known(y)
 	} else {
 		d.Yield = metrics.Unknown("the batch has no units")
@@ -94,7 +94,7 @@ func New(b *acceptance.Batch) (*Digest, error) {
 		d.Stats = append(d.Stats, *d.all[m])
 	}
 	d.Causes = Pareto(b)
-	d.Comparisons = Compare(b)
+	d.Comparisons = compare(b)
 	d.Loop = summariseLoop(b)
 	d.Notes = notes(d)
 	d.Advice = Phrase("causes-advice")
@@ -151,10 +151,10 @@ func printable(s string) string {
 	}, s)
 }
 
-// ReportTime parses the batch's report date (YYYY-MM-DD) as midnight UTC,
+// reportTime parses the batch's report date (YYYY-MM-DD) as midnight UTC,
 // the time stamped into document properties so that the same batch gives the
 // same bytes.
-func ReportTime(b *acceptance.Batch) (time.Time, error) {
+func reportTime(b *acceptance.Batch) (time.Time, error) {
 	t, err := time.Parse("2006-01-02", b.ReportDate)
 	if err != nil {
 		return time.Time{}, fmt.Errorf("report date %q: want YYYY-MM-DD", b.ReportDate)
@@ -243,9 +243,9 @@ func SettlingBand(b *acceptance.Batch) float64 {
 	return metrics.DefaultOptions().Band
 }
 
-// Yield returns the fraction of units that passed; ok is false when the
+// yieldOf returns the fraction of units that passed; ok is false when the
 // batch has no units, where a yield means nothing.
-func Yield(s acceptance.Summary) (y float64, ok bool) {
+func yieldOf(s acceptance.Summary) (y float64, ok bool) {
 	if s.Units <= 0 {
 		return 0, false
 	}

@@ -33,7 +33,7 @@ func compareBatch() *acceptance.Batch {
 func TestCompare(t *testing.T) {
 	b := compareBatch()
 	os := func(z float64) float64 { return 100 * math.Exp(-math.Pi*z/math.Sqrt(1-z*z)) }
-	cmp := Compare(b)
+	cmp := compare(b)
 	if len(cmp) != 1 {
 		t.Fatalf("%d comparisons, want one per limited metric and nominal step", len(cmp))
 	}
@@ -50,13 +50,13 @@ func TestCompare(t *testing.T) {
 	}
 	// A nominal step that no unit made has unknown statistics, not zeros.
 	b.Model.Nominal[0].To = 5
-	c = Compare(b)[0]
+	c = compare(b)[0]
 	if c.Mean.OK || c.Min.OK || c.Steps != 0 || c.Mean.Why != "no recorded step has this command change" || c.Gap().OK {
 		t.Errorf("unmatched nominal step: %+v", c)
 	}
 	b.Model = nil
-	if Compare(b) != nil {
-		t.Errorf("Compare without a model should be nil")
+	if compare(b) != nil {
+		t.Errorf("compare without a model should be nil")
 	}
 }
 

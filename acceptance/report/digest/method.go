@@ -22,9 +22,9 @@ type Levels struct {
 	RiseLow, RiseHigh, Band, DeadTime, FinalWindow float64
 }
 
-// MeasuredLevels returns the levels of the batch's spec, the defaults of
+// measuredLevels returns the levels of the batch's spec, the defaults of
 // metrics.DefaultOptions where the spec sets none.
-func MeasuredLevels(b *acceptance.Batch) Levels {
+func measuredLevels(b *acceptance.Batch) Levels {
 	o := metrics.DefaultOptions()
 	l := Levels{RiseLow: 100 * o.RiseLow, RiseHigh: 100 * o.RiseHigh, Band: 100 * SettlingBand(b),
 		DeadTime: 100 * o.DeadTimeLevel, FinalWindow: 100 * o.FinalWindow}
@@ -45,7 +45,7 @@ func MeasuredLevels(b *acceptance.Batch) Levels {
 // Definitions returns the method: how each metric is measured, with the
 // batch's levels, and its reference (references §1).
 func Definitions(b *acceptance.Batch) []Definition {
-	l := MeasuredLevels(b)
+	l := measuredLevels(b)
 	return []Definition{
 		{[]metrics.Name{metrics.InitialValue, metrics.FinalValue, metrics.StepSize}, "initial and final value, step size",
 			fmt.Sprintf("State levels: robust mean of a stable window before the step and of the last %s %% of the step's record (outliers beyond median ± 3·1.4826·MAD rejected). Step size = commanded to − from.", Num(l.FinalWindow)),

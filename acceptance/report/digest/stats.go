@@ -92,13 +92,13 @@ type Capability struct {
 	Indicative bool
 }
 
-// Capable computes the capability indices of values with mean mu and
+// capable computes the capability indices of values with mean mu and
 // sample standard deviation sigma over n values against the limits lsl
 // and usl (nil: no limit on that side), after ISO 22514-2 and the AIAG SPC
 // reference manual (references §6): Cp = (USL − LSL)/(6σ);
 // Cpk = min(USL − μ, μ − LSL)/(3σ); Cpu = (USL − μ)/(3σ) for a maximum
 // only; Cpl = (μ − LSL)/(3σ) for a minimum only.
-func Capable(mu, sigma float64, n int, lsl, usl *float64) Capability {
+func capable(mu, sigma float64, n int, lsl, usl *float64) Capability {
 	c := Capability{Indicative: n < IndicativeN}
 	switch {
 	case lsl != nil && usl != nil:
@@ -355,11 +355,11 @@ func (a *accum) result(name metrics.Name, limits map[metrics.Name]spec.Limit, un
 	}
 	switch {
 	case !limited || (lim.Min == nil && lim.Max == nil):
-		s.Capability = Capable(0, 0, a.n, nil, nil)
+		s.Capability = capable(0, 0, a.n, nil, nil)
 	case a.n == 0:
-		s.Capability = Capable(math.NaN(), math.NaN(), 0, lim.Min, lim.Max)
+		s.Capability = capable(math.NaN(), math.NaN(), 0, lim.Min, lim.Max)
 	default:
-		s.Capability = Capable(a.mean, s.SD.V, a.n, lim.Min, lim.Max)
+		s.Capability = capable(a.mean, s.SD.V, a.n, lim.Min, lim.Max)
 	}
 	return s
 }

@@ -41,7 +41,7 @@ func TestCapable(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			c := Capable(tc.mu, tc.sigma, tc.n, tc.lsl, tc.usl)
+			c := capable(tc.mu, tc.sigma, tc.n, tc.lsl, tc.usl)
 			if c.Index != tc.index || c.Indicative != tc.indic {
 				t.Errorf("index %q indicative %v, want %q %v", c.Index, c.Indicative, tc.index, tc.indic)
 			}
