@@ -92,3 +92,16 @@ func ExampleMeasureUncertainty() {
 	// rise_time_s      0.1087 ± 0.0017 s
 	// settling_time_s  0.2090 ± 0.0064 s
 }
+
+// The catalogue gives every metric's label and unit as the reports print
+// them.
+func ExampleCatalogue() {
+	for _, m := range metrics.Catalogue()[:4] {
+		fmt.Printf("%-14s %-14s %q\n", m.Name, m.Label, m.Name.Unit("mm"))
+	}
+	// Output:
+	// step_size      step size      "mm"
+	// initial_value  initial value  "mm"
+	// final_value    final value    "mm"
+	// dead_time_s    dead time      "s"
+}
