@@ -24,6 +24,11 @@ type Spec struct {
 	Steps        StepRules              `yaml:"steps"`
 	Metrics      MetricRules            `yaml:"metrics"`
 	Limits       map[metrics.Name]Limit `yaml:"limits"`
+	// Axes, when given, declares several axes per unit, each with its own
+	// command, response and effort columns and optional limits; the time
+	// column (signals.time) is shared. Without axes the spec has one axis,
+	// read from signals and judged by limits.
+	Axes []Axis `yaml:"axes"`
 	// DecisionRule is how a value and its uncertainty are judged against
 	// a limit: simple (default) or guarded (see decision.go).
 	DecisionRule string `yaml:"decision_rule"`

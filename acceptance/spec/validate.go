@@ -67,6 +67,9 @@ func (p *parser) validate() {
 	p.validateLevels()
 	p.validateDecision()
 	p.validateLimits()
+	if len(s.Axes) > 0 || p.present("axes") {
+		p.validateAxes()
+	}
 	if logo := s.Report.Logo; logo != "" && !p.skip("report.logo") {
 		switch strings.ToLower(filepath.Ext(logo)) {
 		case ".png", ".jpg", ".jpeg":
@@ -83,6 +86,11 @@ func (p *parser) validate() {
 // names, an effort name that is not blank when given, and no name twice.
 func (p *parser) validateSignals() {
 	s := p.spec
+	if len(s.Axes) > 0 {
+		// The axes name their own columns (validateAxes).
+		p.requireText("signals.time", s.Signals.Time, "the log column holding the time, shared by the axes")
+		return
+	}
 	sig := []struct{ key, val, what string }{
 		{"signals.time", s.Signals.Time, "the log column holding the time"},
 		{"signals.command", s.Signals.Command, "the log column holding the commanded position"},
@@ -187,16 +195,24 @@ func (p *parser) validateLimits() {
 		return
 	}
 	if len(s.Limits) == 0 {
+		if len(s.Axes) > 0 {
+			return // every axis needs its own (validateAxes)
+		}
 		p.problem("limits", keyNode, "at least one limit is required, e.g. overshoot_pct: {max: 8}; metric names: %s", metricList())
 		return
 	}
-	names := make([]metrics.Name, 0, len(s.Limits))
-	for k := range s.Limits {
+	p.checkLimits("limits", s.Limits)
+}
+
+// checkLimits checks one set of limits, found at path.
+func (p *parser) checkLimits(at string, limits map[metrics.Name]Limit) {
+	names := make([]metrics.Name, 0, len(limits))
+	for k := range limits {
 		names = append(names, k)
 	}
 	slices.Sort(names)
 	for _, name := range names {
-		path := "limits." + string(name)
+		path := at + "." + string(name)
 		if p.skipTree(path) {
 			continue
 		}
@@ -205,7 +221,7 @@ func (p *parser) validateLimits() {
 			p.problem(path, keyNode, "unknown metric; valid names: %s", metricList())
 			continue
 		}
-		l := s.Limits[name]
+		l := limits[name]
 		if l.Min == nil && l.Max == nil {
 			p.problem(path, keyNode, "needs min, max or both, e.g. {max: 8}")
 			continue

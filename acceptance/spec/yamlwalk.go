@@ -226,6 +226,10 @@ func (p *parser) walk(n *yaml.Node, t reflect.Type, path string) {
 		}
 		p.walkMapping(n, path, func(k, v *yaml.Node, kp string) { p.walk(v, t.Elem(), kp) })
 	case reflect.Slice:
+		if n.Kind != yaml.SequenceNode && t.Elem().Kind() == reflect.Struct {
+			p.problemAt(n, path, "must be a list of mappings with keys %s; got %s", strings.Join(keys(t.Elem()), ", "), describe(n))
+			return
+		}
 		if n.Kind != yaml.SequenceNode {
 			if t.Elem().Kind() == reflect.String {
 				p.problemAt(n, path, "must be a list of text such as [\"*.csv\"]; got %s", describe(n))
