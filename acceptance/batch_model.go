@@ -139,6 +139,11 @@ type UnitResult struct {
 
 	// Fit is the identified effective closed loop; nil without a model.
 	Fit *Fit `json:"fit,omitempty"`
+	// Axes holds the verdict of each axis of a unit judged under a spec
+	// with several axes, in spec order; nil (left out of results.json)
+	// under a single-axis spec. Steps then holds the steps of every axis,
+	// axis after axis, each naming its axis.
+	Axes []AxisResult `json:"axes,omitempty"`
 
 	// Attempt is the unit's place in its serial's chain of attempts, 1 for
 	// the first (earlier runs' attempts in the line record included); a
@@ -155,9 +160,20 @@ type UnitResult struct {
 	Trace *metrics.Trace `json:"-"`
 }
 
+// AxisResult is the outcome of one axis of a unit: its verdict and its
+// reasons, each also among the unit's.
+type AxisResult struct {
+	Name    string   `json:"name"`
+	Verdict Verdict  `json:"verdict"`
+	Reasons []Reason `json:"reasons"`
+}
+
 // StepResult is one step's metrics and checks.
 type StepResult struct {
-	Index   int       `json:"index"`
+	Index int `json:"index"`
+	// Axis names the axis the step belongs to under a spec with several
+	// axes; "" (left out of results.json) under a single-axis spec.
+	Axis    string    `json:"axis,omitempty"`
 	StartS  float64   `json:"start_s"`
 	From    float64   `json:"from"`
 	To      float64   `json:"to"`

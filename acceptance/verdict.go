@@ -212,3 +212,49 @@ func unitSuffix(u string) string {
 	}
 	return " " + u
 }
+
+// JoinAxes joins the units judged for each axis of one log (units[i] for
+// axis names[i], each read and judged as a single-axis unit) into one unit:
+// the file's identity from the first, every axis's steps in axis order,
+// each naming its axis, and the axes' verdicts under Axes. The unit fails
+// when an axis fails, is invalid when an axis is invalid and none fails,
+// and passes only when every axis passes. Each axis's reasons are the
+// unit's too, prefixed with the axis's name.
+func JoinAxes(names []string, units []UnitResult) UnitResult {
+	u := units[0]
+	u.Steps, u.Reasons, u.Fit, u.Trace = []StepResult{}, []Reason{}, nil, nil
+	u.Axes = make([]AxisResult, len(units))
+	anyFail, anyInvalid := false, false
+	for i, a := range units {
+		ar := AxisResult{Name: names[i], Verdict: a.Verdict, Reasons: make([]Reason, len(a.Reasons))}
+		for j, r := range a.Reasons {
+			r.Text = "axis " + names[i] + ": " + r.Text
+			ar.Reasons[j] = r
+		}
+		u.Axes[i] = ar
+		u.Reasons = append(u.Reasons, ar.Reasons...)
+		for _, s := range a.Steps {
+			s.Axis = names[i]
+			u.Steps = append(u.Steps, s)
+		}
+		switch a.Verdict {
+		case Fail:
+			anyFail = true
+		case Pass:
+		default:
+			anyInvalid = true
+		}
+		if u.Fit == nil {
+			u.Fit = a.Fit
+		}
+	}
+	switch {
+	case anyFail:
+		u.Verdict = Fail
+	case anyInvalid:
+		u.Verdict = Invalid
+	default:
+		u.Verdict = Pass
+	}
+	return u
+}

@@ -31,7 +31,8 @@ func (r *Records) UnitTrace(u *acceptance.UnitResult) (*metrics.Trace, error) {
 	if u.Trace != nil {
 		return u.Trace, nil
 	}
-	if r == nil {
+	if r == nil || len(u.Axes) > 0 {
+		// One axis's record cannot stand for a unit with several.
 		return nil, nil
 	}
 	if tr := r.kept[u.File]; tr != nil {

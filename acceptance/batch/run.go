@@ -101,6 +101,10 @@ type runner struct {
 	predErr error
 	sampler *curveSampler
 	pages   *pageKeeper // nil unless the page units' records are kept
+	// axes holds one spec per axis under a spec with several axes (each
+	// reads and judges its axis alone), nil under a single-axis spec.
+	axes  []*spec.Spec
+	names []string
 }
 
 func newRunner(sp *spec.Spec, files int, o Options) *runner {
@@ -108,6 +112,9 @@ func newRunner(sp *spec.Spec, files int, o Options) *runner {
 	if r.open == nil {
 		format := sp.Format()
 		r.open = func(lo logs.Options) logs.Source { return logs.Open(format, lo) }
+	}
+	if len(sp.Axes) > 0 {
+		r.axes, r.names = sp.ForAxes(), sp.AxisNames()
 	}
 	r.pred, r.predErr = newPredictor(sp)
 	if o.Traces == KeepPageTraces {
@@ -140,9 +147,14 @@ func (r *runner) judgeAll(ctx context.Context, files []string) ([]acceptance.Uni
 			// Each trace is measured before the next file is read, so the
 			// worker's source lends its buffers instead of copying them.
 			src := r.open(logs.Options{Shared: true})
+			axisSrc := r.axisSources()
 			for i := range jobs {
 				var n int64
-				results[i], n = r.judge(src, files[i])
+				if axisSrc != nil {
+					results[i], n = r.judgeAxes(axisSrc, files[i])
+				} else {
+					results[i], n = r.judge(src, files[i])
+				}
 				if r.o.Progress != nil {
 					mu.Lock()
 					done++
@@ -186,6 +198,34 @@ func (r *runner) judge(src logs.Source, path string) (acceptance.UnitResult, int
 		r.pages.store(u.File, &t)
 	}
 	return u, n
+}
+
+// axisSources returns one source per axis under a spec with several axes,
+// each reading that axis's columns; nil under a single-axis spec.
+func (r *runner) axisSources() []logs.Source {
+	if r.axes == nil {
+		return nil
+	}
+	out := make([]logs.Source, len(r.axes))
+	for i, a := range r.axes {
+		out[i] = logs.Open(a.Format(), logs.Options{Shared: true})
+	}
+	return out
+}
+
+// judgeAxes judges one file axis by axis, each read with its own columns
+// and judged by its own limits, and joins the axes into one unit. The
+// unit's record is not kept for its page: the page of a unit with several
+// axes lists the steps of every axis without drawing one axis's record.
+func (r *runner) judgeAxes(srcs []logs.Source, path string) (acceptance.UnitResult, int64) {
+	units := make([]acceptance.UnitResult, len(r.axes))
+	var n int64
+	for i, a := range r.axes {
+		var m int64
+		units[i], m, _ = judgeFile(srcs[i], a, r.opts, r.pred, r.sampler, path, KeepNoTraces)
+		n = max(n, m)
+	}
+	return acceptance.JoinAxes(r.names, units), n
 }
 
 // assemble orders the units by serial and, within a serial, as attempts

@@ -87,10 +87,18 @@ type refUnit struct {
 	Attempt  int               `json:"attempt"`
 	Attempts int               `json:"attempts"`
 	Fit      *refFit           `json:"fit,omitempty"`
+	Axes     []refAxis         `json:"axes,omitempty"`
+}
+
+type refAxis struct {
+	Name    string   `json:"name"`
+	Verdict string   `json:"verdict"`
+	Reasons []string `json:"reasons"`
 }
 
 type refStep struct {
 	Index      int                     `json:"index"`
+	Axis       string                  `json:"axis,omitempty"`
 	StartS     float64                 `json:"start_s"`
 	From       float64                 `json:"from"`
 	To         float64                 `json:"to"`
@@ -254,11 +262,14 @@ func refOfUnit(u *acceptance.UnitResult) refUnit {
 	if f := u.Fit; f != nil {
 		r.Fit = &refFit{f.Step, refValue(f.StaticGain), refValue(f.Damping), refValue(f.NaturalFrequency), refValue(f.DeadTime), refValue(f.RMSResidual), f.Why}
 	}
+	for _, a := range u.Axes {
+		r.Axes = append(r.Axes, refAxis{a.Name, string(a.Verdict), refReasons(a.Reasons)})
+	}
 	return r
 }
 
 func refOfStep(s *acceptance.StepResult) refStep {
-	r := refStep{Index: s.Index, StartS: s.StartS, From: s.From, To: s.To, Verdict: string(s.Verdict), Reasons: refReasons(s.Reasons),
+	r := refStep{Index: s.Index, Axis: s.Axis, StartS: s.StartS, From: s.From, To: s.To, Verdict: string(s.Verdict), Reasons: refReasons(s.Reasons),
 		Metrics: refMetrics(&s.Metrics), Unmeasured: s.Metrics.Unmeasured()}
 	if s.Checks != nil {
 		r.Checks = []refCheck{}

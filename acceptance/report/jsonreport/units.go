@@ -80,6 +80,22 @@ func (e *encoder) unit(d int, u *acceptance.UnitResult) {
 		e.Member(m, `"fit": `)
 		e.fit(m, u.Fit)
 	}
+	if len(u.Axes) > 0 {
+		e.Member(m, `"axes": `)
+		e.Array(m, false, len(u.Axes), func(i int) { e.axis(m+1, &u.Axes[i]) })
+	}
+	e.Close(d, '}')
+}
+
+// axis appends a; d is the depth of the line it opens on.
+func (e *encoder) axis(d int, a *acceptance.AxisResult) {
+	m := d + 1
+	e.Open(m, `"name": `)
+	e.Str(a.Name)
+	e.Member(m, `"verdict": `)
+	e.Str(string(a.Verdict))
+	e.Member(m, `"reasons": `)
+	e.reasons(m, a.Reasons)
 	e.Close(d, '}')
 }
 
@@ -89,6 +105,10 @@ func (e *encoder) step(d int, s *acceptance.StepResult) {
 	m := d + 1
 	e.Open(m, `"index": `)
 	e.Int(s.Index)
+	if s.Axis != "" {
+		e.Member(m, `"axis": `)
+		e.Str(s.Axis)
+	}
 	e.Member(m, `"start_s": `)
 	e.Float(s.StartS)
 	e.Member(m, `"from": `)

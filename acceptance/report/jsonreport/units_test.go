@@ -194,7 +194,7 @@ func metricsWith(vals []float64, unknown map[metrics.Name]metrics.Value) accepta
 func fixtureUnits() []acceptance.UnitResult {
 	trace := &metrics.Trace{Time: []float64{0, 1}, Command: []float64{0, 1}, Response: []float64{0, 1}, Effort: []float64{0, 1}}
 	full := acceptance.StepResult{
-		Index: 1, StartS: 0.5, From: -0.0, To: 25, Verdict: acceptance.Fail,
+		Index: 1, Axis: "X <&>", StartS: 0.5, From: -0.0, To: 25, Verdict: acceptance.Fail,
 		Reasons: acceptance.TextReasons(awkward...),
 		Metrics: metricsWith(extremes, map[metrics.Name]metrics.Value{
 			metrics.SettlingTime:     metrics.Unknown("record ends <before> settling & \u2028"),
@@ -251,6 +251,11 @@ func fixtureUnits() []acceptance.UnitResult {
 				RMSResidual: metrics.Known(-1e-7), Why: "fit <converged> & \u2029",
 			},
 			Trace: trace,
+			Axes: []acceptance.AxisResult{
+				{Name: "X <&>", Verdict: acceptance.Fail, Reasons: acceptance.TextReasons("axis X: overshoot")},
+				{Name: "", Verdict: acceptance.Pass, Reasons: []acceptance.Reason{}},
+				{Name: "lift", Verdict: acceptance.Invalid},
+			},
 		},
 		// nil slices and maps encode as null, no fit is omitted.
 		{Unit: "nil", File: "nil.csv", Verdict: acceptance.Invalid},
