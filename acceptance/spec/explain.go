@@ -51,6 +51,18 @@ func (s *Spec) Explain() string {
 			line("      %s", e)
 		}
 	}
+	for i, a := range s.ForAxes() {
+		if len(s.Axes) == 0 || len(s.Axes[i].Limits) == 0 {
+			continue
+		}
+		line("  axis %q, instead of the above:", s.Axes[i].Name)
+		for _, n := range a.LimitNames() {
+			line("    %s", a.describeLimit(n))
+			for _, e := range a.limitExtras(n) {
+				line("        %s", e)
+			}
+		}
+	}
 	line("")
 	for _, l := range s.explainDecision() {
 		line("%s", l)
@@ -77,12 +89,26 @@ func (s *Spec) explainLog(line func(format string, a ...any)) {
 		tu = DefaultTimeUnit
 	}
 	line("  time      column %q, in %s", s.Signals.Time, tu)
-	line("  command   column %q%s", s.Signals.Command, inUnit(s.ResponseUnit))
-	line("  response  column %q%s", s.Signals.Response, inUnit(s.ResponseUnit))
-	if s.Signals.Effort != "" {
-		line("  effort    column %q%s", s.Signals.Effort, inUnit(s.EffortUnit))
-	} else {
-		line("  effort    not read (signals.effort not set)")
+	for i, a := range s.ForAxes() {
+		ind := "  "
+		if len(s.Axes) > 0 {
+			lim := "the top-level limits"
+			if len(s.Axes[i].Limits) > 0 {
+				lim = "its own limits"
+			}
+			line("  axis %q, judged by %s:", s.Axes[i].Name, lim)
+			ind = "    "
+		}
+		line("%scommand   column %q%s", ind, a.Signals.Command, inUnit(s.ResponseUnit))
+		line("%sresponse  column %q%s", ind, a.Signals.Response, inUnit(s.ResponseUnit))
+		if a.Signals.Effort != "" {
+			line("%seffort    column %q%s", ind, a.Signals.Effort, inUnit(s.EffortUnit))
+		} else {
+			line("%seffort    not read (signals.effort not set)", ind)
+		}
+	}
+	if len(s.Axes) > 0 {
+		line("  a unit passes only when every axis passes")
 	}
 	delim := map[string]string{
 		"": "detected from the header row", "auto": "detected from the header row",

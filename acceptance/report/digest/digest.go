@@ -12,6 +12,7 @@ import (
 	"unicode/utf8"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
 	"github.com/stepgate/stepgate/templates"
 )
@@ -169,9 +170,17 @@ func reportTime(b *acceptance.Batch) (time.Time, error) {
 // limit names them. results.json carries every metric whatever this says.
 func ShownMetrics(b *acceptance.Batch) []metrics.Name {
 	moves := hasMoves(b)
-	for n := range b.Limits {
-		if m, ok := metrics.Lookup(n); ok && m.Move {
-			moves = true
+	limits := []map[metrics.Name]spec.Limit{b.Limits}
+	if b.SpecDoc != nil {
+		for _, a := range b.SpecDoc.Axes {
+			limits = append(limits, a.Limits)
+		}
+	}
+	for _, l := range limits {
+		for n := range l {
+			if m, ok := metrics.Lookup(n); ok && m.Move {
+				moves = true
+			}
 		}
 	}
 	out := make([]metrics.Name, 0, metrics.NumNames)

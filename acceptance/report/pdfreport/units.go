@@ -393,6 +393,9 @@ func fitText(f *acceptance.Fit, unit string) string {
 
 func (r *report) stepTable(s *acceptance.StepResult) {
 	title := fmt.Sprintf("Step %d: %s → %s %s at t = %s s, %s", s.Index, num(s.From), num(s.To), r.unit, num(s.StartS), verdictWord(s.Verdict))
+	if s.Axis != "" {
+		title = "Axis " + s.Axis + ", s" + title[1:]
+	}
 	r.subheading(title, 6+3*lineH)
 	checks := map[metrics.Name]acceptance.Check{}
 	for _, c := range s.Checks {

@@ -121,6 +121,19 @@ type unitsLayout struct {
 	predIdx   []int // of each predicted-and-gap column pair
 	reasonCol int   // the step reason; the unit reason follows it
 	shaCol    int
+	axisCol   int // the step's axis, last; 0 when the batch has one axis
+}
+
+// hasAxes reports whether the batch was judged under a spec with several
+// axes. The sheets then carry each step's axis in a last column, which a
+// single-axis batch does not have.
+func hasAxes(b *acceptance.Batch) bool {
+	for i := range b.Units {
+		if len(b.Units[i].Axes) > 0 {
+			return true
+		}
+	}
+	return false
 }
 
 func newUnitsLayout(d *digest.Digest) *unitsLayout {
@@ -141,6 +154,10 @@ func newUnitsLayout(d *digest.Digest) *unitsLayout {
 	}
 	l.header = append(l.header, "file SHA-256")
 	l.shaCol = len(l.header)
+	if hasAxes(d.Batch) {
+		l.header = append(l.header, "axis")
+		l.axisCol = len(l.header)
+	}
 	l.reasonCol = unitsFirstValue + len(l.cols.metrics) + 2*len(l.cols.predicted)
 	return l
 }
@@ -191,6 +208,9 @@ func (l *unitsLayout) unit(rw *xlsxenc.RowWriter, u *acceptance.UnitResult) erro
 			rw.Str(l.reasonCol+2+j, meta[j])
 		}
 		rw.Str(l.shaCol, u.SHA256)
+		if l.axisCol > 0 && len(u.Steps) > 0 {
+			rw.Str(l.axisCol, cellText(u.Steps[k].Axis))
+		}
 		if err := rw.End(); err != nil {
 			return fmt.Errorf("row %d (unit %q): %w", rw.Row(), u.Unit, err)
 		}
@@ -276,6 +296,10 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 	const sh = SheetChecks
 	b := d.Batch
 	header := []string{"unit", "file", "step", "metric", "value", "unit of value", "min", "max", "verdict", "reason", "unit verdict"}
+	axes := hasAxes(b)
+	if axes {
+		header = append(header, "axis")
+	}
 	rows := checkRows(b)
 	if err := openTable(f, st, sh, header, rows, "checks", []string{"I", "K"},
 		map[int]float64{1: 16, 2: 24, 3: 6, 4: 22, 5: 12, 6: 8, 7: 10, 8: 10, 9: 10, 10: 50, 11: 12}); err != nil {
@@ -306,6 +330,9 @@ func checks(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*x
 					rw.Str(9, string(c.Verdict))
 					rw.Str(10, cellText(c.Reason))
 					rw.Str(11, string(u.Verdict))
+					if axes {
+						rw.Str(12, cellText(s.Axis))
+					}
 					if err := rw.End(); err != nil {
 						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.Row(), u.Unit, s.Index, c.Metric, err)
 					}
@@ -339,6 +366,10 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xls
 	b := d.Batch
 	header := []string{"unit", "file", "step", withUnit("from", d.ResponseUnit), withUnit("to", d.ResponseUnit), "metric", "unit of value",
 		"measured", "predicted", "gap (measured − predicted)", "gap (% of predicted)", "prediction", "check", "note"}
+	axes := hasAxes(b)
+	if axes {
+		header = append(header, "axis")
+	}
 	rows := gapRows(b, d.Limited)
 	if err := openTable(f, st, sh, header, rows, "step metrics", []string{"M"},
 		map[int]float64{1: 16, 2: 24, 3: 6, 6: 22, 8: 12, 9: 12, 10: 14, 11: 14, 12: 11, 13: 10, 14: 50}); err != nil {
@@ -401,6 +432,9 @@ func gaps(f *excelize.File, st *styles, d *digest.Digest, bodies map[string]*xls
 						rw.Str(14, cellText("not measured: "+orWhy(meas.Why, s.Metrics.Reason(m.name))))
 					case !pred.OK:
 						rw.Str(14, cellText("not predicted: "+orWhy(pred.Why, s.Predicted.Metrics.Reason(m.name))))
+					}
+					if axes {
+						rw.Str(15, cellText(s.Axis))
 					}
 					if err := rw.End(); err != nil {
 						return fmt.Errorf("row %d (unit %q, step %d, %s): %w", rw.Row(), u.Unit, s.Index, m.name, err)
