@@ -36,7 +36,8 @@ type Options struct {
 // WriteAll writes the three reports of batch b into dir (created if
 // missing): results.json, report.xlsx and report.pdf. It digests the batch
 // once and hands the digest to every writer; the PDF's unit pages draw the
-// records traces gives (nil draws none). Each report is written to a
+// records traces gives (the *batch.Records the run returned; nil draws
+// none). Each report is written to a
 // temporary file in dir; only when all three are complete, flushed and
 // synced, and ctx is still live, are they renamed to their final names,
 // one after the other. Once ctx is cancelled (an interrupted run) it
