@@ -151,6 +151,12 @@ type UnitResult struct {
 	Attempt int `json:"attempt"`
 	// Attempts is the number of attempts of the unit's serial.
 	Attempts int `json:"attempts"`
+	// Lot is the unit's lot, from the source the spec's line section
+	// names; "" when it names none or the log does not give it.
+	Lot string `json:"lot"`
+	// Shift is the name of the shift the test started in, by the spec's
+	// shift boundaries and the log's started_at; "" when either is missing.
+	Shift string `json:"shift"`
 
 	// FileTime is the log's modification time, which orders attempts
 	// that carry no start time; zero when unknown.

@@ -38,8 +38,8 @@ type RetestAttempt struct {
 func (r Retest) Final() Verdict { return r.Attempts[len(r.Attempts)-1].Verdict }
 
 // StartedAt returns the start time a log's metadata gives under
-// started_at (RFC 3339, or "YYYY-MM-DD hh:mm:ss" read as UTC); zero when
-// it gives none that can be read.
+// started_at (RFC 3339, in the offset written there, or "YYYY-MM-DD
+// hh:mm:ss" read as UTC); zero when it gives none that can be read.
 func StartedAt(md map[string]string) time.Time {
 	v := strings.TrimSpace(md["started_at"])
 	if v == "" {
@@ -47,7 +47,7 @@ func StartedAt(md map[string]string) time.Time {
 	}
 	for _, layout := range []string{time.RFC3339Nano, "2006-01-02 15:04:05", "2006-01-02T15:04:05"} {
 		if t, err := time.Parse(layout, v); err == nil {
-			return t.UTC()
+			return t
 		}
 	}
 	return time.Time{}

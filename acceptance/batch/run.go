@@ -189,6 +189,8 @@ feed:
 // file is read.
 func (r *runner) judge(src logs.Source, path string) (acceptance.UnitResult, int64) {
 	u, n, tr := judgeFile(src, r.sp, r.opts, r.pred, r.sampler, path, r.o.Traces)
+	u.Lot = r.sp.Line.LotOf(u.File, u.Metadata)
+	u.Shift = r.sp.Line.ShiftOf(acceptance.StartedAt(u.Metadata))
 	var size int64
 	if tr != nil && len(u.Steps) > 0 {
 		size = recordSize(tr)

@@ -315,7 +315,7 @@ func TestParseDocumentProblems(t *testing.T) {
 		{"document marker only", "---", "t.yaml: the file holds no keys; `stepgate spec init` prints a template"},
 		{"null document", "null\n", "t.yaml:1:1: the file holds no keys; `stepgate spec init` prints a template"},
 		{"tagged null document", "--- !!null\n", "t.yaml:1:5: the file holds no keys; `stepgate spec init` prints a template"},
-		{"not a mapping", "- a\n- b\n", "t.yaml:1:1: a spec must be a mapping of keys (spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, axes, decision_rule, response_resolution, model, report), got a list"},
+		{"not a mapping", "- a\n- b\n", "t.yaml:1:1: a spec must be a mapping of keys (spec_id, revision, title, signals, time_unit, response_unit, effort_unit, log, steps, metrics, limits, axes, decision_rule, response_resolution, model, report, line), got a list"},
 		{"unclosed brace", "spec_id: T-1\nlimits: {overshoot_pct: {max: 8}\n", "t.yaml:2: invalid YAML: did not find expected ',' or '}' in the part that starts on this line"},
 		{"tab indent", "spec_id: T-1\nsignals:\n\ttime: t\n", "t.yaml:3: invalid YAML: found character that cannot start any token"},
 		{"two documents", baseSpec + "---\nspec_id: T-2\n", "t.yaml:11:1: only one YAML document is allowed; remove the '---' separator and what follows"},

@@ -38,6 +38,8 @@ type Spec struct {
 	ResponseResolution float64       `yaml:"response_resolution"`
 	Model              *model.Config `yaml:"model"`
 	Report             ReportInfo    `yaml:"report"`
+	// Line says where a unit's lot and shift come from; empty: none.
+	Line LineInfo `yaml:"line"`
 
 	// Source is the file the spec was read from; SHA256 the hex digest of its
 	// bytes. Set by Load, not read from YAML.

@@ -70,6 +70,7 @@ func (p *parser) validate() {
 	if len(s.Axes) > 0 || p.present("axes") {
 		p.validateAxes()
 	}
+	p.validateLine()
 	if logo := s.Report.Logo; logo != "" && !p.skip("report.logo") {
 		switch strings.ToLower(filepath.Ext(logo)) {
 		case ".png", ".jpg", ".jpeg":

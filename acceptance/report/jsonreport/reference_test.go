@@ -86,6 +86,8 @@ type refUnit struct {
 	Samples  int               `json:"samples"`
 	Attempt  int               `json:"attempt"`
 	Attempts int               `json:"attempts"`
+	Lot      string            `json:"lot"`
+	Shift    string            `json:"shift"`
 	Fit      *refFit           `json:"fit,omitempty"`
 	Axes     []refAxis         `json:"axes,omitempty"`
 }
@@ -252,7 +254,7 @@ func refOf(b *acceptance.Batch) *refBatch {
 
 func refOfUnit(u *acceptance.UnitResult) refUnit {
 	r := refUnit{Unit: u.Unit, File: u.File, SHA256: u.SHA256, Metadata: u.Metadata, Verdict: string(u.Verdict), Reasons: refReasons(u.Reasons), Samples: u.Samples,
-		Attempt: u.Attempt, Attempts: u.Attempts}
+		Attempt: u.Attempt, Attempts: u.Attempts, Lot: u.Lot, Shift: u.Shift}
 	if u.Steps != nil {
 		r.Steps = make([]refStep, len(u.Steps))
 		for i := range u.Steps {

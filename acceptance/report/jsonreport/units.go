@@ -76,6 +76,10 @@ func (e *encoder) unit(d int, u *acceptance.UnitResult) {
 	e.Int(u.Attempt)
 	e.Member(m, `"attempts": `)
 	e.Int(u.Attempts)
+	e.Member(m, `"lot": `)
+	e.Str(u.Lot)
+	e.Member(m, `"shift": `)
+	e.Str(u.Shift)
 	if u.Fit != nil {
 		e.Member(m, `"fit": `)
 		e.fit(m, u.Fit)

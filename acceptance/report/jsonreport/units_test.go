@@ -243,7 +243,7 @@ func fixtureUnits() []acceptance.UnitResult {
 				{Text: awkward[2]},
 			},
 			Steps:   []acceptance.StepResult{full, allKnown, bare, zeroStep},
-			Samples: 3500, Attempt: 2, Attempts: 3,
+			Samples: 3500, Attempt: 2, Attempts: 3, Lot: "L-42 <&>", Shift: "night \u2028",
 			FileTime: time.Date(2026, 11, 30, 6, 0, 0, 0, time.UTC),
 			Fit: &acceptance.Fit{
 				Step: 1, StaticGain: metrics.Known(1.0000000000000002), Damping: metrics.Known(0.45),

@@ -172,7 +172,11 @@ func (r *report) unitPage(i int, fig *unitFig) error {
 	if sha == "" {
 		sha = "not computed: the file could not be read"
 	}
-	kv := [][2]string{{"File", u.File}, {"File SHA-256", sha}, {"Rows read", rowsRead(u)}, {"Steps", strconv.Itoa(len(u.Steps))}}
+	kv := [][2]string{{"File", u.File}, {"File SHA-256", sha}, {"Rows read", rowsRead(u)}, {"Steps", strconv.Itoa(len(u.Steps))},
+		{"Attempt", fmt.Sprintf("%d of %d", u.Attempt, u.Attempts)}}
+	if u.Lot != "" || u.Shift != "" {
+		kv = append(kv, [2]string{"Lot and shift", orDash(u.Lot) + " · shift " + orDash(u.Shift)})
+	}
 	if f := u.Fit; f != nil {
 		kv = append(kv, [2]string{"Identified loop", fitText(f, r.unit)})
 	}

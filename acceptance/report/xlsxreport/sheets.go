@@ -121,7 +121,8 @@ type unitsLayout struct {
 	predIdx   []int // of each predicted-and-gap column pair
 	reasonCol int   // the step reason; the unit reason follows it
 	shaCol    int
-	axisCol   int // the step's axis, last; 0 when the batch has one axis
+	lineCol   int // the attempt, then attempts, lot and shift
+	axisCol   int // the step's axis, after the SHA-256; 0 when the batch has one axis
 }
 
 // hasAxes reports whether the batch was judged under a spec with several
@@ -158,6 +159,8 @@ func newUnitsLayout(d *digest.Digest) *unitsLayout {
 		l.header = append(l.header, "axis")
 		l.axisCol = len(l.header)
 	}
+	l.header = append(l.header, "attempt", "attempts", "lot", "shift")
+	l.lineCol = len(l.header) - 3
 	l.reasonCol = unitsFirstValue + len(l.cols.metrics) + 2*len(l.cols.predicted)
 	return l
 }
@@ -211,6 +214,10 @@ func (l *unitsLayout) unit(rw *xlsxenc.RowWriter, u *acceptance.UnitResult) erro
 		if l.axisCol > 0 && len(u.Steps) > 0 {
 			rw.Str(l.axisCol, cellText(u.Steps[k].Axis))
 		}
+		rw.Int(l.lineCol, u.Attempt)
+		rw.Int(l.lineCol+1, u.Attempts)
+		rw.Str(l.lineCol+2, cellText(u.Lot))
+		rw.Str(l.lineCol+3, cellText(u.Shift))
 		if err := rw.End(); err != nil {
 			return fmt.Errorf("row %d (unit %q): %w", rw.Row(), u.Unit, err)
 		}

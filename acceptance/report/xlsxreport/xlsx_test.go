@@ -184,7 +184,7 @@ func TestWorkbookLayout(t *testing.T) {
 		"step_size (mm)|initial_value (mm)|final_value (mm)|dead_time_s (s)|rise_time_s (s)|peak_value (mm)|peak_time_s (s)|" +
 		"overshoot_pct (%)|settling_time_s (s)|steady_state_error (mm)|steady_state_error_pct (%)|" +
 		"predicted final_value (mm)|gap final_value (mm)|predicted overshoot_pct (%)|gap overshoot_pct (%)|" +
-		"predicted settling_time_s (s)|gap settling_time_s (s)|step reason|unit reason|log: operator|log: rig|file SHA-256"
+		"predicted settling_time_s (s)|gap settling_time_s (s)|step reason|unit reason|log: operator|log: rig|file SHA-256|attempt|attempts|lot|shift"
 	if header != want {
 		t.Errorf("Units header\n got %s\nwant %s", header, want)
 	}
