@@ -343,6 +343,8 @@ func (r *report) unitFigure(i int, fig *unitFig) error {
 			msg = textNoChartUnread
 		case len(u.Steps) == 0:
 			msg = textNoChartSteps
+		case len(u.Axes) > 0:
+			msg = textNoChartAxes
 		case fig.readErr != nil:
 			msg = "No chart: the record could not be read again: " + fig.readErr.Error() + "."
 		case len(f.Skipped) > 0:

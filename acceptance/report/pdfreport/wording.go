@@ -16,4 +16,5 @@ var (
 	textNoChartKept   = templates.MustPhrase("pdf-no-chart-kept")
 	textNoChartUnread = templates.MustPhrase("pdf-no-chart-unread")
 	textNoChartSteps  = templates.MustPhrase("pdf-no-chart-steps")
+	textNoChartAxes   = templates.MustPhrase("pdf-no-chart-axes")
 )
