@@ -1,7 +1,3 @@
-// Package report owns putting a batch's reports on disk: results.json,
-// report.xlsx and report.pdf, each written to a temporary file in the output
-// directory and renamed into place only when every report is complete, so a
-// reader never sees a torn or partial report under a final name.
 package report
 
 import (

@@ -1,6 +1,3 @@
-// Package jsonfmt holds the number formatting that stepgate's hand-written
-// JSON encoders share, so that they write exactly what encoding/json
-// writes.
 package jsonfmt
 
 import (
