@@ -37,6 +37,8 @@ type Batch struct {
 	// TestDates spans the logs' started_at metadata; empty when no log
 	// carries one.
 	TestDates DateRange `json:"test_dates"`
+	// DecisionRule is the spec's decision rule, simple or guarded.
+	DecisionRule string `json:"decision_rule"`
 
 	// Run is how the batch was asked for: the spec's path and the options
 	// that change the reports; nil for a batch not made by the command line.
@@ -108,6 +110,9 @@ type SpecInfo struct {
 // file of its own, and so is a second copy of one log); Serials, Retested
 // and the two yields count serials, each once, over its chain of attempts
 // (see ChainAttempts).
+//
+// ConditionalPass and ConditionalFail count the files by the worst
+// conformity statement of their checks when it is conditional.
 type Summary struct {
 	Units   int `json:"units"`
 	Pass    int `json:"pass"`
@@ -123,6 +128,11 @@ type Summary struct {
 	// FinalYieldPct is the share of serials whose latest attempt passed,
 	// in %; nil when the batch has no serial.
 	FinalYieldPct *float64 `json:"final_yield_pct"`
+	// ConditionalPass counts the units whose worst check is a conditional
+	// pass (inside every limit, within U of one); ConditionalFail those
+	// whose worst is a conditional fail (outside a limit by less than U).
+	ConditionalPass int `json:"conditional_pass"`
+	ConditionalFail int `json:"conditional_fail"`
 }
 
 // UnitResult is one log file's outcome.
@@ -187,6 +197,9 @@ type StepResult struct {
 	Reasons []Reason  `json:"reasons"`
 	Metrics MetricSet `json:"metrics"`
 	Checks  []Check   `json:"checks"`
+	// Uncertainty is the expanded uncertainty U (k = 2) of each metric,
+	// unknown where the metric is or where it was not evaluated.
+	Uncertainty MetricSet `json:"uncertainty"`
 
 	// Predicted is the model's prediction of this step (realised when the
 	// spec has a loop section, else ideal); nil without a model.
@@ -287,6 +300,18 @@ type Check struct {
 	Max     *float64     `json:"max"`
 	Verdict Verdict      `json:"verdict"`
 	Reason  string       `json:"reason,omitempty"`
+	// U is the value's standard uncertainty u (not the expanded U = 2u,
+	// which the step's Uncertainty holds); nil when not evaluated.
+	U *float64 `json:"u"`
+	// Conformity is the statement of conformity with the limits given U
+	// (ILAC-G8:09/2019); "" when the value or U is unknown.
+	Conformity Conformity `json:"conformity"`
+	// Resolution is the step the value was stated in and compared at; nil
+	// when none is known (then float residue alone is ignored).
+	Resolution *float64 `json:"resolution"`
+	// GuardBand is the guard band w applied at each bound under guarded
+	// acceptance; nil under simple acceptance or when unknown.
+	GuardBand *float64 `json:"guard_band,omitempty"`
 }
 
 // Compared returns the prediction of n the batch compares the line with

@@ -26,11 +26,15 @@ const (
 	DuplicateUnit            // the unit id appears in more than one file
 	InternalError            // stepgate failed while judging the log
 	DuplicateFile            // the log is a second copy of another file of the batch (same SHA-256)
+	InGuardBand              // within its limits but not inside the guard band (guarded acceptance)
+	NoUncertainty            // guarded acceptance needs U, which could not be evaluated
 )
 
 // Fails reports whether a reason of kind k is a failure (a limit exceeded)
 // rather than a reason the data could not show pass or fail.
-func (k ReasonKind) Fails() bool { return k == AboveMax || k == BelowMin || k == StillOutside }
+func (k ReasonKind) Fails() bool {
+	return k == AboveMax || k == BelowMin || k == StillOutside || k == InGuardBand
+}
 
 // Reason is why a step or a unit did not pass: its kind, the metric and step
 // it concerns, the value and limit compared, and the prose rendered from
@@ -76,6 +80,26 @@ func stillOutsideReason(n metrics.Name, step int, lastOutside, max, band float64
 	return Reason{Kind: StillOutside, Metric: n, Step: step, Value: lastOutside, Limit: max,
 		Text: fmt.Sprintf("%s > %s at step %d: still outside the ±%s %% band %s s after the step",
 			n, formatFloat(max), step, pct(band), verdictNumber(lastOutside, max))}
+}
+
+// guardReason renders a value within its limit but not inside the
+// acceptance zone of guarded acceptance, e.g. "overshoot_pct 7.8 within
+// the guard band of max 8 (accepted up to 7.5, w = 0.5) at step 1".
+func guardReason(n metrics.Name, step int, v, limit, w float64, max bool) Reason {
+	word, op, zone := "max", "up to", limit-w
+	if !max {
+		word, op, zone = "min", "down to", limit+w
+	}
+	return Reason{Kind: InGuardBand, Metric: n, Step: step, Value: v, Limit: zone,
+		Text: fmt.Sprintf("%s %s within the guard band of %s %s (accepted %s %s, w = %s) at step %d",
+			n, verdictNumber(v, zone), word, formatFloat(limit), op, verdictSig(zone, 6), verdictSig(w, 4), step)}
+}
+
+// noUncertaintyReason renders a check that guarded acceptance cannot
+// decide because the guard band is a multiple of U and U is unknown.
+func noUncertaintyReason(n metrics.Name, step int) Reason {
+	return Reason{Kind: NoUncertainty, Metric: n, Step: step,
+		Text: fmt.Sprintf("%s at step %d cannot be judged under guarded acceptance: its guard band is a multiple of U, which could not be evaluated", n, step)}
 }
 
 // notMeasuredReason renders a limited metric that could not be measured.

@@ -9,20 +9,39 @@ import (
 	"github.com/stepgate/stepgate/metrics"
 )
 
-// JudgeStep applies the limits of spec s's limits to one step's metrics. The result
-// carries every metric (null when unmeasured, with the reason in
-// Unmeasured) and one check per limit, in LimitNames order.
-//
-// Simple acceptance (ISO 14253-1:2017, ILAC-G8:09/2019): a check passes when
-// the value was measured and min ≤ value ≤ max, a value on a limit
-// included; it fails when the value lies outside; it is invalid when the
-// value could not be measured. One exception: an unmeasured settling time
-// with a max limit fails when the last sample outside the settling band
-// already lies later than the max, since the record proves the unit too
-// slow. The step fails when any check fails, else is invalid when any check
-// is invalid, else passes. Reasons list the failures first, then the
-// invalid checks.
+// JudgeStep applies the limits of spec s to one step's metrics without an
+// uncertainty evaluation: JudgeStepWith with u nil.
 func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
+	return JudgeStepWith(s, m, nil)
+}
+
+// JudgeStepWith applies the limits of spec s to one step's metrics m, whose
+// uncertainties are u (nil when not evaluated). The result carries every
+// metric (null when unmeasured, with the reason in Unmeasured), the
+// expanded uncertainty of each, and one check per limit, in LimitNames
+// order.
+//
+// Each value is stated at its resolution (metricResolution) and compared
+// with its limits there, so a value on a limit is on it whatever the float
+// residue. Each check states its conformity given U (ILAC-G8:09/2019). The
+// verdict follows the spec's decision rule (ISO 14253-1:2017; ISO/IEC
+// 17025:2017 §7.8.6):
+//
+//   - simple: a check passes when the value was measured and
+//     min ≤ value ≤ max, a value on a limit included, and fails when it
+//     lies outside, whatever U;
+//   - guarded: a check passes only when the value lies inside the limits
+//     narrowed by the guard band w (spec.GuardBand; w = U by default), and
+//     fails otherwise; when w depends on an unknown U the check is
+//     invalid.
+//
+// A check is invalid when the value could not be measured. One exception:
+// an unmeasured settling time with a max limit fails when the last sample
+// outside the settling band already lies later than the max, since the
+// record proves the unit too slow. The step fails when any check fails,
+// else is invalid when any check is invalid, else passes. Reasons list the
+// failures first, then the invalid checks.
+func JudgeStepWith(s *spec.Spec, m metrics.StepMetrics, u *metrics.StepUncertainty) StepResult {
 	r := StepResult{
 		Index:   m.Step.Index,
 		StartS:  m.Start,
@@ -31,13 +50,21 @@ func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
 		Reasons: []Reason{},
 		Metrics: MetricSetOf(m),
 	}
+	if u != nil {
+		for _, n := range metrics.Names {
+			if v := u.Expanded(n); v.OK {
+				r.Uncertainty.Set(n, metrics.Known(v.V))
+			}
+		}
+	}
 	var fails, invalids []Reason
-	// The checks' values live in one array per step rather than one
-	// allocation per check.
+	// The checks' numbers live in one array per step rather than one
+	// allocation per check: value, u, resolution and guard band.
 	r.Checks = make([]Check, 0, len(s.Limits))
-	values := make([]float64, len(s.Limits))
+	nums := make([]float64, 4*len(s.Limits))
 	judge := func(name metrics.Name) {
-		c, why := judgeCheck(s, name, m, &values[len(r.Checks)])
+		k := len(r.Checks)
+		c, why := judgeCheck(s, name, m, u, nums[4*k:4*k+4])
 		r.Checks = append(r.Checks, c)
 		switch c.Verdict {
 		case Fail:
@@ -71,10 +98,11 @@ func JudgeStep(s *spec.Spec, m metrics.StepMetrics) StepResult {
 	return r
 }
 
-// judgeCheck applies one limit to one step; a known value is stored in
-// *slot, which the check's Value then points to. A check that does not
-// pass comes with its reason, whose text is also the check's Reason.
-func judgeCheck(s *spec.Spec, name metrics.Name, m metrics.StepMetrics, slot *float64) (Check, Reason) {
+// judgeCheck applies one limit to one step. The check's numbers are stored
+// in slots (value, u, resolution, guard band), which its pointers then
+// point to. A check that does not pass comes with its reason, whose text
+// is also the check's Reason.
+func judgeCheck(s *spec.Spec, name metrics.Name, m metrics.StepMetrics, u *metrics.StepUncertainty, slots []float64) (Check, Reason) {
 	lim := s.Limits[name]
 	// The bounds are the spec's own, shared by every check of the batch and
 	// never written through.
@@ -90,17 +118,57 @@ func judgeCheck(s *spec.Spec, name metrics.Name, m metrics.StepMetrics, slot *fl
 	case !v.OK:
 		c.Verdict, why = Invalid, notMeasuredReason(name, step, v)
 	default:
-		*slot = v.V
-		c.Value = slot
-		switch {
-		case lim.Min != nil && v.V < *lim.Min:
-			c.Verdict, why = Fail, limitReason(BelowMin, name, step, v.V, *lim.Min)
-		case lim.Max != nil && v.V > *lim.Max:
-			c.Verdict, why = Fail, limitReason(AboveMax, name, step, v.V, *lim.Max)
+		slots[0] = v.V
+		c.Value = &slots[0]
+		U := metrics.Unknown("uncertainty not evaluated")
+		if u != nil {
+			U = u.Expanded(name)
 		}
+		if U.OK {
+			slots[1] = U.V / metrics.CoverageFactor
+			c.U = &slots[1]
+		}
+		cmp := comparer{res: metricResolution(s, name, m, u)}
+		if cmp.res > 0 {
+			slots[2] = cmp.res
+			c.Resolution = &slots[2]
+		}
+		c.Conformity = cmp.conformity(v.V, lim, U)
+		c.Verdict, why = decide(s, name, step, v.V, lim, U, cmp, &c, &slots[3])
 	}
 	c.Reason = why.Text
 	return c, why
+}
+
+// decide applies the decision rule to a measured value v: its limits
+// first, then, under guarded acceptance, the guard band w, stored in *w
+// and pointed to by c.GuardBand.
+func decide(s *spec.Spec, name metrics.Name, step int, v float64, lim spec.Limit, U metrics.Value, cmp comparer, c *Check, w *float64) (Verdict, Reason) {
+	band, ok := s.GuardBand(lim, U)
+	if ok && s.Guarded() {
+		*w = band
+		c.GuardBand = w
+	}
+	switch {
+	case lim.Min != nil && cmp.excess(v, *lim.Min, -1) > 0:
+		return Fail, limitReason(BelowMin, name, step, v, *lim.Min)
+	case lim.Max != nil && cmp.excess(v, *lim.Max, 1) > 0:
+		return Fail, limitReason(AboveMax, name, step, v, *lim.Max)
+	case !s.Guarded():
+		return Pass, Reason{}
+	case !ok:
+		return Invalid, noUncertaintyReason(name, step)
+	}
+	// Inside the acceptance zone means more than w inside the limit, at
+	// the resolution: a value exactly w inside is on the zone's edge and
+	// accepted.
+	if lim.Max != nil && cmp.excess(v, *lim.Max-band, 1) > 0 {
+		return Fail, guardReason(name, step, v, *lim.Max, band, true)
+	}
+	if lim.Min != nil && cmp.excess(v, *lim.Min+band, -1) > 0 {
+		return Fail, guardReason(name, step, v, *lim.Min, band, false)
+	}
+	return Pass, Reason{}
 }
 
 // JudgeUnit combines a unit's step results: invalid when no step was found,
@@ -131,12 +199,20 @@ func JudgeUnit(s *spec.Spec, steps []StepResult) (Verdict, []Reason) {
 	return Pass, reasons
 }
 
-// Count tallies units by verdict. A unit whose verdict is none of pass,
+// Count tallies units by verdict, and the units whose worst conformity
+// statement is conditional apart (Summary.ConditionalPass,
+// ConditionalFail). A unit whose verdict is none of pass,
 // fail and invalid could not show pass or fail, and is counted invalid, so
 // that Pass + Fail + Invalid = Units.
 func Count(units []UnitResult) Summary {
 	sum := Summary{Units: len(units)}
 	for _, u := range units {
+		switch u.Conformity() {
+		case ConditionalPass:
+			sum.ConditionalPass++
+		case ConditionalFail:
+			sum.ConditionalFail++
+		}
 		switch u.Verdict {
 		case Pass:
 			sum.Pass++

@@ -252,6 +252,12 @@ func (r *runner) assemble(results []acceptance.UnitResult) *acceptance.Batch {
 		Notice:    acceptance.Notice,
 		TestDates: testDates(results),
 		MaxPages:  r.o.MaxUnitPages,
+		// A spec built in code may leave the rule empty: simple is the
+		// default.
+		DecisionRule: sp.DecisionRule,
+	}
+	if b.DecisionRule == "" {
+		b.DecisionRule = spec.RuleSimple
 	}
 	if b.Limits == nil {
 		b.Limits = map[metrics.Name]spec.Limit{}
@@ -330,9 +336,11 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 	if tr.Effort != nil {
 		limit = effortLimit(tr, sp)
 	}
+	uo := metrics.UncertaintyOptions{Resolution: sp.ResponseResolution, Seed: uncertaintySeed}
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
-		sr := acceptance.JudgeStep(sp, m)
+		mu := metrics.MeasureUncertainty(tr, m, opts, uo)
+		sr := acceptance.JudgeStepWith(sp, m, &mu)
 		sr.Evidence = stepEvidence(tr, m, opts, limit)
 		if pred != nil {
 			pred.attach(&sr, m, tr)
@@ -354,6 +362,10 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 	}
 	return u, lg.Size, &tr
 }
+
+// uncertaintySeed seeds the Monte Carlo evaluations of every step's
+// uncertainty, so that a batch run twice gives the same numbers.
+const uncertaintySeed = 0x5eed1
 
 // readReason is a read error without the file name, which the unit carries.
 func readReason(err error) string {

@@ -112,6 +112,10 @@ func (e *encoder) head(b *acceptance.Batch, id string) {
 	e.FloatPtr(b.Summary.FirstPassYieldPct)
 	e.Member(2, `"final_yield_pct": `)
 	e.FloatPtr(b.Summary.FinalYieldPct)
+	e.Member(2, `"conditional_pass": `)
+	e.Int(b.Summary.ConditionalPass)
+	e.Member(2, `"conditional_fail": `)
+	e.Int(b.Summary.ConditionalFail)
 	e.Close(1, '}')
 	e.Member(1, `"units": `)
 }
@@ -163,6 +167,8 @@ func (e *encoder) tail(b *acceptance.Batch) {
 	e.Member(2, `"last": `)
 	e.Str(b.TestDates.Last)
 	e.Close(1, '}')
+	e.Member(1, `"decision_rule": `)
+	e.Str(b.DecisionRule)
 }
 
 // specPaths appends the spec's path as given and resolved, members of the

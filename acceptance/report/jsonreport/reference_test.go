@@ -30,6 +30,7 @@ type refBatch struct {
 	ReportDate    string              `json:"report_date"`
 	Notice        string              `json:"notice"`
 	TestDates     refDates            `json:"test_dates"`
+	DecisionRule  string              `json:"decision_rule"`
 }
 
 type refTool struct {
@@ -63,6 +64,8 @@ type refSummary struct {
 	Retested          int      `json:"retested"`
 	FirstPassYieldPct *float64 `json:"first_pass_yield_pct"`
 	FinalYieldPct     *float64 `json:"final_yield_pct"`
+	ConditionalPass   int      `json:"conditional_pass"`
+	ConditionalFail   int      `json:"conditional_fail"`
 }
 
 type refLimit struct {
@@ -99,19 +102,20 @@ type refAxis struct {
 }
 
 type refStep struct {
-	Index      int                     `json:"index"`
-	Axis       string                  `json:"axis,omitempty"`
-	StartS     float64                 `json:"start_s"`
-	From       float64                 `json:"from"`
-	To         float64                 `json:"to"`
-	Verdict    string                  `json:"verdict"`
-	Reasons    []string                `json:"reasons"`
-	Metrics    map[string]*float64     `json:"metrics"`
-	Checks     []refCheck              `json:"checks"`
-	Predicted  *refPrediction          `json:"predicted,omitempty"`
-	Gap        map[string]*float64     `json:"gap,omitempty"`
-	Evidence   *refEvidence            `json:"evidence,omitempty"`
-	Unmeasured map[metrics.Name]string `json:"unmeasured"`
+	Index       int                     `json:"index"`
+	Axis        string                  `json:"axis,omitempty"`
+	StartS      float64                 `json:"start_s"`
+	From        float64                 `json:"from"`
+	To          float64                 `json:"to"`
+	Verdict     string                  `json:"verdict"`
+	Reasons     []string                `json:"reasons"`
+	Metrics     map[string]*float64     `json:"metrics"`
+	Checks      []refCheck              `json:"checks"`
+	Uncertainty map[string]*float64     `json:"uncertainty"`
+	Predicted   *refPrediction          `json:"predicted,omitempty"`
+	Gap         map[string]*float64     `json:"gap,omitempty"`
+	Evidence    *refEvidence            `json:"evidence,omitempty"`
+	Unmeasured  map[metrics.Name]string `json:"unmeasured"`
 }
 
 type refCheck struct {
@@ -121,6 +125,11 @@ type refCheck struct {
 	Max     *float64 `json:"max"`
 	Verdict string   `json:"verdict"`
 	Reason  string   `json:"reason,omitempty"`
+	// U is the standard uncertainty u; Conformity null when unknown.
+	U          *float64 `json:"u"`
+	Conformity *string  `json:"conformity"`
+	Resolution *float64 `json:"resolution"`
+	GuardBand  *float64 `json:"guard_band,omitempty"`
 }
 
 type refPrediction struct {
@@ -216,8 +225,9 @@ func refOf(b *acceptance.Batch) *refBatch {
 		Tool: refTool{b.Tool.Name, b.Tool.Version},
 		Spec: refSpec{SpecID: b.Spec.SpecID, Revision: b.Spec.Revision, SHA256: b.Spec.SHA256, Title: b.Spec.Title},
 		Summary: refSummary{b.Summary.Units, b.Summary.Pass, b.Summary.Fail, b.Summary.Invalid,
-			b.Summary.Serials, b.Summary.Retested, b.Summary.FirstPassYieldPct, b.Summary.FinalYieldPct},
-		ReportDate: b.ReportDate, Notice: b.Notice,
+			b.Summary.Serials, b.Summary.Retested, b.Summary.FirstPassYieldPct, b.Summary.FinalYieldPct,
+			b.Summary.ConditionalPass, b.Summary.ConditionalFail},
+		ReportDate: b.ReportDate, Notice: b.Notice, DecisionRule: b.DecisionRule,
 		TestDates: refDates{b.TestDates.First, b.TestDates.Last},
 	}
 	for _, n := range metrics.Names {
@@ -272,11 +282,16 @@ func refOfUnit(u *acceptance.UnitResult) refUnit {
 
 func refOfStep(s *acceptance.StepResult) refStep {
 	r := refStep{Index: s.Index, Axis: s.Axis, StartS: s.StartS, From: s.From, To: s.To, Verdict: string(s.Verdict), Reasons: refReasons(s.Reasons),
-		Metrics: refMetrics(&s.Metrics), Unmeasured: s.Metrics.Unmeasured()}
+		Metrics: refMetrics(&s.Metrics), Uncertainty: refMetrics(&s.Uncertainty), Unmeasured: s.Metrics.Unmeasured()}
 	if s.Checks != nil {
 		r.Checks = []refCheck{}
 		for _, c := range s.Checks {
-			r.Checks = append(r.Checks, refCheck{string(c.Metric), c.Value, c.Min, c.Max, string(c.Verdict), c.Reason})
+			var conf *string
+			if c.Conformity != "" {
+				x := string(c.Conformity)
+				conf = &x
+			}
+			r.Checks = append(r.Checks, refCheck{string(c.Metric), c.Value, c.Min, c.Max, string(c.Verdict), c.Reason, c.U, conf, c.Resolution, c.GuardBand})
 		}
 	}
 	if s.Predicted != nil {

@@ -127,6 +127,8 @@ func (e *encoder) step(d int, s *acceptance.StepResult) {
 	e.metricSet(m, &s.Metrics)
 	e.Member(m, `"checks": `)
 	e.Array(m, s.Checks == nil, len(s.Checks), func(i int) { e.check(m+1, &s.Checks[i]) })
+	e.Member(m, `"uncertainty": `)
+	e.metricSet(m, &s.Uncertainty)
 	if s.Predicted != nil {
 		e.Member(m, `"predicted": `)
 		e.prediction(m, s.Predicted)
@@ -168,6 +170,20 @@ func (e *encoder) check(d int, c *acceptance.Check) {
 	if c.Reason != "" {
 		e.Member(m, `"reason": `)
 		e.Str(c.Reason)
+	}
+	e.Member(m, `"u": `)
+	e.FloatPtr(c.U)
+	e.Member(m, `"conformity": `)
+	if c.Conformity == "" {
+		e.Null()
+	} else {
+		e.Str(string(c.Conformity))
+	}
+	e.Member(m, `"resolution": `)
+	e.FloatPtr(c.Resolution)
+	if c.GuardBand != nil {
+		e.Member(m, `"guard_band": `)
+		e.Float(*c.GuardBand)
 	}
 	e.Close(d, '}')
 }

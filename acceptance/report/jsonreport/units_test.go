@@ -203,8 +203,10 @@ func fixtureUnits() []acceptance.UnitResult {
 			metrics.SteadyStateError: {V: math.NaN(), Why: "computed value is not finite"},
 			metrics.PeakTime:         metrics.Unknown(awkward[2]),
 		}),
+		Uncertainty: metricsWith([]float64{0.9, 1e-7, 0}, map[metrics.Name]metrics.Value{metrics.SettlingTime: metrics.Unknown("")}),
 		Checks: []acceptance.Check{
-			{Metric: "overshoot_pct", Value: floatPtr(9.1), Min: floatPtr(-1e-7), Max: floatPtr(8), Verdict: acceptance.Fail, Reason: "overshoot_pct 9.1 > 8 <&>"},
+			{Metric: "overshoot_pct", Value: floatPtr(9.1), Min: floatPtr(-1e-7), Max: floatPtr(8), Verdict: acceptance.Fail, Reason: "overshoot_pct 9.1 > 8 <&>",
+				U: floatPtr(0.45), Conformity: acceptance.ConditionalFail, Resolution: floatPtr(1e-7), GuardBand: floatPtr(0.9)},
 			{Metric: "settling_time_s", Verdict: acceptance.Invalid, Reason: awkward[3]},
 			{Metric: metrics.Name(awkward[0]), Value: floatPtr(5e-324), Max: floatPtr(1e21), Verdict: acceptance.Pass},
 		},
