@@ -159,6 +159,16 @@ func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, sta
 			continue
 		}
 		l := b.Limits[name]
+		// A time limit counts from the step instant, except the settling
+		// after a move, which counts from the end of the commanded move.
+		from := p.Start
+		if name == metrics.SettlingAfterMove {
+			mt, _ := s.Metrics.Lookup(metrics.MoveTime)
+			if !mt.OK {
+				continue
+			}
+			from += mt.V
+		}
 		for _, side := range []struct {
 			v    *float64
 			word string
@@ -167,7 +177,7 @@ func panel(b *acceptance.Batch, tr *metrics.Trace, s *acceptance.StepResult, sta
 				continue
 			}
 			label := strings.ReplaceAll(digest.MetricLabel(name), " ", "-") + " " + side.word + " " + digest.Num(*side.v) + " s"
-			p.Marks = append(p.Marks, Mark{At: p.Start + *side.v, Label: label, kind: name})
+			p.Marks = append(p.Marks, Mark{At: from + *side.v, Label: label, kind: name})
 		}
 	}
 	return p
