@@ -75,7 +75,7 @@ spec's model prediction, and writes results.json, report.xlsx and report.pdf.
 		SilenceErrors: true,
 		Version:       version,
 	}
-	root.AddCommand(newRunCmd(), newDemoCmd(), newSpecCmd(), newPredictCmd(), newIdentifyCmd())
+	root.AddCommand(newRunCmd(), newDemoCmd(), newSpecCmd(), newPredictCmd(), newIdentifyCmd(), newHistoryCmd())
 	return root
 }
 

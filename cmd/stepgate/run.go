@@ -36,6 +36,12 @@ type runOptions struct {
 	CPUProfile     string // --cpu-profile FILE (hidden, for developers)
 	MemProfile     string // --mem-profile FILE (hidden, for developers)
 	Timing         bool   // --timing: print the timing even when quiet (hidden)
+	// Record (--record DB) is the line record the run's units are stored
+	// in: a SQLite file path or a postgres:// URL; empty: none.
+	Record string
+	// Operator (--operator) is who ran the run, as the record keeps it;
+	// empty: $USER, else $LOGNAME.
+	Operator string
 }
 
 // defaultRunOptions are the run options the command line starts from.
@@ -68,6 +74,8 @@ func newRunCmd() *cobra.Command {
 	fl.BoolVar(&o.Verbose, "verbose", false, "list every unit with all its reasons, and the run's timing on stderr")
 	fl.StringVar(&o.CPUProfile, "cpu-profile", "", "write a CPU profile of the run to this file (for developers)")
 	fl.StringVar(&o.MemProfile, "mem-profile", "", "write a heap profile at the end of the run to this file (for developers)")
+	fl.StringVar(&o.Record, "record", "", "store every judged unit in this line record: a SQLite file path or a postgres:// URL (earlier attempts of a serial count in its attempt numbers and the yields)")
+	fl.StringVar(&o.Operator, "operator", "", "who ran the run, as the line record keeps it (default: $USER)")
 	fl.BoolVar(&o.Timing, "timing", false, "print the run's timing on stderr, even with --quiet (for developers)")
 	fl.MarkHidden("timing")
 	fl.MarkHidden("cpu-profile")
@@ -118,6 +126,7 @@ func runBatch(ctx context.Context, s streams, o runOptions) error {
 	if err != nil {
 		return usageErr(fmt.Errorf("%w; no report written", err))
 	}
+	lr := openRecord(ctx, o.Record, b)
 	paths, err := report.WriteAll(ctx, o.Out, b, recs, report.Options{PDF: pdfreport.Options{AllUnits: o.AllUnits}})
 	if err != nil {
 		return usageErr(err)
@@ -126,6 +135,9 @@ func runBatch(ctx context.Context, s streams, o runOptions) error {
 		return usageErr(fmt.Errorf("interrupted after the reports were written"))
 	}
 	printOutcome(s, o, b, paths, len(in.files), tm)
+	if err := lr.write(ctx, s, o, b); err != nil {
+		return err
+	}
 	if b.Summary.Pass != b.Summary.Units {
 		return &exitError{code: 1, err: errUnitsNotPassed}
 	}
