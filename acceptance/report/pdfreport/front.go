@@ -30,6 +30,7 @@ func (r *report) front() error {
 	p, b := r.pdf, r.b
 	p.AddPage()
 	r.font("B", 17)
+	r.bookmark("Summary", 0)
 	p.CellFormat(contentW, 9, r.fit(ReportTitle, contentW), "", 1, "L", false, 0, "")
 	if b.Spec.Title != "" {
 		r.font("", 12)

@@ -28,9 +28,10 @@ func (r *report) histograms() error {
 			p.AddPage()
 			title := "Distribution of the limited metrics"
 			if i > 0 {
-				title += " (continued)"
+				r.headingMore(title+" (continued)", histH)
+			} else {
+				r.heading(title, histH)
 			}
-			r.heading(title, histH)
 			if i == 0 {
 				r.para(textHistogramKey, 8.5, 4.3, grey)
 				p.Ln(1)

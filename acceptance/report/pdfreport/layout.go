@@ -29,6 +29,7 @@ var (
 	grey      = rgb{90, 90, 90}
 	lightGrey = rgb{235, 235, 235}
 	ruleGrey  = rgb{190, 190, 190}
+	linkBlue  = rgb{0, 70, 160}
 
 	passFill    = rgb{212, 237, 218}
 	passText    = rgb{21, 87, 36}
@@ -212,14 +213,37 @@ func (l *layout) ensure(h float64) bool {
 }
 
 // heading prints a section heading, keeping at least keep millimetres of
-// the section on the same page.
+// the section on the same page, and enters it in the document outline.
 func (l *layout) heading(s string, keep float64) {
 	l.ensure(9 + keep)
 	l.pdf.Ln(2)
 	l.font("B", 12)
 	l.textColour(black)
+	l.bookmark(s, 0)
+	l.headingText(s)
+}
+
+// headingMore prints the heading of a section continued on a new page,
+// without a second outline entry.
+func (l *layout) headingMore(s string, keep float64) {
+	l.ensure(9 + keep)
+	l.pdf.Ln(2)
+	l.font("B", 12)
+	l.textColour(black)
+	l.headingText(s)
+}
+
+// headingText prints a heading line in the font in force.
+func (l *layout) headingText(s string) {
 	l.pdf.CellFormat(contentW, 7, l.fit(s, contentW), "", 1, "L", false, 0, "")
 	l.pdf.Ln(1)
+}
+
+// bookmark enters s in the document outline at the given level (0 for a
+// section), pointing at the current position. The font must be selected:
+// gofpdf encodes the title for the font in force.
+func (l *layout) bookmark(s string, level int) {
+	l.pdf.Bookmark(pdfenc.Clean(s), level, -1)
 }
 
 // subheading prints a smaller heading.
@@ -257,6 +281,7 @@ type cell struct {
 	bold       bool
 	fill, ink  *rgb
 	smallerInk bool // grey text for a secondary value
+	link       int  // internal link the cell points to (gofpdf AddLink), 0 for none
 }
 
 func txt(s string) cell { return cell{text: s} }
@@ -352,6 +377,9 @@ func (l *layout) tableCell(ce cell, lines []string, x, y float64, c column, h fl
 	if ce.smallerInk {
 		ink = grey
 	}
+	if ce.link != 0 {
+		ink = linkBlue
+	}
 	if ce.ink != nil {
 		ink = *ce.ink
 	}
@@ -364,6 +392,9 @@ func (l *layout) tableCell(ce cell, lines []string, x, y float64, c column, h fl
 		}
 		l.pdf.SetXY(x, y+0.6+float64(k)*lineH)
 		l.pdf.CellFormat(c.width, lineH, line, "", 0, c.align, false, 0, "")
+	}
+	if ce.link != 0 {
+		l.pdf.Link(x, y, c.width, h, ce.link)
 	}
 }
 

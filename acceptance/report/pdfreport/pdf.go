@@ -83,6 +83,12 @@ func layOut(d *digest.Digest, traces digest.TraceStore, o Options, compress bool
 	}
 
 	r := &report{layout: layout{pdf: pdf}, b: b, d: d, o: o, id: d.ID, unit: d.ResponseUnit}
+	// The unit tables link to the unit pages, which come after them.
+	pages := b.PageUnits(o.AllUnits)
+	r.pageLink = make(map[int]int, len(pages))
+	for _, i := range pages {
+		r.pageLink[i] = pdf.AddLink()
+	}
 	tool := strings.TrimSpace(b.Tool.Name + " " + b.Tool.Version)
 	pdf.SetProducer(pdfenc.Clean(tool), true)
 	pdf.SetCreator(pdfenc.Clean(tool), true)
@@ -119,7 +125,6 @@ func layOut(d *digest.Digest, traces digest.TraceStore, o Options, compress bool
 			return nil, fmt.Errorf("pdfreport: %s: %w", s.what, err)
 		}
 	}
-	pages := b.PageUnits(o.AllUnits)
 	next, stop := figures(b, traces, pages)
 	defer stop()
 	for _, i := range pages {
@@ -145,6 +150,10 @@ type report struct {
 	logoName string // registered logo image, "" without one
 	logoInfo *gofpdf.ImageInfoType
 	histTop  float64 // top of the current histogram grid, mm
+	// pageLink is the internal link to each unit page, by unit index.
+	pageLink map[int]int
+	// unitMarks is set once the outline has its entry for the unit pages.
+	unitMarks bool
 }
 
 func (r *report) header() {

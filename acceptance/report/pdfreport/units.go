@@ -95,7 +95,7 @@ func (r *report) unitTable() {
 			reason = digest.FirstReason(u)
 		}
 		return []cell{
-			{text: strconv.Itoa(i + 1), smallerInk: true}, txt(u.Unit), txt(filepath.Base(u.File)),
+			{text: strconv.Itoa(i + 1), smallerInk: true}, {text: u.Unit, link: r.pageLink[i]}, txt(filepath.Base(u.File)),
 			txt(strconv.Itoa(len(u.Steps))), verdictCell(u.Verdict), txt(reason),
 		}
 	}
@@ -147,7 +147,7 @@ func (r *report) unitTable() {
 	} else {
 		which = fmt.Sprintf("the first %d of the %d units that did not pass have", pages, nBad)
 	}
-	r.para("# is the unit's place in the batch. Long texts are shortened with “…”; "+which+" a detail page with all its reasons.", 8, 4.2, grey)
+	r.para("# is the unit's place in the batch. Long texts are shortened with “…”; "+which+" a detail page with all its reasons; its name in blue links to it.", 8, 4.2, grey)
 }
 
 // maxTableRows is the most rows a unit table lists; the XLSX lists all.
@@ -158,6 +158,14 @@ func (r *report) unitPage(i int, fig *unitFig) error {
 	p.AddPage()
 	r.font("B", 13)
 	y := p.GetY()
+	if link, ok := r.pageLink[i]; ok {
+		p.SetLink(link, y, -1)
+	}
+	if !r.unitMarks {
+		r.bookmark("Unit pages", 0)
+		r.unitMarks = true
+	}
+	r.bookmark("Unit "+u.Unit+": "+verdictWord(u.Verdict), 1)
 	p.CellFormat(contentW-30, 7, r.fit("Unit "+u.Unit, contentW-30), "", 0, "L", false, 0, "")
 	fill, ink := verdictColours(u.Verdict)
 	r.fillColour(fill)
