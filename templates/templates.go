@@ -20,8 +20,8 @@ var Cautions string
 // designed gain.
 const GainCaution = `CAUTION: a gain computed from a linear model with an infinitely fast loop is
 optimistic. A real bench often starts to overshoot at a clearly lower gain
-than the calculation gives (half to two thirds of it is not unusual, because
-of friction near zero speed and delay in the loop; common practice). Reduce
+than the calculation gives, because of friction near zero speed and delay
+in the loop, which the model leaves out. Reduce
 the computed gain, try it on the machine with guards and interlocks in place
 and the emergency stop tested, and fine-tune from there. A gain change can
 cause unexpected motion and larger overshoot.`

@@ -34,7 +34,7 @@ func TestPhrases(t *testing.T) {
 	}
 	capability, _ := Phrase("capability")
 	for _, w := range []string{"Cp = (USL − LSL)/(6σ)", "Cpk = min(USL − μ, μ − LSL)/(3σ)", "Cpu = (USL − μ)/(3σ)",
-		"Cpl = (μ − LSL)/(3σ)", "ISO 22514-2", "AIAG", "fewer than 30", "(common practice, no source)"} {
+		"Cpl = (μ − LSL)/(3σ)", "ISO 22514-2", "AIAG", "fewer than 30", "the spec owner's rule"} {
 		if !strings.Contains(capability, w) {
 			t.Errorf("capability phrase lacks %q", w)
 		}
