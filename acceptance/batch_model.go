@@ -39,6 +39,10 @@ type Batch struct {
 	TestDates DateRange `json:"test_dates"`
 	// DecisionRule is the spec's decision rule, simple or guarded.
 	DecisionRule string `json:"decision_rule"`
+	// Excluded lists the files found that the spec's or the command line's
+	// include and exclude patterns left out, each with its pattern; empty
+	// (and left out of results.json) when none was.
+	Excluded []ExcludedFile `json:"excluded,omitempty"`
 
 	// Run is how the batch was asked for: the spec's path and the options
 	// that change the reports; nil for a batch not made by the command line.
@@ -351,3 +355,9 @@ func (b *Batch) PageUnits(all bool) []int {
 // Notice is the statement every results.json carries: what the batch's
 // verdicts are and are not (templates/wording.txt's [notice]).
 var Notice = templates.MustPhrase("notice")
+
+// ExcludedFile is a file a search found and a pattern left out.
+type ExcludedFile struct {
+	File    string `json:"file"`    // the path as the search found it
+	Pattern string `json:"pattern"` // the exclude pattern, or "not matched by include: …"
+}

@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"path/filepath"
 	"runtime"
 	"sort"
 	"strings"
@@ -407,11 +406,9 @@ func fileDigest(path string) string {
 	return hex.EncodeToString(h.Sum(nil))
 }
 
-// unitFromPath is the file name without its extension.
-func unitFromPath(path string) string {
-	base := filepath.Base(path)
-	return strings.TrimSuffix(base, filepath.Ext(base))
-}
+// unitFromPath is the file (or archive member) name without its
+// directories and extensions (logs.UnitName).
+func unitFromPath(path string) string { return logs.UnitName(path) }
 
 // flagDuplicates flags, within each serial (units are sorted by serial,
 // then as attempts, so a serial's files are adjacent):

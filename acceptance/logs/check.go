@@ -61,7 +61,7 @@ func (rd *Reader) checkPeriod(t []float64) error {
 
 // checkScale refuses a response that lies a factor of ScaleFactor or more
 // from the command's scale: its level far above the command's, or
-// following the command's shape (correlation above 0.9) at a gain beyond
+// following the command's shape (correlation above 0.8) at a gain beyond
 // ScaleFactor either way. A response that does not move, or moves the
 // wrong way at the command's scale, is measured and judged, not refused.
 func (rd *Reader) checkScale(c, r []float64) error {
@@ -94,9 +94,9 @@ func (rd *Reader) checkScale(c, r []float64) error {
 	case rabs > ScaleFactor*cmax:
 		what = fmt.Sprintf("its mean level %s is %s times the command's largest value %s",
 			fmtG(rabs), fmtG(rabs/cmax), fmtG(cmax))
-	case g >= ScaleFactor && math.Abs(corr) > 0.9:
+	case g >= ScaleFactor && math.Abs(corr) > 0.8:
 		what = fmt.Sprintf("it follows the command %s times as large", fmtG(gain))
-	case g > 0 && g <= 1/float64(ScaleFactor) && math.Abs(corr) > 0.9:
+	case g > 0 && g <= 1/float64(ScaleFactor) && math.Abs(corr) > 0.8:
 		what = fmt.Sprintf("it follows the command at %s of its size", fmtG(gain))
 	default:
 		return nil

@@ -63,5 +63,6 @@ func ExampleFindLogs() {
 	// Output:
 	// day1/u1.csv
 	// day1/u2.CSV
+	// day2/readme.md
 	// day2/u3.tsv
 }

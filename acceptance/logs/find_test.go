@@ -57,13 +57,17 @@ func TestFindLogs(t *testing.T) {
 		exclude []string
 		want    []string
 	}{
+		// Every regular file is found, logs by name or not (notes.md and
+		// noext become units refused as not step-test logs).
 		{"directory tree", []string{"logs"}, nil, []string{
 			"logs/B.CSV", "logs/a.csv", "logs/c.tsv", "logs/d.txt", "logs/day1/deep/g.Txt", "logs/day1/f.csv",
-			"logs/ext/z.csv", "logs/rejected/h.csv", "logs/rejected/sub/i.csv"}},
+			"logs/e.csv.gz", "logs/ext/z.csv", "logs/noext", "logs/notes.md", "logs/rejected/h.csv", "logs/rejected/sub/i.csv"}},
 		{"excluded directory", []string{"./logs/"}, []string{"logs/rejected"}, []string{
-			"logs/B.CSV", "logs/a.csv", "logs/c.tsv", "logs/d.txt", "logs/day1/deep/g.Txt", "logs/day1/f.csv", "logs/ext/z.csv"}},
+			"logs/B.CSV", "logs/a.csv", "logs/c.tsv", "logs/d.txt", "logs/day1/deep/g.Txt", "logs/day1/f.csv",
+			"logs/e.csv.gz", "logs/ext/z.csv", "logs/noext", "logs/notes.md"}},
 		{"excluded through a link", []string{"logs"}, []string{"other", "logs/day1/deep"}, []string{
-			"logs/B.CSV", "logs/a.csv", "logs/c.tsv", "logs/d.txt", "logs/day1/f.csv", "logs/rejected/h.csv", "logs/rejected/sub/i.csv"}},
+			"logs/B.CSV", "logs/a.csv", "logs/c.tsv", "logs/d.txt", "logs/day1/f.csv", "logs/e.csv.gz", "logs/noext", "logs/notes.md",
+			"logs/rejected/h.csv", "logs/rejected/sub/i.csv"}},
 		{"file as given, any extension", []string{"single.dat", "logs/day1/f.csv"}, nil, []string{"logs/day1/f.csv", "single.dat"}},
 		{"named file under an excluded directory", []string{"logs/rejected/h.csv"}, []string{"logs/rejected"}, []string{"logs/rejected/h.csv"}},
 		{"duplicates removed", []string{"logs/day1/deep", "logs/day1/deep/g.Txt", filepath.Join(root, "logs", "day1", "deep"), "logs/day1/deep"}, nil,
@@ -72,7 +76,8 @@ func TestFindLogs(t *testing.T) {
 			[]string{filepath.Join(root, "logs/day1/deep/g.Txt")}},
 		{"link to a parent followed once", []string{"logs/day1"}, nil, []string{
 			"logs/day1/deep/g.Txt", "logs/day1/f.csv", "logs/day1/loop/B.CSV", "logs/day1/loop/a.csv", "logs/day1/loop/c.tsv",
-			"logs/day1/loop/d.txt", "logs/day1/loop/ext/z.csv", "logs/day1/loop/rejected/h.csv", "logs/day1/loop/rejected/sub/i.csv"}},
+			"logs/day1/loop/d.txt", "logs/day1/loop/e.csv.gz", "logs/day1/loop/ext/z.csv", "logs/day1/loop/noext", "logs/day1/loop/notes.md",
+			"logs/day1/loop/rejected/h.csv", "logs/day1/loop/rejected/sub/i.csv"}},
 		{"root inside an excluded directory is searched", []string{"logs/rejected"}, []string{"logs"}, []string{"logs/rejected/h.csv", "logs/rejected/sub/i.csv"}},
 		{"excluded directory inside a root inside another", []string{"logs/rejected"}, []string{"logs", "logs/rejected/sub"}, []string{"logs/rejected/h.csv"}},
 		{"root equal to an excluded directory is searched", []string{"logs/day1/deep"}, []string{"logs/day1/deep"}, []string{"logs/day1/deep/g.Txt"}},
@@ -125,7 +130,7 @@ func TestFindLogsErrors(t *testing.T) {
 func TestIsLogName(t *testing.T) {
 	cases := map[string]bool{
 		"a.csv": true, "A.CSV": true, "b.Tsv": true, "c.txt": true, "dir/x.TXT": true,
-		"a.csv.gz": false, "csv": false, "a.xlsx": false, "a.": false, ".csv": true,
+		"a.csv.gz": true, "lot.ZIP": true, "csv": false, "a.xlsx": false, "a.": false, ".csv": true,
 	}
 	for name, want := range cases {
 		if got := IsLogName(name); got != want {
@@ -172,7 +177,8 @@ func TestFindLogsUnreadableEntries(t *testing.T) {
 }
 
 // Files in a searched directory that are not logs by name are returned
-// apart, so that the caller can say they were not judged.
+// with the logs, so that each becomes a unit ("not a step-test log"); the
+// list of others is empty.
 func TestFindLogsAndOthers(t *testing.T) {
 	dir := t.TempDir()
 	for _, n := range []string{"a.csv", "b.log", "c.TXT", "notes.md"} {
@@ -184,7 +190,7 @@ func TestFindLogsAndOthers(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(logs) != 2 || len(others) != 2 || filepath.Base(others[0]) != "b.log" || filepath.Base(others[1]) != "notes.md" {
+	if len(logs) != 4 || len(others) != 0 {
 		t.Errorf("logs %v, others %v", logs, others)
 	}
 }

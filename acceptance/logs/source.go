@@ -1,6 +1,7 @@
 package logs
 
 import (
+	"errors"
 	"path/filepath"
 	"strings"
 )
@@ -37,7 +38,12 @@ type Layout struct {
 // file named directly on the command line.
 var layouts = []Layout{
 	{Name: "delimited text", Extensions: []string{".csv", ".tsv", ".txt"}, New: newDelimited},
+	{Name: "gzip-compressed log", Extensions: []string{".gz"}, New: newGzip},
+	{Name: "ZIP archive of logs, one unit per member", Extensions: []string{".zip"}, New: newZip},
 }
+
+// zipLayout is the index of the ZIP layout, which reads archive members.
+const zipLayout = 2
 
 // newDelimited is the Source of delimited text logs: a Reader.
 func newDelimited(f Format, o Options) Source {
@@ -97,11 +103,30 @@ type registry struct {
 	src []Source
 }
 
-// ReadFile reads path with the Source of its layout.
+// ReadFile reads path with the Source of its layout: an archive member
+// (SplitMember) with the ZIP layout's. A file of no layout is read as
+// delimited text and, when that fails, refused as not a step-test log
+// (ErrNotLog) with the reason.
 func (r *registry) ReadFile(path string) (*Log, error) {
-	i := max(layoutOf(path), 0)
+	i := layoutOf(path)
+	if _, _, ok := SplitMember(path); ok {
+		i = zipLayout
+	}
+	src := r.source(max(i, 0))
+	lg, err := src.ReadFile(path)
+	if err != nil && i < 0 {
+		var pe *ParseError
+		if errors.As(err, &pe) {
+			err = notLog(path, filepath.Base(path), err)
+		}
+	}
+	return lg, err
+}
+
+// source returns the Source of layout i, made when first needed.
+func (r *registry) source(i int) Source {
 	if r.src[i] == nil {
 		r.src[i] = layouts[i].New(r.f, r.o)
 	}
-	return r.src[i].ReadFile(path)
+	return r.src[i]
 }

@@ -68,7 +68,7 @@ func TestLogExtensions(t *testing.T) {
 	if !slices.Equal(all, logs.LogExtensions) {
 		t.Errorf("LogExtensions = %v, layouts give %v", logs.LogExtensions, all)
 	}
-	if want := "no log files found (looked for .csv, .tsv and .txt)"; logs.ErrNoLogs.Error() != want {
+	if want := "no log files found: the paths hold no files to judge (logs are .csv, .tsv, .txt, .gz and .zip)"; logs.ErrNoLogs.Error() != want {
 		t.Errorf("ErrNoLogs = %q, want %q", logs.ErrNoLogs, want)
 	}
 }

@@ -42,6 +42,9 @@ func TestRunEndToEnd(t *testing.T) {
 	if !strings.Contains(stdout, "units 7: pass 1, fail 3, invalid 3") {
 		t.Errorf("summary line missing from stdout:\n%s", stdout)
 	}
+	if !strings.Contains(stdout, "left out by the include/exclude patterns: 2 file(s)") || !strings.Contains(stdout, "README.md  (*.md)") {
+		t.Errorf("the files the spec's patterns exclude are not listed on stdout:\n%s", stdout)
+	}
 	checkE2EResults(t, filepath.Join(out, "results.json"))
 	checkE2EWorkbook(t, filepath.Join(out, "report.xlsx"))
 	checkE2EPDF(t, filepath.Join(out, "report.pdf"))
@@ -248,7 +251,7 @@ func TestExitCodes(t *testing.T) {
 	}{
 		{"all pass", []string{"run", "--quiet", "--spec", "../../testdata/e2e/spec.yaml", "--out", filepath.Join(dir, "o1"), good}, 0, ""},
 		{"missing spec", []string{"run", "--spec", filepath.Join(dir, "nope.yaml"), "--out", filepath.Join(dir, "o2"), good}, 2, "nope.yaml"},
-		{"no logs", []string{"run", "--spec", "../../testdata/e2e/spec.yaml", "--out", filepath.Join(dir, "o3"), filepath.Join(dir, "o1")}, 2, "no log files"},
+		{"no logs", []string{"run", "--spec", "../../testdata/e2e/spec.yaml", "--out", filepath.Join(dir, "o3"), "--exclude", "*", filepath.Join(dir, "o1")}, 2, "no log files"},
 		{"bad report date", []string{"run", "--spec", "../../testdata/e2e/spec.yaml", "--out", filepath.Join(dir, "o4"), "--report-date", "1/12/26", good}, 2, "YYYY-MM-DD"},
 		{"unknown flag", []string{"run", "--nope"}, 2, "unknown flag"},
 		{"spec check bad", []string{"spec", "check", "../../testdata/specs/invalid_many.yaml"}, 2, "invalid_many.yaml:"},

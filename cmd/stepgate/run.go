@@ -3,6 +3,8 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
+	"path"
 	"path/filepath"
 	"strings"
 	"time"
@@ -42,6 +44,9 @@ type runOptions struct {
 	// Operator (--operator) is who ran the run, as the record keeps it;
 	// empty: $USER, else $LOGNAME.
 	Operator string
+	// Include and Exclude (--include, --exclude, repeatable) add file name
+	// patterns to the spec's log.include and log.exclude.
+	Include, Exclude []string
 }
 
 // defaultRunOptions are the run options the command line starts from.
@@ -70,6 +75,8 @@ func newRunCmd() *cobra.Command {
 	fl.BoolVar(&o.AllUnits, "all-units", false, "give every unit a page in the PDF, not only failing and invalid ones")
 	fl.IntVar(&o.MaxUnitPages, "max-unit-pages", o.MaxUnitPages, "most units with a detail page in the PDF (0: no limit); the XLSX and JSON hold every unit")
 	fl.StringVar(&o.ReportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD (default: SOURCE_DATE_EPOCH, else the newest test date in the logs, else the newest modification date of the log files)")
+	fl.StringArrayVar(&o.Include, "include", nil, "judge only files matching this pattern (repeatable; added to the spec's log.include)")
+	fl.StringArrayVar(&o.Exclude, "exclude", nil, "leave out files matching this pattern, listed in the reports (repeatable; added to the spec's log.exclude)")
 	fl.BoolVar(&o.Quiet, "quiet", false, "print nothing but errors")
 	fl.BoolVar(&o.Verbose, "verbose", false, "list every unit with all its reasons, and the run's timing on stderr")
 	fl.StringVar(&o.CPUProfile, "cpu-profile", "", "write a CPU profile of the run to this file (for developers)")
@@ -88,10 +95,11 @@ func newRunCmd() *cobra.Command {
 
 // runInputs is what a run has resolved before it reads a log.
 type runInputs struct {
-	spec   *spec.Spec
-	date   string // the report date given, or ""
-	outAbs string // the output directory, absolute
-	files  []string
+	spec     *spec.Spec
+	date     string // the report date given, or ""
+	outAbs   string // the output directory, absolute
+	files    []string
+	excluded []logs.Excluded // files the include and exclude patterns left out
 }
 
 // runTiming is how long the run's parts took, for --timing and --verbose.
@@ -176,17 +184,24 @@ func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 		return in, err
 	}
 	// The output directory is skipped wherever a search meets it, so that
-	// nothing stepgate or a user left there is read as a log.
-	files, others, err := logs.FindLogsAndOthers(o.Paths, []string{in.outAbs})
+	// nothing stepgate or a user left there is read as a log. Every other
+	// file found is a unit, unless the spec's or the command line's
+	// patterns leave it out; the reports list those.
+	pat := logs.Patterns{
+		Include: append(append([]string(nil), in.spec.Log.Include...), o.Include...),
+		Exclude: append(append([]string(nil), in.spec.Log.Exclude...), o.Exclude...),
+	}
+	for _, p := range append(append([]string(nil), o.Include...), o.Exclude...) {
+		if _, err := path.Match(p, ""); err != nil || strings.TrimSpace(p) == "" {
+			return in, fmt.Errorf("--include/--exclude %q: not a file name pattern (path.Match syntax: *, ?, [a-z])", p)
+		}
+	}
+	found, err := logs.FindFiles(o.Paths, []string{in.outAbs}, pat)
 	if err != nil {
 		return in, err
 	}
-	if len(others) > 0 && !o.Quiet {
-		// Files that are not logs by name are not judged; say which, so
-		// that a log saved under another extension is not missed unseen.
-		fmt.Fprintf(s.err, "stepgate: %d file(s) in the searched directories are not judged (not %s), e.g. %s\n",
-			len(others), orList(logs.LogExtensions), oneLine(others[0], 120))
-	}
+	files := found.Files
+	in.excluded = found.Excluded
 	if len(files) == 0 {
 		return in, fmt.Errorf("%s: %w", strings.Join(o.Paths, " "), logs.ErrNoLogs)
 	}
@@ -224,6 +239,9 @@ func judge(ctx context.Context, s streams, o runOptions, in runInputs) (*accepta
 		from = acceptance.DateFromFiles
 	}
 	b.Run = runInfo(o, from)
+	for _, x := range in.excluded {
+		b.Excluded = append(b.Excluded, acceptance.ExcludedFile{File: x.File, Pattern: x.Pattern})
+	}
 	if b.ReportDate == "" {
 		// No flag, no SOURCE_DATE_EPOCH and no test date in any log: the
 		// files themselves date the test.
@@ -257,6 +275,7 @@ func runInfo(o runOptions, from string) *acceptance.RunInfo {
 func printOutcome(s streams, o runOptions, b *acceptance.Batch, paths []string, files int, tm runTiming) {
 	if !o.Quiet {
 		printSummary(s.out, b, o.Verbose)
+		printExcluded(s.out, b.Excluded, o.Verbose)
 		for _, p := range paths {
 			fmt.Fprintln(s.out, "wrote", p)
 		}
@@ -275,4 +294,20 @@ func orList(words []string) string {
 		return strings.Join(words, "")
 	}
 	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+}
+
+// printExcluded names the files the patterns left out, each with its
+// pattern: the first five, or all with verbose.
+func printExcluded(w io.Writer, ex []acceptance.ExcludedFile, all bool) {
+	if len(ex) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "left out by the include/exclude patterns: %d file(s), listed in the reports\n", len(ex))
+	for i, x := range ex {
+		if i == 5 && !all {
+			fmt.Fprintf(w, "  … and %d more\n", len(ex)-i)
+			break
+		}
+		fmt.Fprintf(w, "  %s  (%s)\n", x.File, x.Pattern)
+	}
 }

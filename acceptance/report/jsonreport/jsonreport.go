@@ -149,7 +149,8 @@ func (e *encoder) units(w *bufio.Writer, units []acceptance.UnitResult) error {
 }
 
 // tail appends the members after the units: the model, the limits, the
-// report date, the notice and the test dates.
+// report date, the notice, the test dates and, when patterns left files
+// out, the files excluded.
 func (e *encoder) tail(b *acceptance.Batch) {
 	if b.Model != nil {
 		e.Member(1, `"model": `)
@@ -169,6 +170,21 @@ func (e *encoder) tail(b *acceptance.Batch) {
 	e.Close(1, '}')
 	e.Member(1, `"decision_rule": `)
 	e.Str(b.DecisionRule)
+	if len(b.Excluded) > 0 {
+		e.Member(1, `"excluded": [`)
+		for i, x := range b.Excluded {
+			if i > 0 {
+				e.B = append(e.B, ',')
+			}
+			e.NL(2)
+			e.Open(3, `"file": `)
+			e.Str(x.File)
+			e.Member(3, `"pattern": `)
+			e.Str(x.Pattern)
+			e.Close(2, '}')
+		}
+		e.Close(1, ']')
+	}
 }
 
 // specPaths appends the spec's path as given and resolved, members of the

@@ -38,6 +38,8 @@ func TestWriteMatchesReference(t *testing.T) {
 			SpecDoc: &spec.Spec{ResponseUnit: "mm"},
 			Run: &acceptance.RunInfo{SpecPath: "specs/<vd25>.yaml", SpecResolved: "/line/specs/<vd25>.yaml", Inputs: []string{"logs", "a b.csv"},
 				ReportDate: "2026-12-01", ReportDateFrom: acceptance.DateFromOption, AllUnits: true, MaxUnitPages: 0}}},
+		{"files excluded", acceptance.Batch{Units: []acceptance.UnitResult{unit("A1")}, Excluded: []acceptance.ExcludedFile{
+			{File: "lot/notes <1>.md", Pattern: "*.md"}, {File: "lot/a.zip!cal.csv", Pattern: "not matched by include: u*.csv"}}}},
 		{"run without inputs", acceptance.Batch{Run: &acceptance.RunInfo{ReportDateFrom: acceptance.DateFromTests, MaxUnitPages: 200}}},
 		{"three units and a model", acceptance.Batch{
 			Tool: acceptance.ToolInfo{Name: "stepgate", Version: "t"}, Units: []acceptance.UnitResult{unit("A1"), unit("A2"), unit("=1+1")},

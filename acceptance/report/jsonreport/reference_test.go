@@ -31,6 +31,7 @@ type refBatch struct {
 	Notice        string              `json:"notice"`
 	TestDates     refDates            `json:"test_dates"`
 	DecisionRule  string              `json:"decision_rule"`
+	Excluded      []refExcluded       `json:"excluded,omitempty"`
 }
 
 type refTool struct {
@@ -229,6 +230,9 @@ func refOf(b *acceptance.Batch) *refBatch {
 			b.Summary.ConditionalPass, b.Summary.ConditionalFail},
 		ReportDate: b.ReportDate, Notice: b.Notice, DecisionRule: b.DecisionRule,
 		TestDates: refDates{b.TestDates.First, b.TestDates.Last},
+	}
+	for _, x := range b.Excluded {
+		r.Excluded = append(r.Excluded, refExcluded{x.File, x.Pattern})
 	}
 	for _, n := range metrics.Names {
 		if u := n.Unit(digest.ResponseUnit(b)); u != "" {
@@ -438,4 +442,9 @@ func roundFloats(v reflect.Value) {
 			roundFloats(v.Field(i))
 		}
 	}
+}
+
+type refExcluded struct {
+	File    string `json:"file"`
+	Pattern string `json:"pattern"`
 }
