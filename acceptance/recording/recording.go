@@ -66,11 +66,11 @@ func step(s *acceptance.StepResult) record.Step {
 		r.Predicted = &record.Prediction{Kind: s.Predicted.Kind, Metrics: metricList(&s.Predicted.Metrics)}
 	}
 	if s.Gap != nil {
+		// Only the known gaps: a gap is unknown exactly when the measured or
+		// the predicted value is, and those are recorded with their reasons.
 		for i, n := range metrics.Names {
 			if g, ok := s.Gap.At(i); ok && !math.IsNaN(g) && !math.IsInf(g, 0) {
 				r.Gaps = append(r.Gaps, record.Metric{Name: string(n), Value: record.Some(g)})
-			} else {
-				r.Gaps = append(r.Gaps, record.Metric{Name: string(n), Reason: "measured or predicted value unknown"})
 			}
 		}
 	}
