@@ -32,14 +32,15 @@ func TestBlocks(t *testing.T) {
 // its stop categories 0, 1 and 2; ISO 13850 emergency stop; ISO 14118
 // unexpected start-up; ISO 14120 guards; ISO 13849-1 safety-related control
 // parts; IEC 61800-5-2 drive safety functions; OSHA 29 CFR 1910.147
-// lockout/tagout) and marks the gain rule of thumb as one.
+// lockout/tagout) and gives the reason a computed gain is optimistic
+// (friction, loop delay) without an unsourced ratio.
 func TestCautions(t *testing.T) {
 	text := strings.Join(strings.Fields(templates.Cautions), " ")
 	for _, w := range []string{
 		"ISO 12100:2010", "IEC 60204-1", "stop categories 0, 1 and 2", "ISO 13850", "ISO 14118",
 		"ISO 14120", "ISO 13849-1", "IEC 61800-5-2", "OSHA 29 CFR 1910.147", "lockout/tagout",
 		"emergency stop", "guard", "stored energy", "hot", "no safety certification",
-		"half to two thirds", "(common practice, no source)", "competent, licensed practice prevail",
+		"clearly lower gain", "friction near zero speed", "competent, licensed practice prevail",
 	} {
 		if !strings.Contains(text, w) {
 			t.Errorf("cautions lack %q", w)
