@@ -2,6 +2,8 @@ package digest
 
 import (
 	"fmt"
+	"strconv"
+	"strings"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/metrics"
@@ -72,3 +74,16 @@ func Definitions(b *acceptance.Batch) []Definition {
 // §7.8.6 asks that the decision rule be stated; references §6, §7); the
 // text is templates/wording.txt's [decision-rule].
 var DecisionRule = templates.MustPhrase("decision-rule")
+
+// DecisionRuleOf states the decision rule batch b was judged under, simple
+// or guarded, with its risk in words, and the count of units whose worst
+// check was a conditional pass or fail.
+func DecisionRuleOf(b *acceptance.Batch) string {
+	rule := DecisionRule
+	if b.DecisionRule == "guarded" {
+		rule = templates.MustPhrase("decision-rule-guarded")
+	}
+	cond := strings.NewReplacer("{0}", strconv.Itoa(b.Summary.ConditionalPass), "{1}", strconv.Itoa(b.Summary.ConditionalFail)).
+		Replace(templates.MustPhrase("decision-conditional"))
+	return rule + " " + cond
+}

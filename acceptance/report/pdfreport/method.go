@@ -38,7 +38,7 @@ func (r *report) method() {
 	r.limitsTable()
 
 	r.heading("Decision rule", 15)
-	r.para(digest.DecisionRule, 9, 4.6, black)
+	r.para(digest.DecisionRuleOf(r.b), 9, 4.6, black)
 	p.Ln(1)
 	r.para(digest.Phrase("results-relate"), 8.5, 4.3, grey)
 

@@ -133,7 +133,7 @@ func summaryIdentification(w *sheetWriter, d *digest.Digest) {
 	w.pair("spec SHA-256", b.Spec.SHA256, 0)
 	w.pair("tool", b.Tool.Name, 0)
 	w.pair("tool version", b.Tool.Version, 0)
-	w.text("decision rule", digest.DecisionRule, w.st.wrap)
+	w.text("decision rule", digest.DecisionRuleOf(b), w.st.wrap)
 	w.text("note", digest.Phrase("results-relate")+" "+digest.Phrase("xlsx-empty-cell"), w.st.wrap)
 }
 
