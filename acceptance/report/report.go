@@ -11,6 +11,7 @@ import (
 	"sync"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/report/csvreport"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/report/jsonreport"
 	"github.com/stepgate/stepgate/acceptance/report/pdfreport"
@@ -19,22 +20,28 @@ import (
 
 // File names written in the output directory.
 const (
-	JSONName = "results.json"
-	XLSXName = "report.xlsx"
-	PDFName  = "report.pdf"
+	JSONName  = "results.json"
+	UnitsName = "units.jsonl"
+	StepsName = "steps.csv"
+	XLSXName  = "report.xlsx"
+	PDFName   = "report.pdf"
 )
+
+// Names are the files WriteAll writes, in the order it renames them into
+// place.
+var Names = []string{JSONName, UnitsName, StepsName, XLSXName, PDFName}
 
 // Options control the reports.
 type Options struct {
 	PDF pdfreport.Options
 }
 
-// WriteAll writes the three reports of batch b into dir (created if
-// missing): results.json, report.xlsx and report.pdf. It digests the batch
-// once and hands the digest to every writer; the PDF's unit pages draw the
-// records traces gives (the *batch.Records the run returned; nil draws
-// none). Each report is written to a
-// temporary file in dir; only when all three are complete, flushed and
+// WriteAll writes the reports of batch b into dir (created if missing):
+// results.json, units.jsonl, steps.csv, report.xlsx and report.pdf
+// (Names). It digests the batch once and hands the digest to every writer;
+// the PDF's unit pages draw the records traces gives (the *batch.Records
+// the run returned; nil draws none). Each report is written to a
+// temporary file in dir; only when all of them are complete, flushed and
 // synced, and ctx is still live, are they renamed to their final names,
 // one after the other. Once ctx is cancelled (an interrupted run) it
 // renames nothing: the final names keep the previous run's reports, or
@@ -57,10 +64,12 @@ func WriteAll(ctx context.Context, dir string, b *acceptance.Batch, traces diges
 		write func(io.Writer) error
 	}{
 		{JSONName, func(w io.Writer) error { return jsonreport.Write(w, d) }},
+		{UnitsName, func(w io.Writer) error { return jsonreport.WriteUnits(w, d) }},
+		{StepsName, func(w io.Writer) error { return csvreport.Write(w, d) }},
 		{XLSXName, func(w io.Writer) error { return xlsxreport.Write(w, d) }},
 		{PDFName, func(w io.Writer) error { return pdfreport.Write(w, d, traces, o.PDF) }},
 	}
-	// The three reports are written at the same time, each to its own
+	// The reports are written at the same time, each to its own
 	// temporary file; they only read the batch and its digest.
 	temps := make([]string, len(writers))
 	errs := make([]error, len(writers))

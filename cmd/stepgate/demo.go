@@ -34,7 +34,9 @@ func newDemoCmd() *cobra.Command {
 log per unit (out step 0 → 25 mm and back, 1 kHz, 0.01 mm encoder), generated
 deterministically from a seeded rig simulation with unit-to-unit spread, so that
 most units pass and some fail for different reasons, plus one truncated log.
-It then runs the batch and writes the reports under DIR/report.`,
+It then runs the batch and writes the reports under DIR/report. DIR is the
+demo's own: a demo run writes the spec and logs again and replaces the
+reports an earlier demo run left in DIR/report.`,
 		Example: `  stepgate demo --out demo-report
   stepgate demo --out /tmp/line3 --units 200
   stepgate demo --out /tmp/shift --units 5000 --duration-s 6 --no-run`,
@@ -70,6 +72,9 @@ func runDemo(ctx context.Context, s streams, o demoOptions) error {
 	err = runBatch(ctx, s, runOptions{
 		Spec: specPath, Out: filepath.Join(o.Out, "report"), Paths: []string{logDir},
 		ReportDate: o.ReportDate,
+		// The demo folder is the demo's own: each demo run writes its spec
+		// and logs again and replaces the reports it wrote before.
+		Force: true,
 		// Every demo unit that did not pass gets a page.
 		MaxUnitPages: 0,
 	})

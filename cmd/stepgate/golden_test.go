@@ -18,7 +18,7 @@ import (
 // Only after a deliberate change to the reports, reviewed in the diff.
 var updateGolden = flag.Bool("update-golden", false, "rewrite the golden report files")
 
-// TestGoldenReports pins the three reports of two batches byte for byte
+// TestGoldenReports pins the reports of two batches byte for byte
 // under a fixed report date: the demo line, and the bad-input corpus
 // (testdata/bad, every kind of unreadable or unmeasurable log). results.json
 // is kept as a file (so a change shows as a diff), report.xlsx and

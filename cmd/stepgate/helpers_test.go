@@ -23,8 +23,11 @@ import (
 // Helpers of the tests that run stepgate and look at what it leaves on
 // disk: the built binary, snapshots of directories, the reports.
 
-// reportNames are the three files a run writes.
-var reportNames = []string{report.JSONName, report.PDFName, report.XLSXName}
+// reportNames are the files a run writes.
+var reportNames = report.Names
+
+// allReports is the output directory of a complete run, as dirNames lists it.
+const allReports = "report.pdf report.xlsx results.json steps.csv units.jsonl"
 
 // buildStepgate builds the command into dir and returns its path.
 func buildStepgate(t *testing.T, dir string) string {
@@ -97,7 +100,7 @@ func sameTree(t *testing.T, what string, before, after map[string]string) {
 	}
 }
 
-// readReports returns the bytes of the three reports in dir.
+// readReports returns the bytes of the reports in dir.
 func readReports(t *testing.T, dir string) map[string][]byte {
 	t.Helper()
 	out := map[string][]byte{}
@@ -126,10 +129,10 @@ func dirNames(t *testing.T, dir string) []string {
 }
 
 // keepsPreviousReports checks that dir holds exactly the previous run's
-// three reports, byte for byte, and nothing else (no temporary file).
+// reports, byte for byte, and nothing else (no temporary file).
 func keepsPreviousReports(t *testing.T, dir string, previous map[string][]byte) {
 	t.Helper()
-	if got := strings.Join(dirNames(t, dir), " "); got != "report.pdf report.xlsx results.json" {
+	if got := strings.Join(dirNames(t, dir), " "); got != allReports {
 		t.Errorf("output directory holds %q, want the previous reports only", got)
 	}
 	for n, want := range previous {

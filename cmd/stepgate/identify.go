@@ -70,7 +70,7 @@ Columns come from --spec (its signals section) or from --columns.`,
 		Example: `  stepgate identify --gain 10 bench/ref-K10.csv
   stepgate identify --gain 10 --spec vd25.yaml --step 2 --json bench/ref-K10.csv
   stepgate identify --gain 2 --columns time,cmd,pos --time-unit ms ref.csv`,
-		Args: cobra.ExactArgs(1),
+		Args: oneArg("LOG", "the reference step log to fit"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Log = args[0]
 			if cmd.Flags().Changed("min-change") {

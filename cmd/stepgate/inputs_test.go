@@ -55,7 +55,7 @@ func TestOutputInsideInput(t *testing.T) {
 	os.WriteFile(filepath.Join(out, "stray.csv"), bytes.Replace(good, []byte("VD25-261101"), []byte("STRAY-1"), 1), 0o644)
 	os.WriteFile(filepath.Join(out, "results.json"), []byte(`{"previous": true}`), 0o644)
 
-	code, _, stderr := captureRun(t, "run", "--quiet", "--spec", "../../testdata/e2e/spec.yaml", "--out", out, "--report-date", "2026-12-01", logs)
+	code, _, stderr := captureRun(t, "run", "--quiet", "--force", "--spec", "../../testdata/e2e/spec.yaml", "--out", out, "--report-date", "2026-12-01", logs)
 	if code != 1 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -68,7 +68,7 @@ func TestOutputInsideInput(t *testing.T) {
 			t.Errorf("a file of the output directory was judged: %s %s", u.Unit, u.File)
 		}
 	}
-	if got := strings.Join(dirNames(t, out), " "); got != "report.pdf report.xlsx results.json stray.csv" {
+	if got := strings.Join(dirNames(t, out), " "); got != "report.pdf report.xlsx results.json steps.csv stray.csv units.jsonl" {
 		t.Errorf("output directory holds %q", got)
 	}
 
@@ -99,7 +99,7 @@ func TestOutputInsideInput(t *testing.T) {
 // name holds control characters. Everything must stay text: the workbook's
 // cells hold strings, not formulas; no control character reaches the PDF's
 // text or the terminal; results.json is valid JSON that keeps the serials;
-// and the run writes its three reports and nothing else, anywhere.
+// and the run writes its reports and nothing else, anywhere.
 func TestLogTextIsData(t *testing.T) {
 	root := t.TempDir()
 	logs := filepath.Join(root, "logs")
@@ -114,9 +114,9 @@ func TestLogTextIsData(t *testing.T) {
 	if strings.ContainsAny(stdout, "\x07\x1b") || strings.ContainsAny(stderr, "\x07\x1b") {
 		t.Errorf("control characters reached the terminal: %q", stdout)
 	}
-	// Nothing but the three reports was created, anywhere under the test's
+	// Nothing but the reports was created, anywhere under the test's
 	// root (the logs' serials name no file).
-	if got := strings.Join(made(before, snapshot(t, root)), " "); got != "out out/report.pdf out/report.xlsx out/results.json" {
+	if got := strings.Join(made(before, snapshot(t, root)), " "); got != "out out/report.pdf out/report.xlsx out/results.json out/steps.csv out/units.jsonl" {
 		t.Errorf("the run created %q", got)
 	}
 	if _, err := os.Stat(filepath.Join(root, "..", "etc", "x")); !os.IsNotExist(err) {

@@ -5,14 +5,19 @@
 // reference log.
 //
 // Exit status: 0 when every unit passed, 1 when any unit failed or was
-// invalid, 2 for a usage, spec or output error (then no report is written).
+// invalid, 2 for a usage, spec or output error (then no report is written,
+// and an output directory that holds reports is refused without --force),
+// 130 when a run was interrupted.
 package main
 
 import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
+	"runtime/debug"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -22,6 +27,39 @@ import (
 // version is the tool version printed in reports; set with -ldflags at
 // release time.
 var version = "0.1.0-dev"
+
+// versionLine is what --version prints: the version, and the commit the
+// binary was built from when it was built in a repository (Go records it
+// as vcs.revision), marked "modified" when the tree had uncommitted
+// changes.
+func versionLine() string {
+	info, ok := debug.ReadBuildInfo()
+	if !ok {
+		return version
+	}
+	return version + commitOf(info.Settings)
+}
+
+// commitOf formats the build's commit from its settings: " (commit
+// 0123456789ab)", with ", modified" for a tree with changes; "" without
+// a commit.
+func commitOf(settings []debug.BuildSetting) string {
+	var rev, modified string
+	for _, s := range settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.modified":
+			if s.Value == "true" {
+				modified = ", modified"
+			}
+		}
+	}
+	if rev == "" {
+		return ""
+	}
+	return " (commit " + rev[:min(12, len(rev))] + modified + ")"
+}
 
 // exitError carries an exit status with its error.
 type exitError struct {
@@ -43,19 +81,33 @@ func main() {
 func execute(args []string) int {
 	root := newRootCmd()
 	root.SetArgs(args)
-	err := root.Execute()
+	cmd, err := root.ExecuteC()
 	if err == nil {
 		return 0
 	}
 	var ee *exitError
 	if errors.As(err, &ee) {
 		if ee.err != nil && ee.err != errUnitsNotPassed {
-			fmt.Fprintln(os.Stderr, "stepgate:", ee.err)
+			fmt.Fprintln(os.Stderr, "stepgate:", message(ee.err))
 		}
 		return ee.code
 	}
-	fmt.Fprintln(os.Stderr, "stepgate:", err)
+	// Errors that are not an exitError are cobra's: the command line
+	// itself is wrong (a flag, an argument).
+	fmt.Fprintf(os.Stderr, "stepgate: %s; see %s --help\n", message(err), cmd.CommandPath())
 	return 2
+}
+
+// message is err's text with a missing file said in plain words: "no
+// such file or folder: PATH" instead of the system's "stat PATH: no such
+// file or directory".
+func message(err error) string {
+	text := err.Error()
+	var pe *fs.PathError
+	if errors.As(err, &pe) && errors.Is(pe.Err, fs.ErrNotExist) {
+		return strings.Replace(text, pe.Error(), "no such file or folder: "+pe.Path, 1)
+	}
+	return text
 }
 
 // errUnitsNotPassed signals exit status 1 after a complete run.
@@ -73,9 +125,12 @@ spec's model prediction, and writes results.json, report.xlsx and report.pdf.
 ` + templates.HelpNotice,
 		SilenceUsage:  true,
 		SilenceErrors: true,
-		Version:       version,
+		Version:       versionLine(),
 	}
-	root.AddCommand(newRunCmd(), newDemoCmd(), newSpecCmd(), newPredictCmd(), newIdentifyCmd(), newHistoryCmd())
+	// The version flag has no short form: -v is run's --verbose.
+	root.Flags().Bool("version", false, "print the version (and the commit it was built from)")
+	root.SetVersionTemplate("stepgate {{.Version}}\n")
+	root.AddCommand(newRunCmd(), newDemoCmd(), newSpecCmd(), newPredictCmd(), newIdentifyCmd(), newHistoryCmd(), newSchemaCmd())
 	return root
 }
 

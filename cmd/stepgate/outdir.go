@@ -6,6 +6,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"time"
 
@@ -55,6 +56,29 @@ func checkOutNotInput(out, outAbs string, args []string) error {
 		}
 	}
 	return nil
+}
+
+// ErrReportsPresent is returned when the output directory already holds
+// reports and the run was not told to replace them.
+var ErrReportsPresent = errors.New("already holds reports")
+
+// checkNoReports refuses an output directory that holds any report a run
+// writes: a signed report is never replaced silently. The message names
+// the reports and the two ways on.
+func checkNoReports(out string) error {
+	var found []string
+	for _, n := range report.Names {
+		// A directory in a report's place is no report; writing refuses it
+		// with its own message.
+		if st, err := os.Lstat(filepath.Join(out, n)); err == nil && !st.IsDir() {
+			found = append(found, n)
+		}
+	}
+	if len(found) == 0 {
+		return nil
+	}
+	return fmt.Errorf("--out %s %w (%s); nothing was changed: give --force to replace them, or write to another directory",
+		out, ErrReportsPresent, strings.Join(found, ", "))
 }
 
 // newestFileDate is the UTC date (YYYY-MM-DD) of the newest modification

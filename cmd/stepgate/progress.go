@@ -47,6 +47,16 @@ func (p *progress) update(done, total int, bytes int64) {
 	p.printed = true
 }
 
+// phase shows what the run is doing once the files are judged, e.g.
+// "writing reports", on the progress line.
+func (p *progress) phase(what string) {
+	if !p.enabled {
+		return
+	}
+	fmt.Fprint(p.w, "\r"+what+" …\x1b[K")
+	p.printed = true
+}
+
 // finish ends the progress line so that the next output starts on a clean
 // line.
 func (p *progress) finish() {

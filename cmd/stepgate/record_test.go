@@ -96,7 +96,8 @@ func TestRunRecordAcrossRuns(t *testing.T) {
 				t.Fatalf("first run: exit %d, want 1; %s", code, stderr)
 			}
 			for range 2 { // the second time, nothing new is recorded
-				code, stdout, stderr := captureRun(t, "run", "--spec", spec, "--out", out2, "--record", dsn, filepath.Join(bad, "retest_2.csv"))
+				// --force: the second time replaces the first time's reports.
+				code, stdout, stderr := captureRun(t, "run", "--force", "--spec", spec, "--out", out2, "--record", dsn, filepath.Join(bad, "retest_2.csv"))
 				if code != 0 {
 					t.Fatalf("retest: exit %d, want 0; %s", code, stderr)
 				}

@@ -31,13 +31,19 @@ type runOptions struct {
 	// MaxUnitPages (--max-unit-pages) caps the units with a detail page in
 	// the PDF; 0 means no limit, as in batch.Options.
 	MaxUnitPages int
-	// Quiet (--quiet) prints nothing but errors; Verbose (--verbose) lists
-	// every unit with all its reasons and prints the timing. The command
-	// line refuses both at once.
+	// Quiet (--quiet, -q) prints nothing but errors; Verbose (--verbose,
+	// -v) lists every unit with all its reasons and prints the timing. The
+	// command line refuses both at once.
 	Quiet, Verbose bool
-	CPUProfile     string // --cpu-profile FILE (hidden, for developers)
-	MemProfile     string // --mem-profile FILE (hidden, for developers)
-	Timing         bool   // --timing: print the timing even when quiet (hidden)
+	// JSON (--json) prints the run's summary as JSON on stdout instead of
+	// the verdict table; notices and progress stay on stderr.
+	JSON bool
+	// Force (--force) replaces the reports an earlier run left in Out;
+	// without it a run refuses an output directory that holds reports.
+	Force      bool
+	CPUProfile string // --cpu-profile FILE (hidden, for developers)
+	MemProfile string // --mem-profile FILE (hidden, for developers)
+	Timing     bool   // --timing: print the timing even when quiet (hidden)
 	// Record (--record DB) is the line record the run's units are stored
 	// in: a SQLite file path or a postgres:// URL; empty: none.
 	Record string
@@ -62,7 +68,7 @@ func newRunCmd() *cobra.Command {
 		Short: "Judge every log under PATH against the spec and write the reports",
 		Example: `  stepgate run --spec vd25.yaml --out reports/2026-11-30 logs/
   stepgate run --spec vd25.yaml --out out --report-date 2026-12-01 a.csv b.csv`,
-		Args: cobra.MinimumNArgs(1),
+		Args: needArgs("PATH", "the log files or directories to judge"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Paths = args
 			return runBatch(cmd.Context(), cmdStreams(cmd), o)
@@ -77,8 +83,10 @@ func newRunCmd() *cobra.Command {
 	fl.StringVar(&o.ReportDate, "report-date", "", "date printed on the reports, YYYY-MM-DD (default: SOURCE_DATE_EPOCH, else the newest test date in the logs, else the newest modification date of the log files)")
 	fl.StringArrayVar(&o.Include, "include", nil, "judge only files matching this pattern (repeatable; added to the spec's log.include)")
 	fl.StringArrayVar(&o.Exclude, "exclude", nil, "leave out files matching this pattern, listed in the reports (repeatable; added to the spec's log.exclude)")
-	fl.BoolVar(&o.Quiet, "quiet", false, "print nothing but errors")
-	fl.BoolVar(&o.Verbose, "verbose", false, "list every unit with all its reasons, and the run's timing on stderr")
+	fl.BoolVarP(&o.Quiet, "quiet", "q", false, "print nothing but errors")
+	fl.BoolVarP(&o.Verbose, "verbose", "v", false, "list every unit with all its reasons, and the run's timing on stderr")
+	fl.BoolVar(&o.JSON, "json", false, "print the summary as JSON on stdout (schema: stepgate schema run) instead of the verdict table")
+	fl.BoolVar(&o.Force, "force", false, "replace the reports already in --out (without it, a run refuses a directory holding reports)")
 	fl.StringVar(&o.CPUProfile, "cpu-profile", "", "write a CPU profile of the run to this file (for developers)")
 	fl.StringVar(&o.MemProfile, "mem-profile", "", "write a heap profile at the end of the run to this file (for developers)")
 	fl.StringVar(&o.Record, "record", "", "store every judged unit in this line record: a SQLite file path or a postgres:// URL (earlier attempts of a serial count in its attempt numbers and the yields)")
@@ -90,7 +98,35 @@ func newRunCmd() *cobra.Command {
 	cmd.MarkFlagRequired("spec")
 	cmd.MarkFlagRequired("out")
 	cmd.MarkFlagsMutuallyExclusive("quiet", "verbose")
+	cmd.MarkFlagsMutuallyExclusive("json", "verbose")
+	cmd.MarkFlagFilename("spec", "yaml", "yml")
+	cmd.MarkFlagDirname("out")
 	return cmd
+}
+
+// needArgs requires at least one argument, and names it when it is
+// missing: what, and what it is for.
+func needArgs(name, what string) cobra.PositionalArgs {
+	return func(cmd *cobra.Command, args []string) error {
+		if len(args) == 0 {
+			return fmt.Errorf("missing %s: give %s", name, what)
+		}
+		return nil
+	}
+}
+
+// oneArg requires exactly one argument, and names it when it is missing
+// or when there are more.
+func oneArg(name, what string) cobra.PositionalArgs {
+	return func(cmd *cobra.Command, args []string) error {
+		switch {
+		case len(args) == 0:
+			return fmt.Errorf("missing %s: give %s", name, what)
+		case len(args) > 1:
+			return fmt.Errorf("one %s wanted (%s), got %d: %s", name, what, len(args), strings.Join(args, " "))
+		}
+		return nil
+	}
 }
 
 // runInputs is what a run has resolved before it reads a log.
@@ -132,15 +168,18 @@ func runBatch(ctx context.Context, s streams, o runOptions) error {
 	tuneGC(len(in.files))
 	b, recs, tm, err := judge(ctx, s, o, in)
 	if err != nil {
-		return usageErr(fmt.Errorf("%w; no report written", err))
+		return stopped(ctx, fmt.Errorf("%w; no report written", err))
 	}
 	lr := openRecord(ctx, o.Record, b)
+	prog := newProgress(s.err, o.Quiet)
+	prog.phase("writing reports")
 	paths, err := report.WriteAll(ctx, o.Out, b, recs, report.Options{PDF: pdfreport.Options{AllUnits: o.AllUnits}})
+	prog.finish()
 	if err != nil {
-		return usageErr(err)
+		return stopped(ctx, err)
 	}
 	if ctx.Err() != nil {
-		return usageErr(fmt.Errorf("interrupted after the reports were written"))
+		return stopped(ctx, fmt.Errorf("interrupted after the reports were written"))
 	}
 	printOutcome(s, o, b, paths, len(in.files), tm)
 	if err := lr.write(ctx, s, o, b); err != nil {
@@ -150,6 +189,19 @@ func runBatch(ctx context.Context, s streams, o runOptions) error {
 		return &exitError{code: 1, err: errUnitsNotPassed}
 	}
 	return nil
+}
+
+// exitInterrupted is the exit status of a run stopped by SIGINT or SIGTERM:
+// 128 plus the number of SIGINT, as shells report an interrupted program.
+const exitInterrupted = 130
+
+// stopped gives err the exit status of a run that could not finish: 130
+// when ctx was cancelled by an interrupt, else 2.
+func stopped(ctx context.Context, err error) error {
+	if ctx.Err() != nil {
+		return &exitError{code: exitInterrupted, err: err}
+	}
+	return usageErr(err)
 }
 
 // check refuses options that no spec or log can make right, before
@@ -182,6 +234,11 @@ func resolveInputs(s streams, o runOptions, date string) (runInputs, error) {
 	}
 	if err := checkOutNotInput(o.Out, in.outAbs, o.Paths); err != nil {
 		return in, err
+	}
+	if !o.Force {
+		if err := checkNoReports(o.Out); err != nil {
+			return in, err
+		}
 	}
 	// The output directory is skipped wherever a search meets it, so that
 	// nothing stepgate or a user left there is read as a log. Every other
@@ -273,7 +330,11 @@ func runInfo(o runOptions, from string) *acceptance.RunInfo {
 // printOutcome prints the verdict table and the reports written on stdout,
 // unless quiet, and the timing on stderr with --verbose or --timing.
 func printOutcome(s streams, o runOptions, b *acceptance.Batch, paths []string, files int, tm runTiming) {
-	if !o.Quiet {
+	if o.JSON {
+		if err := writeRunJSON(s.out, b, paths); err != nil {
+			fmt.Fprintln(s.err, "stepgate: --json:", err)
+		}
+	} else if !o.Quiet {
 		printSummary(s.out, b, o.Verbose)
 		printExcluded(s.out, b.Excluded, o.Verbose)
 		for _, p := range paths {

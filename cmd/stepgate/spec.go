@@ -33,7 +33,7 @@ func newSpecCmd() *cobra.Command {
 		Use:     "check FILE",
 		Short:   "Validate a spec and explain what it will do",
 		Example: "  stepgate spec check vd25.yaml",
-		Args:    cobra.ExactArgs(1),
+		Args:    oneArg("FILE", "the spec to check"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return specCheck(cmdStreams(cmd), specCheckOptions{File: args[0]})
 		},

@@ -40,11 +40,25 @@ func printSummary(w io.Writer, b *acceptance.Batch, verbose bool) {
 			reason = u.Reasons[0].Text
 		}
 		pad := strings.Repeat(" ", width-utf8.RuneCountInString(ids[i]))
-		fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, oneLine(reason, 100))
-		if verbose {
-			for _, r := range u.Reasons[min(1, len(u.Reasons)):] {
-				fmt.Fprintf(w, "%s  %-7s  %s\n", strings.Repeat(" ", width), "", oneLine(r.Text, 100))
+		if !verbose {
+			fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, oneLine(reason, reasonWidth))
+			continue
+		}
+		// --verbose wraps every reason in full under the reasons column.
+		indent := strings.Repeat(" ", width) + "  " + strings.Repeat(" ", 7) + "  "
+		first := true
+		for _, r := range u.Reasons {
+			for _, line := range wrap(oneLine(r.Text, len(r.Text)+1), reasonWidth) {
+				if first {
+					fmt.Fprintf(w, "%s%s  %-7s  %s\n", ids[i], pad, u.Verdict, line)
+					first = false
+					continue
+				}
+				fmt.Fprintf(w, "%s%s\n", indent, line)
 			}
+		}
+		if first {
+			fmt.Fprintf(w, "%s%s  %s\n", ids[i], pad, u.Verdict)
 		}
 	}
 	if !listAll {
@@ -56,6 +70,45 @@ func printSummary(w io.Writer, b *acceptance.Batch, verbose bool) {
 		yield = 100 * float64(s.Pass) / float64(s.Units)
 	}
 	fmt.Fprintf(w, "units %d: pass %d, fail %d, invalid %d; yield %.1f %%\n", s.Units, s.Pass, s.Fail, s.Invalid, yield)
+}
+
+// reasonWidth is the most characters of a reason a summary line shows.
+const reasonWidth = 100
+
+// wrap breaks s into lines of at most n runes at spaces; a word longer
+// than a line is cut. Continuation lines begin with two spaces, so that a
+// wrapped reason reads apart from the next.
+func wrap(s string, n int) []string {
+	n -= 2 // room for the continuation's indent
+	var lines []string
+	line := ""
+	for _, word := range strings.Fields(s) {
+		for utf8.RuneCountInString(word) > n {
+			rs := []rune(word)
+			if line != "" {
+				lines = append(lines, line)
+				line = ""
+			}
+			lines = append(lines, string(rs[:n]))
+			word = string(rs[n:])
+		}
+		switch {
+		case line == "":
+			line = word
+		case utf8.RuneCountInString(line)+1+utf8.RuneCountInString(word) <= n:
+			line += " " + word
+		default:
+			lines = append(lines, line)
+			line = word
+		}
+	}
+	if line != "" || len(lines) == 0 {
+		lines = append(lines, line)
+	}
+	for i := 1; i < len(lines); i++ {
+		lines[i] = "  " + lines[i]
+	}
+	return lines
 }
 
 // oneLine replaces control characters (C0, DEL and C1, which terminals

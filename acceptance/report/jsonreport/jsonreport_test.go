@@ -4,11 +4,14 @@ import (
 	"bytes"
 	"testing"
 
+	"github.com/santhosh-tekuri/jsonschema/v6"
+
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
 )
 
 // The streamed writer must give exactly the bytes of encoding/json's
@@ -109,6 +112,59 @@ func TestWriteRoundsNumbers(t *testing.T) {
 	for _, noise := range []string{"0.28700000000000003", "25.000000000000004", "0.30000000000000004"} {
 		if bytes.Contains(got.Bytes(), []byte(noise)) {
 			t.Errorf("results.json holds %s", noise)
+		}
+	}
+}
+
+// The document the encoder writes for batches that set every field (the
+// fixture units, a full model, run options) follows the schema `stepgate
+// schema` prints (templates/schema.json), checked by the JSON Schema
+// validator github.com/santhosh-tekuri/jsonschema (draft 2020-12): a member
+// added to the encoder but not to the schema fails here.
+func TestWriteFollowsSchema(t *testing.T) {
+	doc, err := jsonschema.UnmarshalJSON(bytes.NewReader(templates.Schema))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := jsonschema.NewCompiler()
+	if err := c.AddResource("mem:///schema.json", doc); err != nil {
+		t.Fatal(err)
+	}
+	sch, err := c.Compile("mem:///schema.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	lim := 8.0
+	// The fixture's zero units and steps carry no verdict; a run always
+	// gives one.
+	units := fixtureUnits()
+	for i := range units {
+		if units[i].Verdict == "" {
+			units[i].Verdict = acceptance.Invalid
+		}
+		for j := range units[i].Steps {
+			if units[i].Steps[j].Verdict == "" {
+				units[i].Steps[j].Verdict = acceptance.Invalid
+			}
+		}
+	}
+	batches := map[string]*acceptance.Batch{
+		"fixture": {Units: units, Limits: map[metrics.Name]spec.Limit{"overshoot_pct": {Max: &lim}}, ReportDate: "2026-12-01",
+			Run: &acceptance.RunInfo{SpecPath: "s.yaml", SpecResolved: "/x/s.yaml", Inputs: []string{"logs"}, ReportDateFrom: acceptance.DateFromFiles}},
+		"full model": {Units: []acceptance.UnitResult{}, Model: fullModel(), Limits: map[metrics.Name]spec.Limit{}},
+		"empty":      {},
+	}
+	for name, b := range batches {
+		var out bytes.Buffer
+		if err := writeBatch(&out, b, "id"); err != nil {
+			t.Fatal(err)
+		}
+		inst, err := jsonschema.UnmarshalJSON(&out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := sch.Validate(inst); err != nil {
+			t.Errorf("%s: results.json does not follow templates/schema.json (add the member there):\n%v", name, err)
 		}
 	}
 }
