@@ -52,7 +52,7 @@ type Overlay struct {
 	// NoRecord counts steps of units whose record was not kept.
 	NoRecord int
 	// Thinned counts steps left out to keep the chart readable (beyond
-	// MaxCurves; passed steps are left out first).
+	// MaxCurves; a sample of each verdict is kept, see thin).
 	Thinned int
 	// Skipped lists the steps that had a record but could not be drawn, with
 	// the reason, in report order.
@@ -226,7 +226,7 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 	for _, ui := range units {
 		segs = o.unitSegments(&b.Units[ui], segs)
 	}
-	segs = thin(segs, o)
+	segs = thin(segs, o, passShare(b, units))
 	preds := predictionSegments(b, o)
 	o.Window = overlayWindow(b, segs, preds)
 	points := PointsFew
@@ -248,6 +248,23 @@ func build(b *acceptance.Batch, units []int) *Overlay {
 		o.Clipped = ymin < o.YMin || ymax > o.YMax
 	}
 	return o
+}
+
+// passShare is the fraction of the steps of the given units that passed.
+func passShare(b *acceptance.Batch, units []int) float64 {
+	pass, all := 0, 0
+	for _, ui := range units {
+		for _, s := range b.Units[ui].Steps {
+			all++
+			if s.Verdict == acceptance.Pass {
+				pass++
+			}
+		}
+	}
+	if all == 0 {
+		return 0
+	}
+	return float64(pass) / float64(all)
 }
 
 // unitSegments appends the segments of u's steps to segs: cut from its
@@ -378,9 +395,13 @@ func kindOf(v acceptance.Verdict) Kind {
 	return StepInvalid
 }
 
-// thin keeps at most MaxCurves segments: every failed and invalid step
-// first, then passed steps evenly spread over the batch.
-func thin(segs []segment, o *Overlay) []segment {
+// thin keeps at most MaxCurves segments, so that the chart shows the
+// batch as it is: when every step that did not pass fits beside a quarter
+// of the room for passed steps, all of them are kept and passed steps fill
+// the rest; otherwise each side gets its share of the batch's steps (at
+// least a quarter of the room each), both spread evenly over the batch.
+// passShare is the fraction of the batch's steps that passed.
+func thin(segs []segment, o *Overlay, passShare float64) []segment {
 	if len(segs) <= MaxCurves {
 		return segs
 	}
@@ -392,17 +413,27 @@ func thin(segs []segment, o *Overlay) []segment {
 			bad = append(bad, s)
 		}
 	}
-	if len(bad) >= MaxCurves {
-		o.Thinned = len(good) + len(bad) - MaxCurves
-		return bad[:MaxCurves]
+	floor := min(len(good), MaxCurves/4)
+	nGood := MaxCurves - len(bad)
+	if nGood < floor {
+		nGood = max(floor, min(len(good), int(math.Round(MaxCurves*passShare))))
 	}
-	room := MaxCurves - len(bad)
-	kept := make([]segment, 0, MaxCurves)
-	for k := 0; k < room; k++ {
-		kept = append(kept, good[k*len(good)/room])
+	nGood = min(nGood, len(good))
+	nBad := min(len(bad), MaxCurves-nGood)
+	o.Thinned = len(good) + len(bad) - nGood - nBad
+	return append(spread(good, nGood), spread(bad, nBad)...)
+}
+
+// spread returns n of segs spread evenly over them, in their order.
+func spread(segs []segment, n int) []segment {
+	if n >= len(segs) {
+		return segs
 	}
-	o.Thinned = len(good) - room
-	return append(kept, bad...)
+	kept := make([]segment, 0, n)
+	for k := 0; k < n; k++ {
+		kept = append(kept, segs[k*len(segs)/n])
+	}
+	return kept
 }
 
 // predictionSegments returns the model's nominal steps, realised when the

@@ -77,7 +77,8 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 		}
 	}
 
-	p.Legend.Add("settling band ±"+pct(o.Band), band)
+	lg := newLegendBox(p)
+	lg.Add("settling band ±"+pct(o.Band), band)
 	names := []struct {
 		k    Kind
 		name string
@@ -93,7 +94,7 @@ func (o *Overlay) Plot() (*plot.Plot, error) {
 			if n.k != Prediction {
 				label += " (" + strconv.Itoa(counts[n.k]) + ")"
 			}
-			p.Legend.Add(label, l)
+			lg.Add(label, l)
 		}
 	}
 	p.Legend.Top = false

@@ -210,14 +210,15 @@ func (v *vlines) add(p *plot.Plot, s digest.MetricStats) error {
 		p.Add(l)
 		predLine = l
 	}
+	lg := newLegendBox(p)
 	if limitLine != nil {
-		p.Legend.Add("limit", limitLine)
+		lg.Add("limit", limitLine)
 	}
 	if predLine != nil {
-		p.Legend.Add("predicted", predLine)
+		lg.Add("predicted", predLine)
 	}
 	if meanLine != nil {
-		p.Legend.Add("mean", meanLine)
+		lg.Add("mean", meanLine)
 	}
 	return nil
 }

@@ -281,12 +281,13 @@ func (pn *Panel) Plot(responseUnit, predictionKind string) (*plot.Plot, error) {
 	band.LineStyle.Width = vg.Points(0.4)
 	band.LineStyle.Dashes = []vg.Length{vg.Points(2), vg.Points(2)}
 	p.Add(band)
-	p.Legend.Add("settling band", band)
-	if err := pn.addCurves(p, predictionKind); err != nil {
+	lg := newLegendBox(p)
+	lg.Add("settling band", band)
+	if err := pn.addCurves(p, lg, predictionKind); err != nil {
 		return nil, err
 	}
 	ymin, ymax := pn.valueRange()
-	if err := pn.addMarks(p, ymin, ymax); err != nil {
+	if err := pn.addMarks(p, lg, ymin, ymax); err != nil {
 		return nil, err
 	}
 	pn.placeLegend(p)
@@ -326,7 +327,7 @@ func (pn *Panel) frame(responseUnit string) *plot.Plot {
 
 // addCurves draws the command, the prediction and the response, each when
 // the panel has it.
-func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
+func (pn *Panel) addCurves(p *plot.Plot, lg *legendBox, predictionKind string) error {
 	if len(pn.Command) > 0 {
 		l, err := newLine(pn.CmdT, pn.Command)
 		if err != nil {
@@ -335,7 +336,7 @@ func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
 		l.Color, l.Width = colourCommand, vg.Points(0.8)
 		l.StepStyle = plotter.PostStep
 		p.Add(l)
-		p.Legend.Add("command", l)
+		lg.Add("command", l)
 	}
 	if len(pn.PredT) > 0 {
 		l, err := newLine(pn.PredT, pn.PredY)
@@ -344,7 +345,7 @@ func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
 		}
 		l.Color, l.Width = colourPrediction, vg.Points(1.3)
 		p.Add(l)
-		p.Legend.Add("prediction ("+predictionKind+")", l)
+		lg.Add("prediction ("+predictionKind+")", l)
 	}
 	if len(pn.T) > 0 {
 		l, err := newLine(pn.T, pn.Response)
@@ -354,13 +355,13 @@ func (pn *Panel) addCurves(p *plot.Plot, predictionKind string) error {
 		styleLine(l.Line, kindOf(pn.Verdict))
 		l.Width = vg.Points(1)
 		p.Add(l)
-		p.Legend.Add("response ("+strings.ToLower(string(pn.Verdict))+")", l)
+		lg.Add("response ("+strings.ToLower(string(pn.Verdict))+")", l)
 	}
 	return nil
 }
 
 // addMarks draws the vertical lines of the time limits from ymin to ymax.
-func (pn *Panel) addMarks(p *plot.Plot, ymin, ymax float64) error {
+func (pn *Panel) addMarks(p *plot.Plot, lg *legendBox, ymin, ymax float64) error {
 	for _, m := range pn.Marks {
 		l, err := newLine([]float64{m.At, m.At}, []float64{ymin, ymax})
 		if err != nil {
@@ -376,7 +377,7 @@ func (pn *Panel) addMarks(p *plot.Plot, ymin, ymax float64) error {
 			l.Color, l.Dashes = colourMark, []vg.Length{vg.Points(1), vg.Points(2)}
 		}
 		p.Add(l)
-		p.Legend.Add(m.Label, l)
+		lg.Add(m.Label, l)
 	}
 	return nil
 }

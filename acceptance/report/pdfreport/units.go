@@ -25,7 +25,7 @@ func (r *report) chartPage() error {
 	p.AddPage()
 	r.heading("Step responses", 120)
 	o := chart.ForBatch(b)
-	r.para(fmt.Sprintf("Every recorded step, normalised to its own step: 0 is the level before the step, 1 the commanded level; time runs from the step instant. "+
+	r.para(fmt.Sprintf("The recorded steps, normalised to each one's own step: 0 is the level before the step, 1 the commanded level; time runs from the step instant. "+
 		"The shaded band is the settling band ±%s %% of the step.", num(o.Band*100)), 9, 4.6, black)
 	if err := r.drawOverlay(o, 125); err != nil {
 		return err
@@ -59,11 +59,8 @@ func (r *report) drawOverlay(o *chart.Overlay, h float64) error {
 func (r *report) overlayNotes(o *chart.Overlay) {
 	var notes []string
 	notes = append(notes, fmt.Sprintf("%d of %d steps drawn.", o.Shown, o.Steps))
-	if o.NoRecord > 0 {
-		notes = append(notes, fmt.Sprintf("%d steps belong to units whose record was not kept for the report.", o.NoRecord))
-	}
-	if o.Thinned > 0 {
-		notes = append(notes, fmt.Sprintf("%d steps left out to keep the chart readable (passed steps first; at most %d curves).", o.Thinned, chart.MaxCurves))
+	if o.NoRecord > 0 || o.Thinned > 0 {
+		notes = append(notes, "Too many steps to draw each one: the chart shows a sample of the passed steps beside the others, spread evenly over the batch.")
 	}
 	if o.Clipped {
 		notes = append(notes, fmt.Sprintf("Curves beyond %s … %s are cut at the frame.", num(o.YMin), num(o.YMax)))
