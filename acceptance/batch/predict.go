@@ -297,13 +297,13 @@ func (p *predictor) designs(nominal []acceptance.NominalPrediction) []acceptance
 			k := d.Ideal.Kp
 			g.KpIdeal = &k
 		} else if d.IdealWhy != "" {
-			whys = append(whys, "ideal: "+d.IdealWhy)
+			whys = append(whys, model.LoopWhy("ideal", d.IdealWhy))
 		}
 		if d.Realised != nil {
 			k := d.Realised.Kp
 			g.KpRealised = &k
 		} else if d.RealisedWhy != "" && p.realised {
-			whys = append(whys, "realised: "+d.RealisedWhy)
+			whys = append(whys, model.LoopWhy("realised", d.RealisedWhy))
 		}
 		if err != nil && len(whys) == 0 {
 			whys = append(whys, err.Error())

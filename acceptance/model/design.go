@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/stepgate/stepgate/metrics"
 )
@@ -158,7 +159,7 @@ func (s *System) DesignGain(t Target, from, to float64) (Design, error) {
 	if d.Ideal == nil && d.Realised == nil {
 		why := d.IdealWhy
 		if s.Realised() {
-			why += "; realised: " + d.RealisedWhy
+			why += "; " + LoopWhy("realised", d.RealisedWhy)
 		}
 		return d, fmt.Errorf("no gain meets %v: %s", t, why)
 	}
@@ -341,4 +342,14 @@ func bracketGain(eval func(kp float64) (gainPoint, bool, error), p0 gainPoint, u
 		}
 	}
 	return lo, hi, found, nil
+}
+
+// LoopWhy labels why no gain was found for the ideal or the realised loop
+// ("realised: …"), unless the reason already names the loop ("realised
+// loop: …"), so that the label is not said twice.
+func LoopWhy(kind, why string) string {
+	if strings.HasPrefix(why, kind+" loop") {
+		return why
+	}
+	return kind + ": " + why
 }

@@ -173,3 +173,16 @@ func TestDesignGainUnreachable(t *testing.T) {
 		t.Error("overshoot 120 % accepted")
 	}
 }
+
+func TestLoopWhy(t *testing.T) {
+	tests := []struct{ kind, why, want string }{
+		{"realised", "realised loop: overshoot 5 % is not reachable", "realised loop: overshoot 5 % is not reachable"},
+		{"realised", "the config has no loop or actuator section", "realised: the config has no loop or actuator section"},
+		{"ideal", "realised loop: x", "ideal: realised loop: x"},
+	}
+	for _, tc := range tests {
+		if got := LoopWhy(tc.kind, tc.why); got != tc.want {
+			t.Errorf("LoopWhy(%q, %q) = %q, want %q", tc.kind, tc.why, got, tc.want)
+		}
+	}
+}

@@ -5,8 +5,10 @@ import (
 	"strings"
 )
 
-// Num formats a number for a report: four significant digits, without an
-// exponent between 0.001 and 1,000,000, and a plain "0" for zero.
+// Num formats a number for a report in one style: four significant digits
+// as a plain decimal (0.0002708, 12346, 2500000), and a plain "0" for zero.
+// Only magnitudes below 1e-9, which print as long runs of zeros, keep an
+// exponent.
 func Num(v float64) string {
 	if v == 0 {
 		return "0"
@@ -15,13 +17,20 @@ func Num(v float64) string {
 	if a < 0 {
 		a = -a
 	}
-	if a < 1e-3 || a >= 1e6 {
+	if a < 1e-9 {
 		return strconv.FormatFloat(v, 'e', 3, 64)
 	}
 	s := strconv.FormatFloat(v, 'g', 4, 64)
-	if strings.ContainsAny(s, "eE") {
-		s = strconv.FormatFloat(v, 'f', 0, 64)
+	if !strings.ContainsAny(s, "eE") {
+		return s
 	}
+	if a >= 1 {
+		return strconv.FormatFloat(v, 'f', 0, 64)
+	}
+	// Four significant digits after the leading zeros, then no trailing
+	// zero: the digits 'g' chose, written out.
+	r, _ := strconv.ParseFloat(s, 64)
+	s = strconv.FormatFloat(r, 'f', -1, 64)
 	return s
 }
 

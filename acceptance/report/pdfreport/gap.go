@@ -21,7 +21,7 @@ func (r *report) gapSection() error {
 	if m == nil {
 		r.heading("Likely causes: indications, not proof", 20)
 		r.para(textNoModel, 9, 4.6, black)
-		r.causes(false)
+		r.causes(false, true)
 		return nil
 	}
 	r.heading("Model against the line", 40)
@@ -33,7 +33,9 @@ func (r *report) gapSection() error {
 	}
 	r.comparisonTable()
 	r.loopTable()
-	r.causes(true)
+	// The designed gains close with the gain caution, which says what the
+	// closing advice says; one box, not two.
+	r.causes(true, len(m.Designs) == 0)
 	r.designs()
 	return nil
 }
@@ -150,9 +152,10 @@ func (r *report) loopTable() {
 	}
 }
 
-// causes prints the notes on likely causes, worded as indications, and the
-// closing advice, under a subheading of their own when titled.
-func (r *report) causes(titled bool) {
+// causes prints the notes on likely causes, worded as indications, under a
+// subheading of their own when titled, and the closing advice when advise
+// is set.
+func (r *report) causes(titled, advise bool) {
 	p := r.pdf
 	if titled {
 		r.subheading("Likely causes: indications, not proof", 20)
@@ -172,7 +175,9 @@ func (r *report) causes(titled bool) {
 		r.para(n.Meaning, 9, 4.5, grey)
 	}
 	p.Ln(1.5)
-	r.cautionBox(r.d.Advice)
+	if advise {
+		r.cautionBox(r.d.Advice)
+	}
 }
 
 // cautionBox prints a caution in a framed box.

@@ -264,14 +264,20 @@ func TestWriteTextExtracted(t *testing.T) {
 		"ζ = 0.25, ωn = 6 rad/s", // the identified loop of SN-1002
 		"Test dates 2024-05-15 to 2024-05-16", "Spec SHA-256 " + b.Spec.SHA256,
 		"End of report " + digest.ReportID(b), "This report has " + strconv.Itoa(pages) + " pages; this is the last.",
-		// The gain caution of templates.GainCaution, and the closing advice.
-		"CAUTION: a gain computed from a linear model", "Reduce it, try it on the machine with the guards",
+		// The gain caution of templates.GainCaution, which stands for the
+		// closing advice after the designed gains.
+		"CAUTION: a gain computed from a linear model", "try it on the machine with guards and interlocks in place",
 		// Capability of the overshoot limit (max only): Cpu, flagged n < 30.
 		"Cpu", "indicative only, n < 30",
 	} {
 		if !strings.Contains(text, w) {
 			t.Errorf("extracted text lacks %q", w)
 		}
+	}
+	// One caution box where the closing advice and the gain caution would
+	// say the same thing one after the other.
+	if strings.Contains(text, "Reduce it, try it on the machine with the guards") {
+		t.Errorf("the closing advice is printed beside the gain caution")
 	}
 }
 
