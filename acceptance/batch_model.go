@@ -153,6 +153,11 @@ type UnitResult struct {
 
 	// Fit is the identified effective closed loop; nil without a model.
 	Fit *Fit `json:"fit,omitempty"`
+	// Causes are the likely causes its record indicates against the
+	// model's realised prediction (acceptance/causes keys, in report
+	// order): nil without a model or for a unit of several axes, empty
+	// when none of them stands out.
+	Causes []string `json:"causes,omitempty"`
 	// Axes holds the verdict of each axis of a unit judged under a spec
 	// with several axes, in spec order; nil (left out of results.json)
 	// under a single-axis spec. Steps then holds the steps of every axis,

@@ -9,6 +9,7 @@ import (
 	"sync"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/causes"
 	"github.com/stepgate/stepgate/acceptance/model"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
@@ -37,6 +38,7 @@ type predEntry struct {
 	realised acceptance.Prediction
 	idealTr  *metrics.Trace
 	realTr   *metrics.Trace
+	realStep *metrics.Step // the step of realTr; nil when it has none
 	err      error
 	failed   acceptance.Prediction // every metric unknown with err, when err is set
 }
@@ -65,6 +67,14 @@ func (p *predictor) entry(k predKey) *predEntry {
 	}
 	p.mu.Unlock()
 	e.once.Do(func() {
+		defer func() {
+			if e.realTr == nil {
+				return
+			}
+			if st := metrics.FindSteps(*e.realTr, p.spec.Steps.MinChange); len(st) > 0 {
+				e.realStep = &st[0]
+			}
+		}()
 		fail := func(err error) {
 			e.err = err
 			e.failed = acceptance.Prediction{Kind: p.kind().String()}
@@ -314,4 +324,48 @@ func (p *predictor) designs(nominal []acceptance.NominalPrediction) []acceptance
 		out = append(out, g)
 	}
 	return out
+}
+
+// causes names the likely causes a step's own evidence indicates against
+// the realised prediction of the same step (acceptance/causes); none for a
+// profiled move or a step without a prediction.
+func (p *predictor) causes(tr metrics.Trace, m metrics.StepMetrics) causes.Cause {
+	if m.Step.Profiled() {
+		return causes.None
+	}
+	k := p.key(m, tr)
+	if !(k.dt > 0) {
+		return causes.None
+	}
+	e := p.entry(k)
+	if e.err != nil || e.realStep == nil {
+		return causes.None
+	}
+	return causes.Measure(causes.Input{
+		Record: tr, Step: m.Step, Predicted: *e.realTr, PredStep: *e.realStep,
+		Band: p.opts.Band, FinalWindow: p.opts.FinalWindow,
+	}).Causes
+}
+
+// spreadCauses adds the gain or inertia spread to the units whose fitted
+// loop lies apart from the batch's when the batch spreads
+// (causes.Judge, on each unit's fit of its first step).
+func spreadCauses(units []acceptance.UnitResult) {
+	ev := make([][]causes.StepEvidence, len(units))
+	for i := range units {
+		f := units[i].Fit
+		if f == nil || !f.NaturalFrequency.OK || !f.StaticGain.OK || units[i].Causes == nil {
+			continue
+		}
+		ev[i] = []causes.StepEvidence{{
+			WnSquared:  metrics.Known(f.NaturalFrequency.V * f.NaturalFrequency.V),
+			StaticGain: f.StaticGain,
+		}}
+	}
+	named, _ := causes.Judge(ev)
+	for i, c := range named {
+		if c&causes.GainSpread != 0 {
+			units[i].Causes = append(units[i].Causes, causes.GainSpread.Key())
+		}
+	}
 }

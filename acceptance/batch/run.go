@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/causes"
 	"github.com/stepgate/stepgate/acceptance/logs"
 	"github.com/stepgate/stepgate/acceptance/spec"
 	"github.com/stepgate/stepgate/metrics"
@@ -80,6 +81,9 @@ func Run(ctx context.Context, sp *spec.Spec, files []string, o Options) (*accept
 	results, err := r.judgeAll(ctx, files)
 	if err != nil {
 		return nil, nil, err
+	}
+	if r.pred != nil {
+		spreadCauses(results)
 	}
 	b := r.assemble(results)
 	recs := &Records{}
@@ -336,6 +340,7 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 		limit = effortLimit(tr, sp)
 	}
 	uo := metrics.UncertaintyOptions{Resolution: sp.ResponseResolution, Seed: uncertaintySeed}
+	var found causes.Cause
 	for _, st := range steps {
 		m := metrics.MeasureStep(tr, st, opts)
 		mu := metrics.MeasureUncertainty(tr, m, opts, uo)
@@ -343,6 +348,7 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 		sr.Evidence = stepEvidence(tr, m, opts, limit)
 		if pred != nil {
 			pred.attach(&sr, m, tr)
+			found |= pred.causes(tr, m)
 		}
 		u.Steps = append(u.Steps, sr)
 	}
@@ -354,6 +360,9 @@ func processFile(rd logs.Source, sp *spec.Spec, opts metrics.Options, pred *pred
 	}
 	if pred != nil && len(steps) > 0 {
 		u.Fit = pred.fit(tr, steps[0])
+	}
+	if pred != nil {
+		u.Causes = append([]string{}, found.Keys()...)
 	}
 	if policy == KeepAllTraces {
 		t := tr.Clone()

@@ -71,3 +71,13 @@ func (c Cause) String() string {
 	}
 	return strings.Join(c.Keys(), "+")
 }
+
+// ByKey returns the cause whose Key is k.
+func ByKey(k string) (Cause, bool) {
+	for _, c := range All {
+		if c.Key() == k {
+			return c, true
+		}
+	}
+	return None, false
+}

@@ -62,7 +62,8 @@ type Input struct {
 	// Band is the settling band as a share of the step size; FinalWindow
 	// the share of the step's samples that makes its final window.
 	Band, FinalWindow float64
-	// Kp is the proportional gain the step was recorded with (for the fit).
+	// Kp is the proportional gain the step was recorded with, for the fit;
+	// 0 leaves the fit to the caller (WnSquared and StaticGain unknown).
 	Kp float64
 }
 
@@ -108,7 +109,10 @@ func Measure(in Input) StepEvidence {
 	ev.PredResponseLeave = responseLeave(pred, in.PredStep, 0)
 	ev.Offset, ev.Drift, ev.Ripple = finalLevel(rec, in.Step, in.FinalWindow)
 	ev.PredOffset, _, _ = finalLevel(pred, in.PredStep, in.FinalWindow)
-	if id, err := model.Identify(rec, in.Step, in.Kp); err != nil {
+	if !(in.Kp > 0) {
+		why := metrics.Unknown("the step was not fitted")
+		ev.WnSquared, ev.StaticGain = why, why
+	} else if id, err := model.Identify(rec, in.Step, in.Kp); err != nil {
 		ev.WnSquared, ev.StaticGain = metrics.Unknown(err.Error()), metrics.Unknown(err.Error())
 	} else {
 		ev.WnSquared = metrics.Known(id.NaturalFrequency * id.NaturalFrequency)
@@ -238,13 +242,16 @@ func flatTop(tr metrics.Trace, st metrics.Step) (dur, level metrics.Value) {
 	return metrics.Known(float64(best-1) * samplePeriod(tr.Time[st.Start:st.End])), metrics.Known(peak)
 }
 
-// effortLeave is when the effort first changes from its level at the step
-// instant by LeaveShare of its largest change over the step.
+// effortLeave is when the effort first changes from its mean level before
+// the step by LeaveShare of its largest change over the step.
 func effortLeave(tr metrics.Trace, st metrics.Step) metrics.Value {
 	if tr.Effort == nil {
 		return metrics.Unknown("the record has no effort")
 	}
-	e0, big := tr.Effort[st.Start], 0.0
+	if st.Start == st.PreStart {
+		return metrics.Unknown("the step has no pre-step window")
+	}
+	e0, big := mean(tr.Effort[st.PreStart:st.Start]), 0.0
 	for _, v := range tr.Effort[st.Start:st.End] {
 		big = math.Max(big, math.Abs(v-e0))
 	}

@@ -93,6 +93,7 @@ type refUnit struct {
 	Lot      string            `json:"lot"`
 	Shift    string            `json:"shift"`
 	Fit      *refFit           `json:"fit,omitempty"`
+	Causes   *[]string         `json:"causes,omitempty"`
 	Axes     []refAxis         `json:"axes,omitempty"`
 }
 
@@ -277,6 +278,10 @@ func refOfUnit(u *acceptance.UnitResult) refUnit {
 	}
 	if f := u.Fit; f != nil {
 		r.Fit = &refFit{f.Step, refValue(f.StaticGain), refValue(f.Damping), refValue(f.NaturalFrequency), refValue(f.DeadTime), refValue(f.RMSResidual), f.Why}
+	}
+	if u.Causes != nil {
+		c := append([]string{}, u.Causes...)
+		r.Causes = &c
 	}
 	for _, a := range u.Axes {
 		r.Axes = append(r.Axes, refAxis{a.Name, string(a.Verdict), refReasons(a.Reasons)})

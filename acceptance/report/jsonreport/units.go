@@ -84,6 +84,10 @@ func (e *encoder) unit(d int, u *acceptance.UnitResult) {
 		e.Member(m, `"fit": `)
 		e.fit(m, u.Fit)
 	}
+	if u.Causes != nil {
+		e.Member(m, `"causes": `)
+		e.Array(m, false, len(u.Causes), func(i int) { e.Str(u.Causes[i]) })
+	}
 	if len(u.Axes) > 0 {
 		e.Member(m, `"axes": `)
 		e.Array(m, false, len(u.Axes), func(i int) { e.axis(m+1, &u.Axes[i]) })

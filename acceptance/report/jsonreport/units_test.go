@@ -252,7 +252,8 @@ func fixtureUnits() []acceptance.UnitResult {
 				NaturalFrequency: metrics.Known(1.7976931348623157e308), DeadTime: metrics.Known(5e-324),
 				RMSResidual: metrics.Known(-1e-7), Why: "fit <converged> & \u2029",
 			},
-			Trace: trace,
+			Causes: []string{"loop_delay", "gain_spread <&>"},
+			Trace:  trace,
 			Axes: []acceptance.AxisResult{
 				{Name: "X <&>", Verdict: acceptance.Fail, Reasons: acceptance.TextReasons("axis X: overshoot")},
 				{Name: "", Verdict: acceptance.Pass, Reasons: []acceptance.Reason{}},
@@ -264,7 +265,8 @@ func fixtureUnits() []acceptance.UnitResult {
 		// Empty slices and maps encode as [] and {}; a fit that failed.
 		{
 			Unit: "empty", Metadata: map[string]string{}, Reasons: []acceptance.Reason{}, Steps: []acceptance.StepResult{},
-			Fit: &acceptance.Fit{Why: "too few samples", StaticGain: metrics.Unknown("x")},
+			Fit:    &acceptance.Fit{Why: "too few samples", StaticGain: metrics.Unknown("x")},
+			Causes: []string{},
 		},
 		{Unit: "bare steps", Steps: []acceptance.StepResult{bare}, Reasons: acceptance.TextReasons(""), Fit: &acceptance.Fit{}},
 		{}, // the zero unit

@@ -13,9 +13,11 @@ import (
 	"gonum.org/v1/plot"
 
 	"github.com/stepgate/stepgate/acceptance"
+	"github.com/stepgate/stepgate/acceptance/causes"
 	"github.com/stepgate/stepgate/acceptance/report/chart"
 	"github.com/stepgate/stepgate/acceptance/report/digest"
 	"github.com/stepgate/stepgate/metrics"
+	"github.com/stepgate/stepgate/templates"
 )
 
 // chartPage draws every kept step normalised to its step, with the model's
@@ -185,6 +187,9 @@ func (r *report) unitPage(i int, fig *unitFig) error {
 	if f := u.Fit; f != nil {
 		kv = append(kv, [2]string{"Identified loop", fitText(f, r.unit)})
 	}
+	if u.Causes != nil {
+		kv = append(kv, [2]string{"Likely causes", causesText(u.Causes)})
+	}
 	if len(u.Metadata) == 0 {
 		kv = append(kv, [2]string{"Log header", "no metadata read"})
 	} else {
@@ -214,6 +219,23 @@ func (r *report) unitPage(i int, fig *unitFig) error {
 		r.stepTable(&u.Steps[k])
 	}
 	return nil
+}
+
+// causesText names a unit's indicated causes, or says plainly that none
+// stands out.
+func causesText(keys []string) string {
+	if len(keys) == 0 {
+		return templates.MustPhrase("pdf-unit-causes-none")
+	}
+	titles := make([]string, 0, len(keys))
+	for _, k := range keys {
+		if c, ok := causes.ByKey(k); ok {
+			titles = append(titles, c.Title())
+		} else {
+			titles = append(titles, k)
+		}
+	}
+	return strings.Join(titles, ", ") + ": " + templates.MustPhrase("pdf-unit-causes")
 }
 
 // rowsRead says how much of a unit's file could be read.
