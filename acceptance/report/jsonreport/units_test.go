@@ -252,7 +252,7 @@ func fixtureUnits() []acceptance.UnitResult {
 				NaturalFrequency: metrics.Known(1.7976931348623157e308), DeadTime: metrics.Known(5e-324),
 				RMSResidual: metrics.Known(-1e-7), Why: "fit <converged> & \u2029",
 			},
-			Causes: []string{"loop_delay", "gain_spread <&>"},
+			Causes: []string{"loop_delay", "gain_spread"},
 			Trace:  trace,
 			Axes: []acceptance.AxisResult{
 				{Name: "X <&>", Verdict: acceptance.Fail, Reasons: acceptance.TextReasons("axis X: overshoot")},
