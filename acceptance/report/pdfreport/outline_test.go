@@ -6,7 +6,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"unicode/utf16"
 
 	"github.com/stepgate/stepgate/acceptance"
 	"github.com/stepgate/stepgate/acceptance/internal/pdfenc"
@@ -37,32 +36,11 @@ var (
 // literalText decodes a PDF literal string (§7.3.4.2) holding UTF-16BE
 // text after a byte-order mark (§7.9.2.2), as an outline title is written.
 func literalText(lit string) string {
-	var raw []byte
-	for i := 0; i < len(lit); i++ {
-		c := lit[i]
-		if c == '\\' && i+1 < len(lit) {
-			i++
-			switch lit[i] {
-			case 'r':
-				c = '\r'
-			case 'n':
-				c = '\n'
-			default:
-				c = lit[i]
-			}
-		}
-		raw = append(raw, c)
-	}
-	if len(raw) >= 2 && raw[0] == 0xFE && raw[1] == 0xFF {
-		raw = raw[2:]
-	} else {
+	raw := unescapeLiteral(lit)
+	if len(raw) < 2 || raw[0] != 0xFE || raw[1] != 0xFF {
 		return string(raw)
 	}
-	u := make([]uint16, 0, len(raw)/2)
-	for i := 0; i+1 < len(raw); i += 2 {
-		u = append(u, uint16(raw[i])<<8|uint16(raw[i+1]))
-	}
-	return string(utf16.Decode(u))
+	return decodeUTF16BE(raw[2:])
 }
 
 // outlineItem is one entry of the document outline read back (§12.3.3).

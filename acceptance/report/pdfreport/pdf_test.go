@@ -41,30 +41,40 @@ func pdfString(s string, bom bool) string {
 func textShown(pdf []byte) []string {
 	var out []string
 	for _, m := range textOp.FindAllSubmatch(pdf, -1) {
-		lit := m[1]
-		var raw []byte
-		for i := 0; i < len(lit); i++ {
-			c := lit[i]
-			if c == '\\' && i+1 < len(lit) {
-				i++
-				switch lit[i] {
-				case 'r':
-					c = '\r'
-				case 'n':
-					c = '\n'
-				default:
-					c = lit[i]
-				}
-			}
-			raw = append(raw, c)
-		}
-		u := make([]uint16, 0, len(raw)/2)
-		for i := 0; i+1 < len(raw); i += 2 {
-			u = append(u, uint16(raw[i])<<8|uint16(raw[i+1]))
-		}
-		out = append(out, string(utf16.Decode(u)))
+		out = append(out, decodeUTF16BE(unescapeLiteral(string(m[1]))))
 	}
 	return out
+}
+
+// unescapeLiteral undoes the backslash escapes of a PDF literal string
+// (§7.3.4.2) as gofpdf writes them.
+func unescapeLiteral(lit string) []byte {
+	var raw []byte
+	for i := 0; i < len(lit); i++ {
+		c := lit[i]
+		if c == '\\' && i+1 < len(lit) {
+			i++
+			switch lit[i] {
+			case 'r':
+				c = '\r'
+			case 'n':
+				c = '\n'
+			default:
+				c = lit[i]
+			}
+		}
+		raw = append(raw, c)
+	}
+	return raw
+}
+
+// decodeUTF16BE decodes big-endian UTF-16 bytes.
+func decodeUTF16BE(raw []byte) string {
+	u := make([]uint16, 0, len(raw)/2)
+	for i := 0; i+1 < len(raw); i += 2 {
+		u = append(u, uint16(raw[i])<<8|uint16(raw[i+1]))
+	}
+	return string(utf16.Decode(u))
 }
 
 var textOp = regexp.MustCompile(`(?s)BT [0-9.\-]+ [0-9.\-]+ Td \(((?:[^\\)]|\\.)*)\) ?Tj ET`)
